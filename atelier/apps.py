@@ -1,0 +1,6 @@
+from django.apps import AppConfig
+
+
+class AtelierConfig(AppConfig):
+    name = "atelier"
+    verbose_name = "Atelier"

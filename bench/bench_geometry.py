@@ -1,0 +1,149 @@
+"""Time altered outlines + preview SVG for a 6-panel and a 12-panel block (a script, not a test).
+
+    .venv/bin/python bench/bench_geometry.py [--runs 30]
+
+Beside each figure it prints the floor measured in the same run: a bare
+matplotlib Figure with the same number of lines, points and labels, written
+as SVG with the same settings, and the ratio of the medians.
+"""
+
+import argparse
+import io
+import statistics
+import sys
+import time
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+
+import matplotlib  # noqa: E402
+import numpy as np  # noqa: E402
+from matplotlib.backends.backend_svg import FigureCanvasSVG  # noqa: E402
+from matplotlib.figure import Figure  # noqa: E402
+
+from patterns.core.block import BACK, FRONT, Alteration, Block, Level, Panel, PanelShift, Point, Seam  # noqa: E402
+from patterns.core.outline import alter_pattern  # noqa: E402
+from patterns.core.preview import _RC, build_figure, preview_svg  # noqa: E402
+from patterns.demo import corset_block  # noqa: E402
+
+
+def twelve_panel_block() -> Block:
+    """The size 10 corset's levels with twelve narrower panels, laid out 50 mm apart."""
+    six = corset_block("10")
+    levels = six.levels
+    names = six.level_names
+    panels, origin = [], 0.0
+    for i in range(12):
+        widths = {lv: 0.5 * six.panels[i // 2].width(lv) + 4.0 for lv in names}
+        widest = max(widths.values())
+        centre = origin + widest / 2
+        left = {lv: centre - w / 2 for lv, w in widths.items()}
+        right = {lv: centre + w / 2 for lv, w in widths.items()}
+        top, bottom = 10.0 + 3 * i, levels[-1].y + 15.0
+        panels.append(Panel(
+            f"Panel {i + 1}", FRONT if i < 6 else BACK, left, right,
+            Point(left[names[0]], top), Point(right[names[0]], top + 3),
+            Point(left[names[-1]], bottom), Point(right[names[-1]], bottom),
+        ))
+        origin += widest + 50.0
+    panels = [
+        Panel(p.name, p.side, p.left, p.right, p.top_left, Point(p.top_right.x, nxt.top_left.y), p.bottom_left,
+              p.bottom_right)
+        for p, nxt in zip(panels, panels[1:] + panels[-1:])
+    ]
+    seams = tuple(Seam(f"Seam {i + 1}", "side" if i == 5 else "other", a.name, b.name, frozenset(names))
+                  for i, (a, b) in enumerate(zip(panels, panels[1:])))
+    return Block("Bench block, twelve panels", "10", "bench", levels, tuple(panels), seams)
+
+
+def waist_alteration(block: Block, amount: float = -4.0) -> Alteration:
+    shifts = {p.name: {} for p in block.panels}
+    for seam in block.seams:
+        front = shifts[seam.front_panel].get("waist", PanelShift())
+        shifts[seam.front_panel]["waist"] = PanelShift(front.left, amount)
+        back = shifts[seam.back_panel].get("waist", PanelShift())
+        shifts[seam.back_panel]["waist"] = PanelShift(amount, back.right)
+    return Alteration(shifts=shifts, bands={("waist", "hip"): 8.0})
+
+
+def figure_counts(block: Block, alteration: Alteration) -> tuple[list[int], int]:
+    """Points per drawn line and the number of labels in the preview figure."""
+    with matplotlib.rc_context(_RC):
+        fig = build_figure(block, alteration)
+    ax = fig.axes[0]
+    lines = [len(seg) for coll in ax.collections for seg in coll.get_segments()]
+    lines += [len(line.get_xydata()) for line in ax.lines]
+    return lines, len(ax.texts)
+
+
+def bare_svg(points_per_line: list[int], labels: int) -> str:
+    """The floor: a plain Figure with the same lines, points and labels, as SVG."""
+    fig = Figure(figsize=(10, 7))
+    ax = fig.add_axes((0, 0, 1, 1))
+    for i, n in enumerate(points_per_line):
+        t = np.linspace(0, 2 * np.pi, n)
+        ax.plot(np.cos(t) + i * 2.5, np.sin(t), color="C0", linewidth=1.2)
+    for i in range(labels):
+        ax.text(i % 20 * 1.5, i // 20 * 0.3, f"+0.{i % 10}", fontsize=9)
+    ax.set_xlim(-1.5, 2.5 * len(points_per_line))
+    ax.set_ylim(-1.5, 1.5)
+    buf = io.BytesIO()
+    FigureCanvasSVG(fig).print_svg(buf, metadata={"Date": None})
+    return buf.getvalue().decode()
+
+
+def timed(fn, runs: int) -> list[float]:
+    fn()  # warm caches (fonts, imports) outside the measurement
+    times = []
+    for _ in range(runs):
+        start = time.perf_counter()
+        fn()
+        times.append((time.perf_counter() - start) * 1000)
+    return times
+
+
+def p95(values: list[float]) -> float:
+    values = sorted(values)
+    return values[min(len(values) - 1, int(round(0.95 * (len(values) - 1))))]
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--runs", type=int, default=30)
+    args = parser.parse_args()
+
+    print(f"matplotlib {matplotlib.__version__}, numpy {np.__version__}, runs {args.runs}; times in ms")
+    print(f"{'case':44} {'median':>8} {'p95':>8} {'floor med':>10} {'ratio':>6}")
+    for block in (corset_block("10"), twelve_panel_block()):
+        alteration = waist_alteration(block)
+        lines, labels = figure_counts(block, alteration)
+
+        def floor():
+            with matplotlib.rc_context(_RC):
+                bare_svg(lines, labels)
+
+        def floor_default():
+            bare_svg(lines, labels)
+
+        floor_times = timed(floor, args.runs)
+        pattern = alter_pattern(block, alteration)
+        cases = {
+            "outlines + checks (alter_pattern)": lambda: alter_pattern(block, alteration),
+            "preview SVG from computed outlines": lambda: preview_svg(block, alteration, pattern=pattern),
+            "outlines + preview SVG": lambda: preview_svg(block, alteration),
+        }
+        floor_med = statistics.median(floor_times)
+        head = f"{len(block.panels)} panels, {len(lines)} lines, {sum(lines)} points, {labels} labels"
+        print(head)
+        print(f"  {'floor: bare Figure, same rc, as SVG':42} {floor_med:8.1f} {p95(floor_times):8.1f}")
+        default_times = timed(floor_default, args.runs)
+        print(f"  {'floor: bare Figure, default rc (text as paths)':42} "
+              f"{statistics.median(default_times):8.1f} {p95(default_times):8.1f}")
+        for name, fn in cases.items():
+            times = timed(fn, args.runs)
+            med = statistics.median(times)
+            print(f"  {name:42} {med:8.1f} {p95(times):8.1f} {floor_med:10.1f} {med / floor_med:6.2f}")
+
+
+if __name__ == "__main__":
+    main()

@@ -1,0 +1,143 @@
+from django.contrib import admin, messages
+from django.db.models import Count
+from django.urls import reverse
+from django.utils import timezone
+from django.utils.html import format_html
+
+from fittings.models import (
+    Client, Measurement, MeasurementSession, Photo, PinAdjustment, Plan, PlanRevision,
+)
+
+
+@admin.register(Client)
+class ClientAdmin(admin.ModelAdmin):
+    list_display = ["reference", "name", "contact", "consent_given_on", "session_count", "is_deleted", "created_at"]
+    list_filter = ["is_deleted", "consent_given_on"]
+    search_fields = ["reference", "name", "contact", "notes"]
+    readonly_fields = ["is_deleted", "deleted_at", "created_at", "updated_at", "created_by"]
+    actions = ["mark_deleted", "restore"]
+    date_hierarchy = "created_at"
+
+    def get_queryset(self, request):
+        # Deleted clients stay visible here so the owner can restore them.
+        return Client.all_objects.annotate(session_count=Count("sessions"))
+
+    @admin.display(description="Sessions", ordering="session_count")
+    def session_count(self, client):
+        return client.session_count
+
+    def has_delete_permission(self, request, obj=None):
+        # Erasing a client for good is for superusers; others mark clients deleted.
+        return request.user.is_superuser
+
+    def save_model(self, request, obj, form, change):
+        if not change and obj.created_by_id is None:
+            obj.created_by = request.user
+        super().save_model(request, obj, form, change)
+
+    @admin.action(description="Mark the selected clients as deleted")
+    def mark_deleted(self, request, queryset):
+        count = queryset.filter(is_deleted=False).update(is_deleted=True, deleted_at=timezone.now())
+        self.message_user(request, f"{count} client(s) marked as deleted.", messages.SUCCESS)
+
+    @admin.action(description="Restore the selected clients")
+    def restore(self, request, queryset):
+        count = queryset.filter(is_deleted=True).update(is_deleted=False, deleted_at=None)
+        self.message_user(request, f"{count} client(s) restored.", messages.SUCCESS)
+
+
+class MeasurementInline(admin.TabularInline):
+    model = Measurement
+    extra = 0
+
+
+@admin.register(MeasurementSession)
+class MeasurementSessionAdmin(admin.ModelAdmin):
+    list_display = ["client", "taken_on", "kind", "unit", "measured_by", "version"]
+    list_filter = ["kind", "unit", "taken_on"]
+    search_fields = ["client__reference", "client__name", "notes", "posture_notes"]
+    list_select_related = ["client", "measured_by"]
+    date_hierarchy = "taken_on"
+    readonly_fields = ["version", "created_at", "updated_at"]
+    autocomplete_fields = ["client"]
+    inlines = [MeasurementInline]
+
+
+@admin.register(Measurement)
+class MeasurementAdmin(admin.ModelAdmin):
+    list_display = ["session", "code", "value_mm"]
+    list_filter = ["code"]
+    search_fields = ["session__client__reference", "session__client__name"]
+    list_select_related = ["session", "session__client"]
+
+
+@admin.register(Photo)
+class PhotoAdmin(admin.ModelAdmin):
+    list_display = ["session", "view", "taken_at"]
+    list_filter = ["view"]
+    search_fields = ["session__client__reference", "session__client__name"]
+    list_select_related = ["session", "session__client"]
+
+    def get_fields(self, request, obj=None):
+        # A photo, once taken, is a record: show it through the private view.
+        return ["session", "view", "open_photo", "taken_at"] if obj else ["session", "view", "image", "taken_at"]
+
+    def get_readonly_fields(self, request, obj=None):
+        return ["session", "open_photo"] if obj else []
+
+    @admin.display(description="Photo")
+    def open_photo(self, photo):
+        return format_html('<a href="{}">Open the photo</a>', reverse("fittings:photo_file", args=[photo.pk]))
+
+
+class PlanRevisionInline(admin.TabularInline):
+    model = PlanRevision
+    extra = 0
+    fields = ["number", "status", "based_on", "author", "created_at", "issued_at", "issued_by"]
+    readonly_fields = fields
+    can_delete = False
+    show_change_link = True
+
+    def has_add_permission(self, request, obj=None):
+        return False
+
+    def has_change_permission(self, request, obj=None):
+        return False
+
+
+@admin.register(Plan)
+class PlanAdmin(admin.ModelAdmin):
+    list_display = ["garment", "client", "base_pattern", "session", "created_by", "created_at", "version"]
+    list_filter = ["base_pattern__garment", "created_at"]
+    search_fields = ["garment", "client__reference", "client__name"]
+    list_select_related = ["client", "base_pattern", "session", "created_by"]
+    readonly_fields = ["created_by", "created_at", "version"]
+    autocomplete_fields = ["client"]
+    inlines = [PlanRevisionInline]
+
+
+@admin.register(PlanRevision)
+class PlanRevisionAdmin(admin.ModelAdmin):
+    """Read only: revisions are made and issued by the app, never edited."""
+
+    list_display = ["plan", "number", "status", "author", "created_at", "issued_at"]
+    list_filter = ["status", "created_at", "issued_at"]
+    search_fields = ["plan__garment", "plan__client__reference", "plan__client__name"]
+    list_select_related = ["plan", "plan__client", "author"]
+
+    def has_add_permission(self, request):
+        return False
+
+    def has_change_permission(self, request, obj=None):
+        return False
+
+    def has_delete_permission(self, request, obj=None):
+        return False
+
+
+@admin.register(PinAdjustment)
+class PinAdjustmentAdmin(admin.ModelAdmin):
+    list_display = ["revision", "seam", "level", "amount_mm", "created_by", "created_at"]
+    list_filter = ["level", "created_at"]
+    search_fields = ["seam", "note", "revision__plan__client__reference", "revision__plan__client__name"]
+    list_select_related = ["revision", "revision__plan", "revision__plan__client", "created_by"]

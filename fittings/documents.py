@@ -1,0 +1,716 @@
+"""Printed documents for a plan revision: the work order and the 1:1 cutting sheet.
+
+Both are drawn by WeasyPrint from HTML templates in templates/fittings/print/
+and from the revision's stored inputs and result only, never recomputed
+another way, so printing an issued revision again gives the same pages.
+
+Two layers:
+
+- ``document_data(revision, base_url)`` reads the database once and returns
+  plain data (:class:`DocumentData`);
+- ``render_work_order(data, paper)`` and ``render_cutting_sheet(data, paper)``
+  draw from that plain data alone, with no database (the benchmark uses
+  them directly).
+
+``work_order_pdf`` and ``cutting_sheet_pdf`` join the two for a revision.
+
+Scale: the cutting sheet's tiles are inline SVG sized in CSS millimetres,
+which are absolute units (W3C CSS Values and Units Level 3, 5.2), with one
+SVG user unit to the millimetre; WeasyPrint writes them in PDF points of
+1/72 in (ISO 32000-1, 8.3.2.3).
+"""
+
+from __future__ import annotations
+
+import base64
+import functools
+import math
+import re
+from dataclasses import dataclass
+from datetime import date, datetime
+from xml.etree import ElementTree as ET
+
+import qrcode
+import qrcode.image.svg
+from django.conf import settings
+from django.template.loader import render_to_string
+from django.urls import NoReverseMatch, reverse
+from django.utils import timezone
+from shapely.geometry import Polygon
+
+from patterns.core.allot import Allotment, PlanOptions
+from patterns.core.block import Block
+from patterns.core.export import notch_segments, sheet_layout
+from patterns.core.findings import CAUTION, ERROR
+from patterns.core.measures import LEVEL_LABELS, MEASURES
+from patterns.core.outline import AlteredPattern, PanelOutline, alter_pattern
+from patterns.core.preview import markers_from_findings, preview_png
+from patterns.core.report import direction
+from patterns.core.tiling import PAGE_MARGIN_MM, TileGrid, paper_size, row_label, tile_grid, tile_label
+from patterns.core.units import UNIT_LABELS, format_length, format_with_unit
+
+WORK_ORDER, CUTTING_SHEET = "work_order", "cutting_sheet"
+
+# The picture of the altered pattern in the work order: enough for a
+# printed page (about 10 in wide in the figure), quicker to embed than 150 dpi.
+PREVIEW_DPI = 110
+# Panels on the cutting sheet: this far apart, and this far in from the
+# sheet's edge (mm).
+PANEL_GAP_MM = 10.0
+SHEET_MARGIN_MM = 5.0
+# Test squares: 10 cm, and 4 in = 101.6 mm (1 in = 25.4 mm exactly, 1959
+# international yard and pound agreement).  Checking one with a ruler before
+# cutting is common practice for printed patterns.
+TEST_SQUARES = (("cm", 100.0, "10 cm"), ("in", 101.6, "4 in"))
+SQUARE_PAD_MM = 1.0
+# Room on the cutting sheet's first page for the assembly map (mm).
+MAP_WIDTH_MM = 80.0
+MAP_HEIGHT_MM = 95.0
+# Colours of the drawn lines; black prints on every printer, the stitch
+# line is told apart by its dashes as well as its colour.
+CUT_COLOUR, STITCH_COLOUR, MARK_COLOUR, FRAME_COLOUR, OVERLAP_FILL = (
+    "#000000", "#0072B2", "#000000", "#808080", "#EBEBEB",
+)
+CUT_WIDTH_MM, STITCH_WIDTH_MM, FRAME_WIDTH_MM = 0.4, 0.3, 0.2
+STITCH_DASH = "3 1.5"
+NOTCH_WIDTH_MM = 0.4
+LABEL_HEIGHT_MM = 5.0
+# Labels farther than this from a tile are left off it (they could not show).
+LABEL_ROOM_MM = 80.0
+MARK_RADIUS_MM = 2.5
+# Drawn lines keep within this of the computed outline (far finer than the pen).
+DRAW_TOLERANCE_MM = 0.05
+FONT_FAMILY = "DejaVu Sans"
+
+# Shown whenever a plan reduces the waist; the fitter's and the client's
+# judgment come first (common practice).
+WAIST_REDUCTION_CAUTION = (
+    "Waist reduction: lacing a corset to reduce the waist restricts breathing and can injure. "
+    "Plan gradual wear, building up the hours and the reduction over weeks; check the client's comfort "
+    "at every fitting; loosen at once on pain, numbness, dizziness or shortness of breath. "
+    "The fitter's judgment and local practice come first."
+)
+SEVERITY_WORDS = {ERROR: "Problem", "warning": "Check", CAUTION: "Caution"}
+
+# Layers of fabric cut from each panel (common practice: a corset has an
+# outer fabric, a strength layer and a lining; a bodice an outer and a lining).
+CORSET_LAYERS = ("Outer fabric", "Strength layer", "Lining")
+BODICE_LAYERS = ("Outer fabric", "Lining")
+
+
+class DocumentError(ValueError):
+    """A revision that cannot be printed, with the reason in plain words."""
+
+
+@dataclass(frozen=True)
+class DocumentData:
+    """Everything the printed documents show, as plain data."""
+
+    atelier_name: str
+    client_label: str
+    garment: str
+    fitting_date: date | None
+    measured_by: str
+    revision_number: int
+    revision_status: str  # "draft" or "issued"
+    issued_at: datetime | None
+    issued_by: str
+    based_on: int | None
+    revision_url: str
+    measurements: dict[str, float]
+    block: Block
+    options: PlanOptions
+    result: Allotment
+
+    @property
+    def unit(self) -> str:
+        return self.result.unit
+
+    @property
+    def is_issued(self) -> bool:
+        return self.revision_status == "issued"
+
+
+# --- fonts ------------------------------------------------------------------------
+
+
+@functools.cache
+def font_config():
+    """WeasyPrint's font configuration, built once per process (it reads the machine's fonts)."""
+    from weasyprint.text.fonts import FontConfiguration
+
+    return FontConfiguration()
+
+
+@functools.cache
+def _url_fetcher():
+    """Only data: addresses: a document never reaches out to the network or the file system."""
+    from weasyprint.urls import URLFetcher
+
+    return URLFetcher(allowed_protocols=("data",))
+
+
+def html_to_pdf(html: str) -> bytes:
+    from weasyprint import HTML
+
+    return HTML(string=html, url_fetcher=_url_fetcher()).write_pdf(font_config=font_config())
+
+
+# --- reading a revision ---------------------------------------------------------------
+
+
+def _person(user) -> str:
+    if user is None:
+        return ""
+    return user.get_full_name() or user.get_username()
+
+
+def revision_path(plan_id: int, number: int) -> str:
+    """Where the app shows this revision: the revision page if the app has one, else the plan's print page."""
+    try:
+        return reverse("fittings:revision_detail", args=[plan_id, number])
+    except NoReverseMatch:
+        return reverse("fittings:print_start", args=[plan_id, number])
+
+
+def client_label(client) -> str:
+    """The client's reference; their full name too only where the atelier allows it on paper."""
+    if getattr(settings, "ATELIER_PRINT_CLIENT_NAME", False):
+        return f"{client.reference} {client.name}"
+    return client.reference
+
+
+def document_data(revision, base_url: str = "") -> DocumentData:
+    """Read a revision (with its plan, client and session) into plain data for printing."""
+    from fittings.services.plans import revision_inputs, revision_result
+
+    plan = revision.plan
+    session = plan.session
+    measurements, block, options = revision_inputs(revision)
+    result = revision_result(revision)
+    return DocumentData(
+        atelier_name=settings.ATELIER_NAME,
+        client_label=client_label(plan.client),
+        garment=plan.garment,
+        fitting_date=session.taken_on if session else None,
+        measured_by=_person(session.measured_by) if session else "",
+        revision_number=revision.number,
+        revision_status=revision.status,
+        issued_at=revision.issued_at,
+        issued_by=_person(revision.issued_by),
+        based_on=revision.based_on.number if revision.based_on_id else None,
+        revision_url=base_url.rstrip("/") + revision_path(plan.pk, revision.number),
+        measurements=dict(measurements),
+        block=block,
+        options=options,
+        result=result,
+    )
+
+
+def altered_pattern(data: DocumentData) -> AlteredPattern:
+    """The outlines the stored result gives for the stored block."""
+    return alter_pattern(data.block, data.result.alteration(data.block))
+
+
+def work_order_pdf(revision, paper: str, base_url: str) -> bytes:
+    return render_work_order(document_data(revision, base_url), paper)
+
+
+def cutting_sheet_pdf(revision, paper: str) -> bytes:
+    return render_cutting_sheet(document_data(revision), paper)
+
+
+# --- shared pieces ------------------------------------------------------------------
+
+
+def _paper_css(paper: str) -> str:
+    """The CSS name of the page size (CSS Paged Media: A4, letter)."""
+    return {"a4": "A4", "letter": "letter"}[paper_size(paper).code]
+
+
+def _header(data: DocumentData) -> dict:
+    status = "Issued" if data.is_issued else "Draft, not issued: do not cut from this copy"
+    return {
+        "atelier_name": data.atelier_name,
+        "client_label": data.client_label,
+        "garment": data.garment,
+        "fitting_date": data.fitting_date,
+        "measured_by": data.measured_by,
+        "pattern_name": data.block.name,
+        "size": data.block.size,
+        "revision_number": data.revision_number,
+        "revision_status": status,
+        "is_issued": data.is_issued,
+        "issued_at": timezone.localtime(data.issued_at) if data.issued_at else None,
+        "issued_by": data.issued_by,
+        "based_on": data.based_on,
+        "unit_label": "centimetres (to 1 mm)" if data.unit == "cm" else "inches (to 1/16 in)",
+        "unit": UNIT_LABELS[data.unit],
+    }
+
+
+def has_waist_reduction(data: DocumentData) -> bool:
+    return data.options.ease.get("waist", 0.0) < 0 or any(
+        lv.level == "waist" and lv.ease < 0 for lv in data.result.levels
+    )
+
+
+def cautions(data: DocumentData) -> list[str]:
+    """Cautions in words, for the top of both documents."""
+    found = [WAIST_REDUCTION_CAUTION] if has_waist_reduction(data) else []
+    found += [f.message for f in data.result.findings if f.severity == CAUTION]
+    return found
+
+
+# --- work order ---------------------------------------------------------------------
+
+
+def _qr_svg(url: str, size_mm: float = 30.0) -> str:
+    """The address as a QR code, inline SVG (four modules of quiet zone, as the QR standard asks)."""
+    image = qrcode.make(url, image_factory=qrcode.image.svg.SvgPathImage, border=4,
+                        error_correction=qrcode.constants.ERROR_CORRECT_M)
+    text = image.to_string(encoding="unicode")
+    text = re.sub(r'\swidth="[^"]*"', "", text, count=1)
+    text = re.sub(r'\sheight="[^"]*"', "", text, count=1)
+    return text.replace("<svg ", f'<svg width="{size_mm:g}mm" height="{size_mm:g}mm" ', 1)
+
+
+def _fmt(mm, unit, signed=False) -> str:
+    return "–" if mm is None else format_length(mm, unit, signed=signed)
+
+
+def shift_words(mm: float, unit: str) -> str:
+    """'let out 0.4', 'take in 3/16', 'no change': a shift in the workroom's words."""
+    if format_length(abs(mm), unit) in ("0.0", "0"):
+        return "no change"
+    return f"{direction(mm)} {format_length(abs(mm), unit)}"
+
+
+def measurement_rows(data: DocumentData) -> list[dict]:
+    unit = data.unit
+    return [
+        {"label": m.label, "value": format_length(data.measurements[m.code], unit)}
+        for m in MEASURES if data.measurements.get(m.code) is not None
+    ]
+
+
+def _pairs(rows: list) -> list[list]:
+    return [rows[i:i + 2] for i in range(0, len(rows), 2)]
+
+
+def level_rows(data: DocumentData) -> list[dict]:
+    unit = data.unit
+    rows = []
+    for lv in data.result.levels:
+        rows.append({
+            "label": LEVEL_LABELS.get(lv.level, lv.level),
+            "body": _fmt(lv.body, unit),
+            "ease": _fmt(lv.ease, unit, signed=True),
+            "ease_word": "reduction" if lv.ease < 0 else ("ease" if lv.ease > 0 else ""),
+            "gap": _fmt(lv.lacing_gap, unit) if lv.lacing_gap else "–",
+            "target": _fmt(lv.target, unit),
+            "pattern": _fmt(lv.pattern, unit),
+            "difference": _fmt(lv.difference, unit, signed=True),
+            "seams": _fmt(lv.allotted + lv.centre_front, unit, signed=True),
+            "pinned": _fmt(lv.pinned, unit, signed=True) if lv.pinned else "–",
+            "residual": _fmt(lv.residual, unit, signed=True),
+        })
+    return rows
+
+
+def shift_rows(data: DocumentData) -> list[dict]:
+    """One row per raw edge, one cell per level, in the plan's unit and in words."""
+    unit = data.unit
+    by_key = {(s.seam, s.level, s.panel): s for s in data.result.shifts}
+    rows = []
+    for seam in data.block.seams:
+        for panel in (seam.front_panel, seam.back_panel):
+            cells = []
+            for level in data.block.level_names:
+                edge = by_key.get((seam.name, level, panel))
+                if edge is None:
+                    cells.append({"text": "–", "note": ""})
+                    continue
+                note = "set by hand" if edge.fixed else ("with pins" if edge.pin_mm else "")
+                cells.append({"text": shift_words(edge.shift_mm, unit), "note": note,
+                              "kind": "out" if edge.shift_mm > 0 else ("in" if edge.shift_mm < 0 else "")})
+            rows.append({"seam": seam.name, "panel": panel, "cells": cells})
+    return rows
+
+
+def pin_rows(data: DocumentData) -> list[dict]:
+    unit = data.unit
+    rows = []
+    for pin in data.options.pins:
+        edges = [s for s in data.result.shifts if s.seam == pin.seam and s.level == pin.level and s.pin_mm]
+        rows.append({
+            "seam": pin.seam,
+            "level": LEVEL_LABELS.get(pin.level, pin.level),
+            "amount": shift_words(pin.amount_mm, unit),
+            "edges": "; ".join(f"{s.panel}: {shift_words(s.pin_mm, unit)}" for s in edges),
+        })
+    return rows
+
+
+def band_rows(data: DocumentData) -> list[str]:
+    unit = data.unit
+    rows = []
+    for b in data.result.bands:
+        if format_length(abs(b.change_mm), unit) in ("0.0", "0"):
+            continue
+        word = "lengthen" if b.change_mm > 0 else "shorten"
+        rows.append(f"{LEVEL_LABELS.get(b.upper, b.upper)} to {LEVEL_LABELS.get(b.lower, b.lower)}: "
+                    f"{word} by {format_with_unit(abs(b.change_mm), unit)}")
+    return rows
+
+
+def finding_rows(data: DocumentData, pattern: AlteredPattern) -> list[dict]:
+    rows = [{"severity": SEVERITY_WORDS.get(f.severity, f.severity), "message": f.message}
+            for f in data.result.findings if f.severity != CAUTION]
+    rows += [{"severity": SEVERITY_WORDS.get(f.severity, f.severity), "message": f.message}
+             for f in pattern.findings]
+    return rows
+
+
+def cut_rows(data: DocumentData) -> tuple[tuple[str, ...], list[dict]]:
+    layers = CORSET_LAYERS if "corset" in data.block.garment.lower() else BODICE_LAYERS
+    rows = []
+    for panel in data.block.panels:
+        count = f"{panel.cut_count} on the fold" if panel.on_fold else (
+            f"{panel.cut_count} (a mirrored pair)" if panel.cut_count == 2 else str(panel.cut_count))
+        rows.append({"panel": panel.name, "count": count, "layers": [count for _ in layers]})
+    return layers, rows
+
+
+def _preview_data_uri(data: DocumentData, pattern: AlteredPattern) -> str:
+    png = preview_png(data.block, data.result.alteration(data.block), markers_from_findings(pattern.findings),
+                      unit=data.unit, pattern=pattern, dpi=PREVIEW_DPI)
+    return "data:image/png;base64," + base64.b64encode(png).decode("ascii")
+
+
+def work_order_html(data: DocumentData, paper: str, pattern: AlteredPattern | None = None) -> str:
+    pattern = pattern or altered_pattern(data)
+    layers, cuts = cut_rows(data)
+    context = {
+        **_header(data),
+        "paper": _paper_css(paper),
+        "title": f"Work order, {data.garment}, revision {data.revision_number}",
+        "qr": svg_data_uri(_qr_svg(data.revision_url)) if data.revision_url else "",
+        "revision_url": data.revision_url,
+        "cautions": cautions(data),
+        "measurements": _pairs(measurement_rows(data)),
+        "levels": level_rows(data),
+        "level_names": [LEVEL_LABELS.get(lv, lv) for lv in data.block.level_names],
+        "shifts": shift_rows(data),
+        "centre_front": (shift_words(data.result.centre_front_shift_mm, data.unit)
+                         if data.result.centre_front_shift_mm else ""),
+        "bands": band_rows(data),
+        "pins": pin_rows(data),
+        "findings": finding_rows(data, pattern),
+        "preview": _preview_data_uri(data, pattern),
+        "layers": layers,
+        "cuts": cuts,
+        "lacing_gap": format_with_unit(data.options.lacing_gap_mm, data.unit) if data.result.levels
+        and data.result.levels[0].lacing_gap else "",
+        "seam_allowance": format_with_unit(data.block.seam_allowance_mm, data.unit),
+    }
+    return render_to_string("fittings/print/work_order.html", context)
+
+
+def render_work_order(data: DocumentData, paper: str, pattern: AlteredPattern | None = None) -> bytes:
+    return html_to_pdf(work_order_html(data, paper, pattern))
+
+
+# --- cutting sheet: drawing -------------------------------------------------------------
+
+
+_NUM_TRIM = re.compile(r"\.?0+$")
+
+
+def _n(value: float) -> str:
+    """A number for SVG: three decimals (a micrometre), no trailing zeros."""
+    text = f"{value:.3f}"
+    text = _NUM_TRIM.sub("", text) if "." in text else text
+    return "0" if text in ("-0", "") else text
+
+
+def _d(points, closed: bool) -> str:
+    head, *rest = points
+    d = f"M{_n(head[0])} {_n(head[1])}" + "".join(f"L{_n(x)} {_n(y)}" for x, y in rest)
+    return d + ("Z" if closed else "")
+
+
+def _grain_d(grain) -> str:
+    """The grainline with an arrowhead at each end."""
+    (x0, y0), (x1, y1) = grain
+    length = math.hypot(x1 - x0, y1 - y0) or 1.0
+    ux, uy = (x1 - x0) / length, (y1 - y0) / length
+    head, spread = 6.0, math.radians(25)
+
+    def barb(px, py, dx, dy, sign):
+        c, s = math.cos(sign * spread), math.sin(sign * spread)
+        return px + head * (c * dx - s * dy), py + head * (s * dx + c * dy)
+
+    parts = [_d([(x0, y0), (x1, y1)], False)]
+    for px, py, dx, dy in ((x0, y0, ux, uy), (x1, y1, -ux, -uy)):
+        parts.append(_d([barb(px, py, dx, dy, 1), (px, py), barb(px, py, dx, dy, -1)], False))
+    return "".join(parts)
+
+
+def _bounds(points) -> tuple[float, float, float, float]:
+    xs, ys = [p[0] for p in points], [p[1] for p in points]
+    return min(xs), min(ys), max(xs), max(ys)
+
+
+@dataclass(frozen=True)
+class SheetPiece:
+    """One panel placed on the sheet: its lines (thinned for drawing) and where it sits (a translation)."""
+
+    outline: PanelOutline
+    dx: float
+    dy: float
+    cutting: tuple
+    stitch: tuple
+
+    @property
+    def bounds(self) -> tuple[float, float, float, float]:
+        x0, y0, x1, y1 = _bounds(self.outline.cutting)
+        return x0 + self.dx, y0 + self.dy, x1 + self.dx, y1 + self.dy
+
+
+@dataclass(frozen=True)
+class Sheet:
+    pieces: tuple[SheetPiece, ...]
+    width_mm: float
+    height_mm: float
+
+
+def _thin(points, tolerance_mm: float = DRAW_TOLERANCE_MM) -> tuple:
+    """A closed outline with the points that add nothing at ``tolerance_mm`` dropped (Douglas-Peucker)."""
+    ring = Polygon(points).exterior.simplify(tolerance_mm, preserve_topology=False)
+    return tuple(ring.coords)[:-1]
+
+
+def lay_out(pattern: AlteredPattern) -> Sheet:
+    """The altered panels side by side, centre front first, tops level."""
+    layout = sheet_layout(pattern.altered, gap_mm=PANEL_GAP_MM, margin_mm=SHEET_MARGIN_MM)
+    pieces = tuple(SheetPiece(o, dx, dy, _thin(o.cutting), _thin(o.stitch))
+                   for o, (dx, dy) in zip(pattern.altered, layout.offsets))
+    return Sheet(pieces, layout.width_mm, layout.height_mm)
+
+
+def _line(parent, d: str, colour: str, width: float, **extra) -> ET.Element:
+    attrs = {"d": d, "fill": "none", "stroke": colour, "stroke-width": _n(width),
+             "stroke-linejoin": "round", "stroke-linecap": "round"}
+    attrs.update({k.replace("_", "-"): v for k, v in extra.items()})
+    return ET.SubElement(parent, "path", attrs)
+
+
+def _text(parent, x, y, text, size, *, anchor="start", weight="normal", colour="#000000", rotate=None, cls=None):
+    attrs = {"x": _n(x), "y": _n(y), "font-size": _n(size), "font-family": FONT_FAMILY, "fill": colour,
+             "text-anchor": anchor}
+    if weight != "normal":
+        attrs["font-weight"] = weight
+    if rotate is not None:
+        attrs["transform"] = f"rotate({_n(rotate)} {_n(x)} {_n(y)})"
+    if cls:
+        attrs["class"] = cls
+    el = ET.SubElement(parent, "text", attrs)
+    el.text = text
+    return el
+
+
+def _draw_piece(parent, piece: SheetPiece, area=None) -> None:
+    o = piece.outline
+    g = ET.SubElement(parent, "g", {"class": "panel", "transform": f"translate({_n(piece.dx)} {_n(piece.dy)})"})
+    _line(g, _d(piece.cutting, True), CUT_COLOUR, CUT_WIDTH_MM, **{"class": "cut"})
+    _line(g, _d(piece.stitch, True), STITCH_COLOUR, STITCH_WIDTH_MM, stroke_dasharray=STITCH_DASH, **{"class": "stitch"})
+    notches = "".join(_d(segment, False) for segment in notch_segments(o))
+    if notches:
+        _line(g, notches, MARK_COLOUR, NOTCH_WIDTH_MM, **{"class": "notch"})
+    _line(g, _grain_d(o.grainline), MARK_COLOUR, 0.3, **{"class": "grain"})
+    x, y = o.label_at
+    step = 1.4 * LABEL_HEIGHT_MM
+    lines = list(o.labels) + (["place on fold"] if o.on_fold else [])
+    for i, text in enumerate(lines):
+        if area is not None and not _overlaps(
+            (x + piece.dx - LABEL_ROOM_MM, y + piece.dy - LABEL_ROOM_MM, x + piece.dx + LABEL_ROOM_MM,
+             y + piece.dy + LABEL_ROOM_MM), area):
+            continue
+        _text(g, x + 2 + LABEL_HEIGHT_MM + i * step, y, text, LABEL_HEIGHT_MM, anchor="middle",
+              weight="bold" if i == 0 else "normal", rotate=-90)
+
+
+def _alignment_marks(parent, grid: TileGrid, area=None) -> None:
+    """A circle with a cross in the middle of the overlap strips, twice along every shared edge.
+
+    Marks are drawn in sheet coordinates, so the same mark prints on every
+    tile that shares it; laying one tile over the other until the marks
+    coincide puts the pages together.
+    """
+    marks = []
+    for x in grid.column_joins():
+        for row in range(grid.rows):
+            marks += [(x, row * grid.step_y_mm + share * grid.printable_height_mm) for share in (0.3, 0.7)]
+    for y in grid.row_joins():
+        for col in range(grid.columns):
+            marks += [(col * grid.step_x_mm + share * grid.printable_width_mm, y) for share in (0.3, 0.7)]
+    if area is not None:
+        x0, y0, x1, y1 = area
+        marks = [(x, y) for x, y in marks if x0 - MARK_RADIUS_MM <= x <= x1 + MARK_RADIUS_MM
+                 and y0 - MARK_RADIUS_MM <= y <= y1 + MARK_RADIUS_MM]
+    arm = MARK_RADIUS_MM + 1
+    d = "".join(f"M{_n(x - arm)} {_n(y)}L{_n(x + arm)} {_n(y)}M{_n(x)} {_n(y - arm)}L{_n(x)} {_n(y + arm)}"
+                for x, y in marks)
+    if d:
+        _line(parent, d, MARK_COLOUR, 0.25, **{"class": "align"})
+    for x, y in marks:
+        ET.SubElement(parent, "circle", {"cx": _n(x), "cy": _n(y), "r": _n(MARK_RADIUS_MM), "fill": "none",
+                                         "stroke": MARK_COLOUR, "stroke-width": "0.25"})
+
+
+def neighbours(grid: TileGrid, row: int, column: int) -> str:
+    """'left A1, right A3, below B2': the tiles that share an edge with this one."""
+    found = []
+    for word, r, c in (("above", row - 1, column), ("left", row, column - 1), ("right", row, column + 1),
+                       ("below", row + 1, column)):
+        if 0 <= r < grid.rows and 0 <= c < grid.columns:
+            found.append(f"{word} {tile_label(r, c)}")
+    return ", ".join(found)
+
+
+def _overlap_strips(parent, grid: TileGrid) -> None:
+    height = grid.rows * grid.step_y_mm + grid.overlap_mm
+    width = grid.columns * grid.step_x_mm + grid.overlap_mm
+    for x in grid.column_joins():
+        ET.SubElement(parent, "rect", {"class": "overlap", "x": _n(x - grid.overlap_mm / 2), "y": "0",
+                                       "width": _n(grid.overlap_mm), "height": _n(height),
+                                       "fill": OVERLAP_FILL, "stroke": "none"})
+    for y in grid.row_joins():
+        ET.SubElement(parent, "rect", {"class": "overlap", "x": "0", "y": _n(y - grid.overlap_mm / 2),
+                                       "width": _n(width), "height": _n(grid.overlap_mm),
+                                       "fill": OVERLAP_FILL, "stroke": "none"})
+
+
+def _overlaps(a, b) -> bool:
+    ax0, ay0, ax1, ay1 = a
+    bx0, by0, bx1, by1 = b
+    return ax0 <= bx1 and bx0 <= ax1 and ay0 <= by1 and by0 <= ay1
+
+
+def svg_data_uri(svg: str) -> str:
+    """An SVG as a data: address; WeasyPrint reads it with an XML parser, far quicker than inline in HTML."""
+    return "data:image/svg+xml;base64," + base64.b64encode(svg.encode("utf-8")).decode("ascii")
+
+
+def _svg_root(width_mm: float, height_mm: float, viewbox: tuple[float, float, float, float], cls: str) -> ET.Element:
+    return ET.Element("svg", {
+        "xmlns": "http://www.w3.org/2000/svg", "class": cls,
+        "width": f"{_n(width_mm)}mm", "height": f"{_n(height_mm)}mm",
+        "viewBox": " ".join(_n(v) for v in viewbox),
+    })
+
+
+def tile_svg(sheet: Sheet, grid: TileGrid, row: int, column: int) -> str:
+    """One page's share of the sheet, at true size: one SVG unit = 1 mm."""
+    tile = grid.tile(row, column)
+    w, h = tile.width_mm, tile.height_mm
+    root = _svg_root(w, h, (tile.x_mm, tile.y_mm, w, h), "tile")
+    _overlap_strips(root, grid)
+    area = (tile.x_mm, tile.y_mm, tile.x_mm + w, tile.y_mm + h)
+    for piece in sheet.pieces:
+        if _overlaps(piece.bounds, area):
+            _draw_piece(root, piece, area)
+    _alignment_marks(root, grid, area)
+    ET.SubElement(root, "rect", {"class": "frame", "x": _n(tile.x_mm), "y": _n(tile.y_mm), "width": _n(w),
+                                 "height": _n(h), "fill": "none", "stroke": FRAME_COLOUR,
+                                 "stroke-width": _n(FRAME_WIDTH_MM)})
+    lx = tile.x_mm + (grid.overlap_mm if column else 0) + 3
+    ly = tile.y_mm + (grid.overlap_mm if row else 0) + 3
+    _text(root, lx, ly + 8, tile.label, 9, weight="bold", colour="#505050", cls="tile-label")
+    info = f"row {row_label(row)}, column {column + 1}"
+    if grid.count > 1:
+        info += f"; {neighbours(grid, row, column)}"
+    _text(root, lx, ly + 13, info, 3.2, colour="#505050")
+    return ET.tostring(root, encoding="unicode")
+
+
+def square_svg(side_mm: float, name: str) -> str:
+    """A test square of ``side_mm``, labelled, with ticks every tenth of its side."""
+    pad = SQUARE_PAD_MM
+    root = _svg_root(side_mm + 2 * pad, side_mm + 2 * pad, (-pad, -pad, side_mm + 2 * pad, side_mm + 2 * pad),
+                     "test-square")
+    ET.SubElement(root, "rect", {"class": "square", "x": "0", "y": "0", "width": _n(side_mm), "height": _n(side_mm),
+                                 "fill": "none", "stroke": "#000000", "stroke-width": "0.3"})
+    ticks = "".join(f"M{_n(side_mm * i / 10)} 0L{_n(side_mm * i / 10)} {3 if i % 5 else 5}" for i in range(1, 10))
+    _line(root, ticks, "#000000", 0.2)
+    _text(root, side_mm / 2, side_mm / 2 - 3, f"{name} test square", 5, anchor="middle", weight="bold")
+    _text(root, side_mm / 2, side_mm / 2 + 5, f"must measure {name} each way", 3.5, anchor="middle")
+    return ET.tostring(root, encoding="unicode")
+
+
+def map_svg(sheet: Sheet, grid: TileGrid, max_width_mm: float = MAP_WIDTH_MM,
+            max_height_mm: float = MAP_HEIGHT_MM) -> str:
+    """The assembly map: the whole sheet small, with every tile's place and name."""
+    total_w = grid.columns * grid.step_x_mm + grid.overlap_mm
+    total_h = grid.rows * grid.step_y_mm + grid.overlap_mm
+    scale = min(max_width_mm / total_w, max_height_mm / total_h)
+    root = _svg_root(total_w * scale, total_h * scale, (0, 0, total_w, total_h), "assembly-map")
+    for piece in sheet.pieces:
+        g = ET.SubElement(root, "g", {"transform": f"translate({_n(piece.dx)} {_n(piece.dy)})"})
+        _line(g, _d(_thin(piece.cutting, 0.5), True), "#606060", 0.3 / scale)
+    for tile in grid.tiles():
+        ET.SubElement(root, "rect", {"x": _n(tile.x_mm), "y": _n(tile.y_mm), "width": _n(tile.width_mm),
+                                     "height": _n(tile.height_mm), "fill": "none", "stroke": "#000000",
+                                     "stroke-width": _n(0.3 / scale)})
+        _text(root, tile.x_mm + tile.width_mm / 2, tile.y_mm + tile.height_mm / 2 + 1.5 / scale, tile.label,
+              4.5 / scale, anchor="middle", weight="bold")
+    return ET.tostring(root, encoding="unicode")
+
+
+def sheet_grid(pattern: AlteredPattern, paper: str) -> tuple[Sheet, TileGrid]:
+    sheet = lay_out(pattern)
+    return sheet, tile_grid(sheet.width_mm, sheet.height_mm, paper, margin_mm=PAGE_MARGIN_MM)
+
+
+def cutting_sheet_html(data: DocumentData, paper: str, pattern: AlteredPattern | None = None) -> str:
+    pattern = pattern or altered_pattern(data)
+    sheet, grid = sheet_grid(pattern, paper)
+    tiles = [{"label": t.label, "src": svg_data_uri(tile_svg(sheet, grid, t.row, t.column)),
+              "width": _n(t.width_mm), "height": _n(t.height_mm)} for t in grid.tiles()]
+    map_text = map_svg(sheet, grid)
+    map_size = re.search(r'width="([0-9.]+)mm" height="([0-9.]+)mm"', map_text)
+    context = {
+        **_header(data),
+        "paper": _paper_css(paper),
+        "paper_label": grid.paper.label,
+        "orientation": grid.orientation,
+        "margin_mm": _n(grid.margin_mm),
+        "title": f"Cutting sheet, {data.garment}, revision {data.revision_number}",
+        "squares": [{"name": name, "src": svg_data_uri(square_svg(side, name)), "size": _n(side + 2 * SQUARE_PAD_MM)}
+                    for _, side, name in TEST_SQUARES],
+        "map": svg_data_uri(map_text),
+        "map_width": map_size[1],
+        "map_height": map_size[2],
+        "rows": grid.rows,
+        "columns": grid.columns,
+        "tile_count": grid.count,
+        "overlap": format_with_unit(grid.overlap_mm, data.unit),
+        "seam_allowance": format_with_unit(data.block.seam_allowance_mm, data.unit),
+        "tiles": tiles,
+        "tile_width": _n(grid.printable_width_mm),
+        "tile_height": _n(grid.printable_height_mm),
+        "cautions": cautions(data),
+    }
+    return render_to_string("fittings/print/cutting_sheet.html", context)
+
+
+def render_cutting_sheet(data: DocumentData, paper: str, pattern: AlteredPattern | None = None) -> bytes:
+    return html_to_pdf(cutting_sheet_html(data, paper, pattern))
+
+
+def check_printable(data: DocumentData) -> None:
+    """Refuse a plan the engine found errors in: the workroom must not cut from it."""
+    errors = [f.message for f in data.result.findings if f.severity == ERROR]
+    if errors:
+        raise DocumentError("This revision has problems to resolve before it can be printed: " + " ".join(errors))

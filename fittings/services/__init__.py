@@ -1,0 +1,1 @@
+"""Writes for clients, sessions and plans (HackSoft-style services), one module per subject."""

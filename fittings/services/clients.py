@@ -1,0 +1,94 @@
+"""Writes for clients and their measurement sessions.
+
+A session is saved whole or not at all.  Two tablets editing one session
+are told apart by its ``version``: the second save is refused, and the
+first one's readings stay as they were.
+"""
+
+import io
+
+from django.core.files.base import ContentFile
+from django.db import transaction
+from django.db.models import F
+from django.utils import timezone
+from PIL import Image, ImageOps
+
+from fittings.models import Client, Measurement, MeasurementSession, Photo, PhotoView
+from patterns.core.measures import MEASURES
+
+
+class ConcurrentEdit(Exception):
+    """Someone else saved this first; nothing was overwritten."""
+
+
+def today():
+    return timezone.localdate()
+
+
+@transaction.atomic
+def create_client(*, user, reference, name, contact="", notes="", consent_given_on=None) -> Client:
+    return Client.objects.create(
+        reference=reference, name=name, contact=contact, notes=notes, consent_given_on=consent_given_on,
+        created_by=user,
+    )
+
+
+@transaction.atomic
+def soft_delete_client(*, client: Client, user) -> None:
+    client.is_deleted = True
+    client.deleted_at = timezone.now()
+    client.save(update_fields=["is_deleted", "deleted_at", "updated_at"])
+
+
+def clean_photo(upload) -> ContentFile:
+    """The picture re-encoded from its pixels: upright, and without EXIF (so no location) or other metadata."""
+    upload.seek(0)
+    with Image.open(upload) as image:
+        image = ImageOps.exif_transpose(image)
+        if image.mode not in ("RGB", "L"):
+            image = image.convert("RGB")
+        out = io.BytesIO()
+        image.save(out, format="JPEG", quality=88)
+    return ContentFile(out.getvalue(), name="photo.jpg")
+
+
+def _save_photos(session, form_data):
+    for view in PhotoView:
+        upload = form_data.get(f"photo_{view.value}")
+        if upload:
+            Photo.objects.create(session=session, view=view.value, image=clean_photo(upload))
+
+
+def _session_fields(form_data):
+    return {
+        "taken_on": form_data["taken_on"], "kind": form_data["kind"], "unit": form_data["unit"],
+        "posture_notes": form_data.get("posture_notes", ""), "notes": form_data.get("notes", ""),
+    }
+
+
+@transaction.atomic
+def record_session(*, client: Client, user, form_data: dict, values: dict) -> MeasurementSession:
+    session = MeasurementSession.objects.create(client=client, measured_by=user, **_session_fields(form_data))
+    Measurement.objects.bulk_create([Measurement(session=session, code=code, value_mm=mm) for code, mm in values.items()])
+    _save_photos(session, form_data)
+    return session
+
+
+@transaction.atomic
+def update_session(*, session: MeasurementSession, user, form_data: dict, values: dict, expected_version: int):
+    """Replace the session's readings, if nobody saved it since ``expected_version``."""
+    updated = MeasurementSession.objects.filter(pk=session.pk, version=expected_version).update(
+        version=F("version") + 1, updated_at=timezone.now(), **_session_fields(form_data),
+    )
+    if not updated:
+        raise ConcurrentEdit(
+            "Someone else saved these measurements while you were editing them. Your readings were not saved; "
+            "theirs are kept. Reload to see them, then enter yours again."
+        )
+    session.refresh_from_db()
+    codes = {m.code for m in MEASURES}
+    session.measurements.filter(code__in=codes - set(values)).delete()
+    for code, mm in values.items():
+        Measurement.objects.update_or_create(session=session, code=code, defaults={"value_mm": mm})
+    _save_photos(session, form_data)
+    return session

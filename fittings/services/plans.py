@@ -1,0 +1,193 @@
+"""Plans and their revisions: where the stored rows meet the allotment engine.
+
+Every save appends a revision holding the whole fitting file (inputs) and
+the engine's answer (result).  Two tablets editing one plan are told apart
+by the plan's ``version``: a save names the version it started from, and
+is refused when another save came first.
+"""
+
+from dataclasses import dataclass, replace
+
+from django.db import transaction
+from django.db.models import F
+from django.utils import timezone
+
+from fittings.models import PinAdjustment, Plan, PlanRevision, RevisionStatus
+from patterns.core.allot import Allotment, PlanOptions, allot, suggest_size
+from patterns.core.allot import PinAdjustment as Pin
+from patterns.core.block import CB_LACED, Block
+from patterns.core.fitting import (
+    allotment_from_dict, block_from_dict, body_from_measurements, fitting_to_dict, options_from_dict, result_to_json,
+)
+from patterns.core.units import DEFAULT_STEP_MM
+from patterns.selectors import block_for
+
+# Common practice: a corset sits close at bust and hip and reduces the
+# waist; 5 cm is a gentle first reduction.  A bodice block has its ease
+# drafted in already.
+CORSET_EASE_MM = {"bust": -20.0, "underbust": -20.0, "waist": -50.0, "abdomen": -20.0, "hip": 0.0}
+LACING_GAP_MM = 50.0
+
+
+class ConcurrentEdit(Exception):
+    """Someone else saved this first; nothing was overwritten."""
+
+
+class RevisionIssued(Exception):
+    """An issued revision cannot be edited."""
+
+
+def session_values(session) -> dict[str, float]:
+    """The session's readings in mm, keyed by measurement code (uses prefetched rows)."""
+    return {m.code: float(m.value_mm) for m in session.measurements.all()}
+
+
+def default_options(block: Block, unit: str) -> PlanOptions:
+    corset = "corset" in block.garment
+    return PlanOptions(
+        ease={lv: CORSET_EASE_MM.get(lv, 0.0) for lv in block.level_names} if corset else {lv: 0.0 for lv in block.level_names},
+        lacing_gap_mm=LACING_GAP_MM if block.centre_back == CB_LACED else 0.0,
+        step_mm=DEFAULT_STEP_MM[unit],
+        unit=unit,
+    )
+
+
+def compute(block: Block, values: dict[str, float], options: PlanOptions) -> Allotment:
+    return allot(block, body_from_measurements(values), options)
+
+
+def revision_inputs(revision: PlanRevision) -> tuple[dict[str, float], Block, PlanOptions]:
+    data = revision.inputs
+    unit = data.get("unit", "cm")
+    return data["measurements"], block_from_dict(data["pattern"]), options_from_dict(data.get("plan", {}), unit)
+
+
+def revision_result(revision: PlanRevision) -> Allotment:
+    return allotment_from_dict(revision.result)
+
+
+def latest_revision(plan: Plan) -> PlanRevision | None:
+    return plan.revisions.order_by("-number").first()
+
+
+def _append(plan: Plan, block: Block, values: dict, options: PlanOptions, user, based_on=None) -> PlanRevision:
+    result = compute(block, values, options)
+    meta = {"client": plan.client.reference, "garment": plan.garment}
+    number = (plan.revisions.order_by("-number").values_list("number", flat=True).first() or 0) + 1
+    return PlanRevision.objects.create(
+        plan=plan, number=number, based_on=based_on,
+        inputs=fitting_to_dict(values, block, options, meta=meta),
+        result=result_to_json(result), author=user,
+    )
+
+
+@transaction.atomic
+def start_plan(*, client, session, pattern, garment: str, user, options: PlanOptions | None = None,
+               based_on: PlanRevision | None = None) -> Plan:
+    """A new plan with its first draft revision.
+
+    Starting from an earlier revision carries its options into the new
+    plan, measured against the new session.
+    """
+    block = block_for(pattern)
+    if options is None and based_on is not None:
+        options = revision_inputs(based_on)[2]
+        options = replace(options, overrides=tuple(o for o in options.overrides if _has_edge(block, o)), pins=())
+    if options is None:
+        options = default_options(block, session.unit)
+    plan = Plan.objects.create(client=client, session=session, base_pattern=pattern, garment=garment, created_by=user)
+    _append(plan, block, session_values(session), options, user)
+    return plan
+
+
+def _has_edge(block: Block, override) -> bool:
+    return any(
+        s.name == override.seam and override.panel in (s.front_panel, s.back_panel) and override.level in block.level_names
+        for s in block.seams
+    )
+
+
+@transaction.atomic
+def save_revision(*, plan: Plan, options: PlanOptions, user, expected_version: int) -> PlanRevision:
+    """Append a revision with new options, if nobody saved this plan since ``expected_version``."""
+    if not Plan.objects.filter(pk=plan.pk, version=expected_version).update(version=F("version") + 1):
+        raise ConcurrentEdit(
+            "Someone saved this plan while you were working on it. Your changes were not saved; "
+            "their revision is kept. Reload the plan to see it, then make your changes again."
+        )
+    plan.refresh_from_db(fields=["version"])
+    latest = latest_revision(plan)
+    block = block_for(plan.base_pattern)
+    return _append(plan, block, session_values(plan.session), options, user, based_on=latest)
+
+
+@transaction.atomic
+def issue_revision(*, revision: PlanRevision, user) -> PlanRevision:
+    """Lock a draft for the workroom.  Issuing an issued revision changes nothing."""
+    revision = PlanRevision.objects.select_for_update().get(pk=revision.pk)
+    if revision.status == RevisionStatus.ISSUED:
+        return revision
+    revision.status = RevisionStatus.ISSUED
+    revision.issued_at = timezone.now()
+    revision.issued_by = user
+    revision.save()
+    return revision
+
+
+@transaction.atomic
+def revision_with_pins(*, revision: PlanRevision, user, expected_version: int) -> PlanRevision:
+    """The next revision: the tried-on revision's options plus the pins recorded against it."""
+    plan = revision.plan
+    values, block, options = revision_inputs(revision)
+    pins = tuple(Pin(p.seam, p.level, float(p.amount_mm)) for p in revision.pins.all())
+    options = replace(options, pins=options.pins + pins)
+    if not Plan.objects.filter(pk=plan.pk, version=expected_version).update(version=F("version") + 1):
+        raise ConcurrentEdit("Someone saved this plan while you were recording pins. Reload and try again.")
+    return _append(plan, block, values, options, user, based_on=revision)
+
+
+@dataclass(frozen=True)
+class Suggestion:
+    pattern_pk: int
+    label: str
+    reason: str
+    largest_edge_mm: float
+    total_edges_mm: float
+    errors: int
+
+
+def suggestions_for_session(session, patterns) -> list[Suggestion]:
+    """For every run of base patterns, its sizes ranked for this session's readings, best first.
+
+    The suggestions of all runs are merged, best first, so the page can
+    offer the overall best size at the top and say why.
+    """
+    values = session_values(session)
+    patterns = list(patterns.prefetch_related("levels", "panels__lines", "seams"))
+    runs: dict[object, list] = {}
+    for pattern in patterns:
+        runs.setdefault(pattern.size_run_id or f"single-{pattern.pk}", []).append(pattern)
+    out = []
+    for members in runs.values():
+        blocks = {p.pk: block_for(p) for p in members}
+        pattern_of = {id(block): pk for pk, block in blocks.items()}
+        first = blocks[members[0].pk]
+        options = default_options(first, session.unit)
+        for choice in suggest_size(list(blocks.values()), body_from_measurements(values), options):
+            pk = pattern_of[id(choice.block)]
+            out.append(Suggestion(
+                pattern_pk=pk, label=f"{choice.block.name}, size {choice.block.size}",
+                reason=choice.reason, largest_edge_mm=choice.largest_edge_mm,
+                total_edges_mm=choice.total_edges_mm, errors=choice.errors,
+            ))
+    out.sort(key=lambda s: (s.errors, not s.reason, s.largest_edge_mm, s.total_edges_mm))
+    return out
+
+
+@transaction.atomic
+def record_pins(*, revision: PlanRevision, pins, note: str, user) -> list[PinAdjustment]:
+    """Keep what was pinned at a toile fitting of ``revision``: (seam, level, amount in mm) each."""
+    return PinAdjustment.objects.bulk_create([
+        PinAdjustment(revision=revision, seam=seam, level=level, amount_mm=amount, note=note, created_by=user)
+        for seam, level, amount in pins
+    ])

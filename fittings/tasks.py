@@ -1,0 +1,111 @@
+"""Printing in the background, through Django's tasks framework.
+
+``start_print`` (a write: it issues a draft revision and queues a job) is
+called by the view; ``render_print_job`` runs in a worker (``manage.py
+db_worker`` with ATELIER_TASKS=db) or at once (ImmediateBackend, in
+development and tests), so no web worker waits for WeasyPrint.
+"""
+
+import logging
+
+from django.core.exceptions import PermissionDenied
+from django.core.files.base import ContentFile
+from django.db import transaction
+from django.tasks import task
+from django.utils import timezone
+
+from atelier.roles import FITTER, OWNER, role_of
+from fittings.documents import DocumentError, altered_pattern, check_printable, document_data, render_cutting_sheet, render_work_order
+from fittings.models import PrintJob, PrintKind, PrintPaper, PrintStatus, RevisionStatus
+from fittings.services.plans import issue_revision
+
+logger = logging.getLogger(__name__)
+
+# Issuing locks a revision for the workroom: only those who may issue plans
+# may print a draft.  Anyone on the staff may print an issued revision.
+ISSUING_ROLES = (OWNER, FITTER)
+
+
+class PrintRefused(Exception):
+    """Printing was asked for but cannot start; the message says why, in plain words."""
+
+
+def start_print(*, revision, user, paper: str, kind: str = PrintKind.BOTH, site_url: str = "") -> PrintJob:
+    """Issue the revision if it is still a draft, record a print job and queue its drawing."""
+    if paper not in PrintPaper.values:
+        raise PrintRefused(f"Choose a paper size: {' or '.join(PrintPaper.labels)}.")
+    if kind not in PrintKind.values:
+        raise PrintRefused("Choose what to print: the work order, the cutting sheet or both.")
+    with transaction.atomic():
+        if revision.status == RevisionStatus.DRAFT:
+            if role_of(user) not in ISSUING_ROLES:
+                raise PermissionDenied("Only the owner or a fitter can issue a draft revision; ask them to print it.")
+            try:
+                check_printable(document_data(revision))
+            except DocumentError as exc:
+                raise PrintRefused(str(exc)) from None
+            revision = issue_revision(revision=revision, user=user)
+        job = PrintJob.objects.create(
+            revision=revision, paper=paper, kind=kind, site_url=site_url[:200], created_by=user,
+        )
+    # Queued after the commit above, so a worker in another process sees the job.
+    try:
+        result = render_print_job.enqueue(job.pk)
+    except Exception as exc:
+        logger.exception("Could not queue print job %s", job.pk)
+        _fail(job.pk, f"The job could not be queued ({type(exc).__name__}). Ask the owner to check the task worker.")
+    else:
+        PrintJob.objects.filter(pk=job.pk, task_id="").update(task_id=str(result.id)[:64])
+    job.refresh_from_db()
+    return job
+
+
+def _fail(job_id: int, message: str) -> None:
+    PrintJob.objects.filter(pk=job_id).update(
+        status=PrintStatus.FAILED, step="", error=message, finished_at=timezone.now(),
+    )
+
+
+def _step(job_id: int, text: str) -> None:
+    PrintJob.objects.filter(pk=job_id).update(step=text)
+
+
+def run_print_job(job_id: int) -> str:
+    """Draw the documents of one job and keep them privately; the job row says how it went."""
+    claimed = PrintJob.objects.filter(pk=job_id, status=PrintStatus.QUEUED).update(
+        status=PrintStatus.RUNNING, started_at=timezone.now(), step="Reading the revision",
+    )
+    if not claimed:
+        # Unknown, or already taken by another worker: nothing to do.
+        return "skipped"
+    job = PrintJob.objects.select_related(
+        "revision__plan__client", "revision__plan__session__measured_by", "revision__issued_by",
+        "revision__based_on",
+    ).get(pk=job_id)
+    try:
+        data = document_data(job.revision, job.site_url)
+        pattern = altered_pattern(data)
+        files = {}
+        if job.wants_work_order:
+            _step(job_id, "Drawing the work order")
+            files["work_order"] = render_work_order(data, job.paper, pattern)
+        if job.wants_cutting_sheet:
+            _step(job_id, "Drawing the cutting sheet")
+            files["cutting_sheet"] = render_cutting_sheet(data, job.paper, pattern)
+        _step(job_id, "Saving the files")
+        for field, content in files.items():
+            getattr(job, field).save(f"{field}.pdf", ContentFile(content), save=False)
+        job.status = PrintStatus.DONE
+        job.step = ""
+        job.finished_at = timezone.now()
+        job.save(update_fields=[*files, "status", "step", "finished_at"])
+    except Exception as exc:
+        logger.exception("Print job %s failed", job_id)
+        _fail(job_id, f"The documents could not be drawn ({type(exc).__name__}: {exc}".rstrip()[:500] + ").")
+        raise
+    return "done"
+
+
+@task()
+def render_print_job(job_id: int) -> str:
+    return run_print_job(job_id)

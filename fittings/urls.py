@@ -1,0 +1,26 @@
+from django.urls import path
+
+from fittings import views, views_clients, views_plans
+
+app_name = "fittings"
+
+urlpatterns = [
+    path("", views.client_list, name="client_list"),
+    path("clients/new/", views_clients.client_new, name="client_new"),
+    path("clients/<int:pk>/", views_clients.client_detail, name="client_detail"),
+    path("clients/<int:pk>/delete/", views_clients.client_delete, name="client_delete"),
+    path("clients/<int:client_pk>/sessions/new/", views_clients.session_new, name="session_new"),
+    path("clients/<int:client_pk>/sessions/check/", views_clients.session_check, name="session_check"),
+    path("clients/<int:client_pk>/compare/", views_clients.compare, name="compare"),
+    path("sessions/<int:pk>/", views_clients.session_edit, name="session_edit"),
+    path("sessions/<int:session_pk>/plans/new/", views_plans.plan_new, name="plan_new"),
+    path("plans/<int:pk>/", views_plans.plan_edit, name="plan_edit"),
+    path("plans/<int:pk>/recompute/", views_plans.plan_recompute, name="plan_recompute"),
+    path("plans/<int:pk>/preview.svg", views_plans.plan_preview, name="plan_preview"),
+    path("plans/<int:pk>/revisions/<int:number>/", views_plans.revision_detail, name="revision_detail"),
+    path("plans/<int:pk>/revisions/<int:number>/preview.svg", views_plans.revision_preview, name="revision_preview"),
+    path("plans/<int:pk>/revisions/<int:number>/issue/", views_plans.revision_issue, name="revision_issue"),
+    path("plans/<int:pk>/revisions/<int:number>/pins/", views_plans.revision_pins, name="revision_pins"),
+    path("plans/<int:pk>/revisions/<int:number>/pins/apply/", views_plans.revision_apply_pins, name="revision_apply_pins"),
+    path("photos/<int:pk>/", views.photo_file, name="photo_file"),
+]

@@ -1,0 +1,156 @@
+"""Clients, their measurement sessions and the comparison of two fittings."""
+
+from django.contrib import messages
+from django.shortcuts import get_object_or_404, redirect, render
+from django.views.decorators.http import require_POST
+
+from atelier.roles import FITTER, OWNER, ROLES, role_of, role_required
+from fittings import history as selectors
+from fittings.forms import ClientForm, SessionForm
+from fittings.models import Client, MeasurementSession
+from fittings.services import clients as client_services
+from patterns.core.measures import MEASURES, plausibility_notes
+
+EDITORS = (OWNER, FITTER)
+
+
+def _client(pk):
+    return get_object_or_404(Client, pk=pk)
+
+
+@role_required(*EDITORS)
+def client_new(request):
+    if request.method == "POST":
+        form = ClientForm(request.POST)
+        if form.is_valid():
+            client = client_services.create_client(user=request.user, **form.cleaned_data)
+            return redirect("fittings:client_detail", client.pk)
+        return render(request, "fittings/client_form.html", {"form": form}, status=400)
+    return render(request, "fittings/client_form.html", {"form": ClientForm()})
+
+
+@role_required(*ROLES)
+def client_detail(request, pk):
+    """The client's timeline: sessions and plans, newest first."""
+    client = _client(pk)
+    timeline = selectors.client_timeline(client)
+    return render(request, "fittings/client_detail.html", {
+        "client": client, "timeline": timeline, "can_edit": role_of(request.user) in EDITORS,
+        "sessions": [item.obj for item in timeline if item.kind == "session"],
+    })
+
+
+@role_required(*EDITORS)
+def session_new(request, client_pk):
+    client = _client(client_pk)
+    previous = selectors.latest_session(client)
+    if request.method == "POST":
+        form = SessionForm(request.POST, request.FILES)
+        if form.is_valid():
+            session = client_services.record_session(client=client, user=request.user, form_data=form.cleaned_data,
+                                                     values=form.values_mm())
+            messages.success(request, "Measurements saved.")
+            return redirect("fittings:client_detail", client.pk) if "done" in request.POST else redirect(
+                "fittings:plan_new", session.pk)
+        status = 400
+    else:
+        unit = previous.unit if previous else "cm"
+        form = SessionForm(initial={"unit": unit, "kind": "first" if previous is None else "toile",
+                                    "taken_on": client_services.today()})
+        status = 200
+    return _session_page(request, client, form, previous, None, status)
+
+
+@role_required(*EDITORS)
+def session_edit(request, pk):
+    session = get_object_or_404(MeasurementSession.objects.prefetch_related("measurements"), pk=pk,
+                                client__is_deleted=False)
+    client = session.client
+    previous = selectors.latest_session(client, before=session)
+    conflict = None
+    status = 200
+    if request.method == "POST":
+        form = SessionForm(request.POST, request.FILES)
+        if form.is_valid():
+            try:
+                client_services.update_session(session=session, user=request.user, form_data=form.cleaned_data,
+                                               values=form.values_mm(),
+                                               expected_version=form.cleaned_data.get("version") or 0)
+            except client_services.ConcurrentEdit as exc:
+                conflict = str(exc)
+                status = 409
+            else:
+                messages.success(request, "Measurements saved.")
+                return redirect("fittings:client_detail", client.pk)
+        else:
+            status = 400
+    else:
+        form = SessionForm(initial=SessionForm.initial_for(session))
+    return _session_page(request, client, form, previous, session, status, conflict)
+
+
+def _session_page(request, client, form, previous, session, status, conflict=None):
+    context = {
+        "client": client, "form": form, "session": session, "previous": previous, "conflict": conflict,
+        "notes": _notes(form, previous),
+    }
+    return render(request, "fittings/session_form.html", context, status=status)
+
+
+def _notes(form, previous):
+    """Plausibility advice for what is typed so far (never a refusal)."""
+    values = {}
+    for m in MEASURES:
+        field = form[m.code]
+        try:
+            value = form.fields[m.code].clean(field.value()) if form.is_bound else None
+        except Exception:  # noqa: BLE001 - a value that cannot be read is reported by the form itself
+            value = None
+        if value is not None:
+            values[m.code] = float(value)
+    before = selectors.session_values(previous) if previous else None
+    return plausibility_notes(values, before)
+
+
+@require_POST
+@role_required(*EDITORS)
+def session_check(request, client_pk):
+    """htmx: advice on the readings while they are typed."""
+    client = _client(client_pk)
+    session_pk = request.POST.get("session")
+    current = None
+    if session_pk and session_pk.isdigit():
+        current = MeasurementSession.objects.filter(pk=session_pk, client=client).first()
+    previous = selectors.latest_session(client, before=current)
+    form = SessionForm(request.POST)
+    return render(request, "fittings/session_form.html#session-notes",
+                  {"notes": _notes(form, previous), "form": form, "client": client})
+
+
+@role_required(*ROLES)
+def compare(request, client_pk):
+    """Two sessions or two revisions of one client side by side, differences marked.
+
+    ``a`` and ``b`` name them: ``s12`` for session 12, ``r40`` for revision 40.
+    """
+    client = _client(client_pk)
+    a, b = request.GET.get("a", ""), request.GET.get("b", "")
+    try:
+        comparison = selectors.comparison(client, a, b)
+    except selectors.NotComparable as exc:
+        timeline = selectors.client_timeline(client)
+        return render(request, "fittings/compare.html", {
+            "client": client, "error": str(exc), "timeline": timeline,
+        }, status=400 if (a or b) else 200)
+    return render(request, "fittings/compare.html", {"client": client, "comparison": comparison})
+
+
+@require_POST
+@role_required(OWNER)
+def client_delete(request, pk):
+    client = _client(pk)
+    client_services.soft_delete_client(client=client, user=request.user)
+    messages.success(request, f"{client.reference} is removed from the lists; the records are kept.")
+    return redirect("fittings:client_list")
+
+

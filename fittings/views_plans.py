@@ -1,0 +1,268 @@
+"""Plans at the fitting: choose a base pattern, set ease, watch the allotments change, save, issue, pin."""
+
+from django.contrib import messages
+from django.http import Http404, HttpResponse
+from django.shortcuts import get_object_or_404, redirect, render
+from django.urls import reverse
+from django.views.decorators.http import require_GET, require_POST
+
+from atelier.roles import FITTER, OWNER, ROLES, role_required
+from fittings import previews
+from fittings.forms import NewPlanForm, PinForm, PlanOptionsForm
+from fittings.models import MeasurementSession, Plan, PlanRevision
+from fittings.services import plans as plan_services
+from fittings.tables import plan_table
+from patterns.core.units import format_with_unit
+from patterns.selectors import active_patterns
+
+EDITORS = (OWNER, FITTER)
+
+
+def _session(pk):
+    return get_object_or_404(
+        MeasurementSession.objects.select_related("client").prefetch_related("measurements"),
+        pk=pk, client__is_deleted=False,
+    )
+
+
+def _plan(pk):
+    return get_object_or_404(
+        Plan.objects.select_related("client", "session", "base_pattern"), pk=pk, client__is_deleted=False,
+    )
+
+
+def _revision(plan, number):
+    return get_object_or_404(PlanRevision.objects.prefetch_related("pins"), plan=plan, number=number)
+
+
+@role_required(*EDITORS)
+def plan_new(request, session_pk):
+    """Pick a base pattern for a session's readings; the best size of each run comes first, with why."""
+    session = _session(session_pk)
+    based_on = None
+    if request.GET.get("from") or request.POST.get("from"):
+        based_on = get_object_or_404(
+            PlanRevision.objects.select_related("plan"),
+            pk=_int(request.GET.get("from") or request.POST.get("from")), plan__client=session.client,
+        )
+    patterns = active_patterns().order_by("name", "size_order")
+    suggestions = plan_services.suggestions_for_session(session, patterns)
+    if request.method == "POST":
+        form = NewPlanForm(request.POST, patterns=patterns)
+        if form.is_valid():
+            plan = plan_services.start_plan(
+                client=session.client, session=session, pattern=form.cleaned_data["base_pattern"],
+                garment=form.cleaned_data["garment"], user=request.user, based_on=based_on,
+            )
+            return redirect("fittings:plan_edit", plan.pk)
+        status = 400
+    else:
+        initial = {"garment": based_on.plan.garment if based_on else "Corset"}
+        if suggestions:
+            initial["base_pattern"] = suggestions[0].pattern_pk
+        form = NewPlanForm(initial=initial, patterns=patterns)
+        status = 200
+    context = {"session": session, "client": session.client, "form": form, "suggestions": suggestions, "based_on": based_on}
+    return render(request, "fittings/plan_new.html", context, status=status)
+
+
+def _int(value):
+    try:
+        return int(value)
+    except (TypeError, ValueError):
+        raise Http404("No such revision.") from None
+
+
+@role_required(*ROLES)
+def plan_edit(request, pk):
+    """The live plan: options on the left, the allotment table and preview on the right."""
+    plan = _plan(pk)
+    latest = plan_services.latest_revision(plan)
+    values, block, options = plan_services.revision_inputs(latest)
+    unit = options.unit
+    can_edit = _can_edit(request.user)
+    if request.method == "POST":
+        if not can_edit:
+            return HttpResponse("Your role can read plans but not change them.", status=403)
+        form = PlanOptionsForm(request.POST, block=block, unit=unit)
+        if not form.is_valid():
+            return _plan_page(request, plan, latest, form, block, values, None, status=400)
+        expected = form.cleaned_data.get("version") or plan.version
+        try:
+            revision = plan_services.save_revision(
+                plan=plan, options=form.options(), user=request.user, expected_version=expected,
+            )
+        except plan_services.ConcurrentEdit as exc:
+            plan.refresh_from_db()
+            return _plan_page(request, plan, plan_services.latest_revision(plan), form, block, values, None,
+                              status=409, conflict=str(exc))
+        messages.success(request, f"Saved as revision {revision.number}.")
+        return redirect("fittings:revision_detail", plan.pk, revision.number)
+    form = PlanOptionsForm(initial={**PlanOptionsForm.initial_for(options, block), "version": plan.version},
+                           block=block, unit=unit)
+    return _plan_page(request, plan, latest, form, block, values, plan_services.revision_result(latest))
+
+
+@require_POST
+@role_required(*EDITORS)
+def plan_recompute(request, pk):
+    """Recompute from unsaved form values; htmx gets the table fragment, a plain post the whole page."""
+    plan = _plan(pk)
+    latest = plan_services.latest_revision(plan)
+    values, block, options = plan_services.revision_inputs(latest)
+    form = PlanOptionsForm(request.POST, block=block, unit=options.unit)
+    if not form.is_valid():
+        if request.htmx:
+            return render(request, "fittings/plan_edit.html#plan-result",
+                          {"form": form, "plan": plan, "table": None, "invalid": True}, status=422)
+        return _plan_page(request, plan, latest, form, block, values, None, status=400)
+    result = plan_services.compute(block, values, form.options())
+    if request.htmx:
+        context = _result_context(request, plan, form, block, result, form.options())
+        return render(request, "fittings/plan_edit.html#plan-result", context)
+    return _plan_page(request, plan, latest, form, block, values, result, options=form.options())
+
+
+@require_GET
+@role_required(*ROLES)
+def plan_preview(request, pk):
+    """The panel preview for the values in the query string (the live form), as SVG; cached by input."""
+    plan = _plan(pk)
+    latest = plan_services.latest_revision(plan)
+    values, block, options = plan_services.revision_inputs(latest)
+    form = PlanOptionsForm(request.GET, block=block, unit=options.unit)
+    if form.is_valid():
+        options = form.options()
+    svg = previews.preview_for(block, values, options)
+    return _svg_response(svg)
+
+
+def _svg_response(svg: str):
+    response = HttpResponse(svg, content_type="image/svg+xml")
+    response["Cache-Control"] = "private, max-age=3600"
+    return response
+
+
+def _can_edit(user):
+    from atelier.roles import role_of
+    return role_of(user) in EDITORS
+
+
+def _result_context(request, plan, form, block, result, options):
+    query = form.data.copy() if form.is_bound else None
+    if query is not None:
+        query.pop("csrfmiddlewaretoken", None)
+        preview_query = query.urlencode()
+    else:
+        preview_query = ""
+    return {
+        "plan": plan, "form": form, "block": block, "result": result,
+        "table": plan_table(block, result, form=form),
+        "preview_url": reverse("fittings:plan_preview", args=[plan.pk]) + (f"?{preview_query}" if preview_query else ""),
+        "unit": options.unit,
+    }
+
+
+def _plan_page(request, plan, latest, form, block, values, result, status=200, conflict=None, options=None):
+    if result is None and form.is_bound and form.is_valid():
+        result = plan_services.compute(block, values, form.options())
+        options = form.options()
+    if result is None:
+        result = plan_services.revision_result(latest)
+    if options is None:
+        options = plan_services.revision_inputs(latest)[2]
+    context = _result_context(request, plan, form, block, result, options)
+    if not form.is_bound:
+        context["preview_url"] = reverse("fittings:revision_preview", args=[plan.pk, latest.number])
+    context.update({
+        "client": plan.client, "session": plan.session, "latest": latest, "conflict": conflict,
+        "can_edit": _can_edit(request.user), "values": values,
+        "ease_fields": form.ease_fields(),
+        "bust_span_text": format_with_unit(values["bust_span"], options.unit) if values.get("bust_span") else "",
+    })
+    return render(request, "fittings/plan_edit.html", context, status=status)
+
+
+@role_required(*ROLES)
+def revision_detail(request, pk, number):
+    """One saved revision, read-only: what the workroom cuts from."""
+    plan = _plan(pk)
+    revision = _revision(plan, number)
+    values, block, options = plan_services.revision_inputs(revision)
+    result = plan_services.revision_result(revision)
+    context = {
+        "plan": plan, "client": plan.client, "revision": revision, "block": block, "result": result,
+        "table": plan_table(block, result), "unit": options.unit, "options": options, "values": values,
+        "preview_url": reverse("fittings:revision_preview", args=[plan.pk, revision.number]),
+        "can_edit": _can_edit(request.user),
+        "revisions": plan.revisions.defer("inputs", "result").order_by("-number"),
+    }
+    return render(request, "fittings/revision_detail.html", context)
+
+
+@require_GET
+@role_required(*ROLES)
+def revision_preview(request, pk, number):
+    plan = _plan(pk)
+    revision = _revision(plan, number)
+    values, block, options = plan_services.revision_inputs(revision)
+    return _svg_response(previews.preview_for_result(block, plan_services.revision_result(revision), options.unit))
+
+
+@require_POST
+@role_required(*EDITORS)
+def revision_issue(request, pk, number):
+    plan = _plan(pk)
+    revision = _revision(plan, number)
+    plan_services.issue_revision(revision=revision, user=request.user)
+    messages.success(request, f"Revision {revision.number} is issued to the workroom and locked.")
+    return redirect("fittings:revision_detail", plan.pk, revision.number)
+
+
+@role_required(*EDITORS)
+def revision_pins(request, pk, number):
+    """Record what was pinned at a toile fitting of this revision, then make the next revision from it."""
+    plan = _plan(pk)
+    revision = _revision(plan, number)
+    values, block, options = plan_services.revision_inputs(revision)
+    status = 200
+    if request.method == "POST":
+        form = PinForm(request.POST, block=block, unit=options.unit)
+        if form.is_valid() and form.pins():
+            plan_services.record_pins(revision=revision, pins=form.pins(), note=form.cleaned_data["note"], user=request.user)
+            messages.success(request, "Pins recorded.")
+            return redirect("fittings:revision_pins", plan.pk, revision.number)
+        if form.is_valid():
+            form.add_error(None, "Enter at least one pin adjustment.")
+        status = 400
+    else:
+        form = PinForm(block=block, unit=options.unit, initial={"version": plan.version})
+    rows = [
+        {"seam": seam, "cells": [form[f"pin-{i}-{level}"] for level in block.level_names]}
+        for i, seam in enumerate(block.seams)
+    ]
+    context = {"plan": plan, "client": plan.client, "revision": revision, "block": block, "form": form, "rows": rows,
+               "pins": revision.pins.all(), "unit": options.unit}
+    return render(request, "fittings/revision_pins.html", context, status=status)
+
+
+@require_POST
+@role_required(*EDITORS)
+def revision_apply_pins(request, pk, number):
+    plan = _plan(pk)
+    revision = _revision(plan, number)
+    if not revision.pins.exists():
+        messages.error(request, "There are no pins recorded on this revision yet.")
+        return redirect("fittings:revision_pins", plan.pk, revision.number)
+    try:
+        expected = int(request.POST.get("version") or plan.version)
+    except ValueError:
+        return HttpResponse("The form was damaged; reload the page.", status=400)
+    try:
+        new = plan_services.revision_with_pins(revision=revision, user=request.user, expected_version=expected)
+    except plan_services.ConcurrentEdit as exc:
+        messages.error(request, str(exc))
+        return redirect("fittings:revision_pins", plan.pk, revision.number)
+    messages.success(request, f"Revision {new.number} carries the pins from revision {revision.number}.")
+    return redirect("fittings:revision_detail", plan.pk, new.number)
+

@@ -1,0 +1,6 @@
+from django.apps import AppConfig
+
+
+class PatternsConfig(AppConfig):
+    name = "patterns"
+    verbose_name = "Base patterns"

@@ -1,0 +1,164 @@
+"""A base pattern as plain data: the half pattern, panels from centre front to centre back.
+
+Coordinates are millimetres on the flat pattern: x grows from centre front
+towards centre back, y grows downwards from the top of the block.  Every
+panel's left stitch line faces centre front, its right one centre back.
+
+A seam joins the right edge of one panel to the left edge of the next.  Each
+seam therefore has two raw edges, named by the panel they belong to.  The
+left edge of the first panel is the centre front (fold or busk), the right
+edge of the last panel the centre back (lacing or a plain seam): neither is
+a seam this engine alters, except the centre front width as a whole.
+"""
+
+from dataclasses import dataclass, field
+
+FRONT, BACK = "front", "back"
+CF_FOLD, CF_BUSK = "fold", "busk"
+CB_LACED, CB_SEAMED = "laced", "seamed"
+LEFT, RIGHT = "left", "right"
+
+# How a seam is treated by the "side seams first" policy.
+SEAM_KINDS = ("side", "princess", "other")
+
+
+@dataclass(frozen=True)
+class Level:
+    name: str  # one of measures.LEVEL_CODES
+    y: float
+
+
+@dataclass(frozen=True)
+class Point:
+    x: float
+    y: float
+
+
+@dataclass(frozen=True)
+class Panel:
+    """One panel of the half pattern, as drafted.
+
+    ``left`` and ``right`` hold the x of each stitch line at every level of
+    the block; the four corners give the top and bottom edges.
+    """
+
+    name: str
+    side: str  # FRONT or BACK of the side seam
+    left: dict[str, float]
+    right: dict[str, float]
+    top_left: Point
+    top_right: Point
+    bottom_left: Point
+    bottom_right: Point
+    cut_count: int = 2
+    on_fold: bool = False
+
+    def width(self, level: str) -> float:
+        return self.right[level] - self.left[level]
+
+
+@dataclass(frozen=True)
+class Seam:
+    name: str
+    kind: str  # one of SEAM_KINDS
+    front_panel: str  # the panel on the centre-front side of the seam
+    back_panel: str  # the panel on the centre-back side of the seam
+    alterable_at: frozenset[str]
+    cap_mm: float = 15.0  # per raw edge; 1-1.5 cm is a working rule (memory/common practice)
+
+
+@dataclass(frozen=True)
+class Block:
+    name: str
+    size: str
+    garment: str
+    levels: tuple[Level, ...]  # top to bottom
+    panels: tuple[Panel, ...]  # centre front to centre back
+    seams: tuple[Seam, ...]  # in order, between neighbouring panels
+    centre_front: str = CF_BUSK
+    centre_back: str = CB_LACED
+    seam_allowance_mm: float = 15.0
+    size_order: int = 0
+
+    @property
+    def level_names(self) -> tuple[str, ...]:
+        return tuple(level.name for level in self.levels)
+
+    def level_y(self, name: str) -> float:
+        return next(level.y for level in self.levels if level.name == name)
+
+    def panel(self, name: str) -> Panel:
+        return next(p for p in self.panels if p.name == name)
+
+    def half_girth(self, level: str, side: str | None = None) -> float:
+        return sum(p.width(level) for p in self.panels if side is None or p.side == side)
+
+    def girth(self, level: str, side: str | None = None) -> float:
+        """Both body halves, as the pattern is cut (the lacing gap not included)."""
+        return 2 * self.half_girth(level, side)
+
+    def centre_front_width(self) -> float:
+        """Full width of the centre-front panel across the body, at the top level."""
+        first = self.panels[0]
+        return 2 * first.width(self.levels[0].name)
+
+
+@dataclass(frozen=True)
+class PanelShift:
+    """How far each stitch line of one panel moves at one level (positive widens the panel)."""
+
+    left: float = 0.0
+    right: float = 0.0
+
+
+@dataclass(frozen=True)
+class Alteration:
+    """What the geometry needs from an allotment: per panel, per level, per edge; and band changes.
+
+    ``bands`` maps (upper level, lower level) to the change in their distance
+    (positive lengthens).
+    """
+
+    shifts: dict[str, dict[str, PanelShift]]
+    bands: dict[tuple[str, str], float] = field(default_factory=dict)
+
+    def shift(self, panel: str, level: str) -> PanelShift:
+        return self.shifts.get(panel, {}).get(level, PanelShift())
+
+
+def block_errors(block: Block) -> list[str]:
+    """Structural problems with a block; an empty list means it can be used."""
+    errors = []
+    names = block.level_names
+    if not names:
+        errors.append("The block has no levels.")
+    if len(set(names)) != len(names):
+        errors.append("A level appears twice.")
+    ys = [level.y for level in block.levels]
+    if ys != sorted(ys) or len(set(ys)) != len(ys):
+        errors.append("Levels must run from top to bottom with distinct heights.")
+    if not block.panels:
+        errors.append("The block has no panels.")
+    panel_names = [p.name for p in block.panels]
+    if len(set(panel_names)) != len(panel_names):
+        errors.append("Two panels share a name.")
+    for p in block.panels:
+        for lv in names:
+            if lv not in p.left or lv not in p.right:
+                errors.append(f"Panel {p.name} has no stitch line at {lv}.")
+            elif p.width(lv) <= 0:
+                errors.append(f"Panel {p.name} has no width at {lv}.")
+        if p.side not in (FRONT, BACK):
+            errors.append(f"Panel {p.name} must be front or back of the side seam.")
+    if len(block.seams) != max(len(block.panels) - 1, 0):
+        errors.append("There must be one seam between each pair of neighbouring panels.")
+    for seam, (a, b) in zip(block.seams, zip(block.panels, block.panels[1:])):
+        if (seam.front_panel, seam.back_panel) != (a.name, b.name):
+            errors.append(f"Seam {seam.name} must join {a.name} and {b.name}.")
+        if not seam.alterable_at <= set(names):
+            errors.append(f"Seam {seam.name} names a level the block does not have.")
+        if seam.kind not in SEAM_KINDS:
+            errors.append(f"Seam {seam.name} has an unknown kind.")
+        if seam.cap_mm < 0:
+            errors.append(f"Seam {seam.name} has a negative cap.")
+    return errors

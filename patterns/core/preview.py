@@ -1,0 +1,248 @@
+"""A picture of the altered half pattern for the fitting screen: SVG for the page, PNG for elsewhere.
+
+Built on ``matplotlib.figure.Figure`` with an explicit canvas, never pyplot,
+so it is safe in a threaded server.  Colours are from the Okabe-Ito palette,
+which stays distinguishable for the common kinds of colour blindness; line
+style (dashed against solid) and signs on the numbers carry the meaning too,
+so nothing relies on colour alone.
+"""
+
+from __future__ import annotations
+
+import io
+import re
+import threading
+from collections.abc import Callable, Iterable, Sequence
+
+import matplotlib
+import numpy as np
+from matplotlib.backends.backend_agg import FigureCanvasAgg
+from matplotlib.backends.backend_svg import FigureCanvasSVG
+from matplotlib.collections import LineCollection
+from matplotlib.figure import Figure
+
+from patterns.core.block import LEFT, RIGHT, Alteration, Block
+from patterns.core.measures import LEVEL_LABELS
+from patterns.core.outline import AlteredPattern, GeometryFinding, alter_pattern
+from patterns.core.units import format_cm, format_inches
+
+# Okabe & Ito (2008), "Color Universal Design".
+OKABE_ITO = {
+    "black": "#000000",
+    "orange": "#E69F00",
+    "sky_blue": "#56B4E9",
+    "bluish_green": "#009E73",
+    "yellow": "#F0E442",
+    "blue": "#0072B2",
+    "vermillion": "#D55E00",
+    "reddish_purple": "#CC79A7",
+}
+ALTERED_COLOUR = OKABE_ITO["blue"]
+BASE_COLOUR = OKABE_ITO["orange"]
+WARNING_COLOUR = OKABE_ITO["vermillion"]
+LEVEL_COLOUR = "#9A9A9A"
+TEXT_COLOUR = OKABE_ITO["black"]
+
+# Sized for a 10-inch tablet: the figure is drawn 10 in wide or wider, so
+# 9-10 pt text stays near its printed size on the screen.
+MIN_WIDTH_IN = 10.0
+MM_PER_FIGURE_INCH = 80.0
+SHIFT_FONT_PT = 9
+LABEL_FONT_PT = 10
+MARGIN_MM = 12.0
+LEGEND_ROOM_MM = 50.0
+# Width of an average character of DejaVu Sans, in ems (for room beside the level names).
+_EM = 0.62
+PNG_DPI = 150
+
+MINUS = "\u2212"
+# Shifts smaller than this are not written on the picture.
+ZERO_MM = 0.05
+_ZERO = re.compile(r"^[+\-\u2212]?0+([.,]0*)?$")
+
+# Short words for marking findings on the picture; the full message belongs in the page.
+SHORT_TEXT = {
+    "seam_not_true": "seam not true",
+    "outline_self_intersects": "line crosses itself",
+    "panel_too_narrow": "too narrow",
+    "seam_turns_sharply": "sharp bend",
+    "fold_not_straight": "fold not straight",
+    "band_too_short": "band too short",
+}
+
+# rcParams are global: hold this while they are changed for one drawing.
+_RC_LOCK = threading.Lock()
+_RC = {
+    "svg.hashsalt": "atelier-preview",
+    "svg.fonttype": "none",
+    "path.simplify": False,
+    "font.family": "DejaVu Sans",
+    "axes.unicode_minus": True,
+}
+
+Marker = tuple[str | None, "str | float | None", str]
+
+
+def shift_formatter(unit: str) -> Callable[[float], str]:
+    """Signed text for a shift in millimetres, in the plan's unit ("mm", "cm" or "in")."""
+    if unit == "mm":
+        return lambda mm: f"{mm:+.0f}"
+    if unit == "cm":
+        return lambda mm: format_cm(mm, signed=True)
+    if unit == "in":
+        return lambda mm: format_inches(mm, signed=True)
+    raise ValueError(f"Unknown unit {unit!r}; use mm, cm or in.")
+
+
+def _typeset(text: str) -> str:
+    return text.replace("-", MINUS)
+
+
+def _label_text(fmt: Callable[[float], str], mm: float) -> str:
+    """The formatted amount, or "" when it is nothing at the unit's precision."""
+    if abs(mm) < ZERO_MM:
+        return ""
+    text = _typeset(fmt(mm))
+    return "" if _ZERO.match(text) else text
+
+
+def markers_from_findings(findings: Iterable[GeometryFinding]) -> tuple[Marker, ...]:
+    """One marker per finding that has a place on a panel."""
+    marks = []
+    for f in findings:
+        if f.panel is None:
+            continue
+        where = f.level if f.level is not None else f.y
+        marks.append((f.panel, where, SHORT_TEXT.get(f.code, f.code.replace("_", " "))))
+    return tuple(marks)
+
+
+def _segments(outlines) -> list[np.ndarray]:
+    return [np.asarray(o.stitch + o.stitch[:1]) for o in outlines]
+
+
+def build_figure(block: Block, alteration: Alteration, markers: Sequence[Marker] = (), unit: str = "cm",
+                 formatter: Callable[[float], str] | None = None, pattern: AlteredPattern | None = None) -> Figure:
+    """The figure itself; ``pattern`` saves recomputing the outlines when the caller has them."""
+    pattern = pattern or alter_pattern(block, alteration)
+    fmt = formatter or shift_formatter(unit)
+    base, altered = _segments(pattern.base), _segments(pattern.altered)
+    every = np.concatenate(base + altered)
+    level_names = {name: LEVEL_LABELS.get(name, name) for name in pattern.level_y}
+    room = max(map(len, level_names.values()), default=0) * _EM * LABEL_FONT_PT / 72 * MM_PER_FIGURE_INCH
+    x0 = float(every[:, 0].min()) - room - MARGIN_MM
+    x1 = float(every[:, 0].max()) + MARGIN_MM
+    y0 = float(every[:, 1].min()) - LEGEND_ROOM_MM
+    y1 = float(every[:, 1].max()) + MARGIN_MM
+    width_in = max(MIN_WIDTH_IN, (x1 - x0) / MM_PER_FIGURE_INCH)
+    height_in = width_in * (y1 - y0) / (x1 - x0)
+
+    fig = Figure(figsize=(width_in, height_in))
+    ax = fig.add_axes((0, 0, 1, 1))
+    ax.set_axis_off()
+    ax.set_xlim(x0, x1)
+    ax.set_ylim(y1, y0)
+    ax.set_aspect("equal")
+
+    row = y0 + 8
+    legend_altered = np.array([[x0 + 3, row], [x0 + 23, row]])
+    legend_base = np.array([[x0 + 3, row + 12], [x0 + 23, row + 12]])
+    ax.add_collection(LineCollection(base + [legend_base], colors=BASE_COLOUR, linewidths=1.2,
+                                     linestyles=(0, (4, 2.5))))
+    ax.add_collection(LineCollection(altered + [legend_altered], colors=ALTERED_COLOUR, linewidths=1.8))
+    ax.text(x0 + 26, row, "altered", va="center", fontsize=LABEL_FONT_PT, color=TEXT_COLOUR)
+    ax.text(x0 + 26, row + 12, "base pattern", va="center", fontsize=LABEL_FONT_PT, color=TEXT_COLOUR)
+    ax.text(x0 + 110, row, f"Shifts in {unit}: + widens the panel at that edge, or lowers a level.",
+            va="center", fontsize=LABEL_FONT_PT, color=TEXT_COLOUR)
+
+    level_lines = [np.array([[x0 + 2, y], [x1 - 2, y]]) for y in pattern.level_y.values()]
+    ax.add_collection(LineCollection(level_lines, colors=LEVEL_COLOUR, linewidths=0.8, linestyles=(0, (1, 2))))
+    for name, y in pattern.level_y.items():
+        ax.text(x0 + 3, y - 1.5, level_names[name], fontsize=LABEL_FONT_PT, va="bottom", ha="left", color=TEXT_COLOUR)
+        moved = _label_text(fmt, y - pattern.base_level_y[name])
+        if moved:
+            ax.text(x0 + 3, y + 1.5, f"moved {moved}", fontsize=SHIFT_FONT_PT, va="top", ha="left", color=TEXT_COLOUR)
+
+    for outline in pattern.altered:
+        top = min(outline.left_line[0][1], outline.right_line[0][1])
+        centre = 0.5 * (outline.left_line[0][0] + outline.right_line[0][0])
+        ax.text(centre, top - 6, outline.name, fontsize=LABEL_FONT_PT, ha="center", va="bottom",
+                color=TEXT_COLOUR, fontweight="bold")
+        left, right = dict(_points_at_levels(outline, LEFT)), dict(_points_at_levels(outline, RIGHT))
+        for level in outline.level_y:
+            shift = alteration.shift(outline.name, level)
+            for edge, value, at in ((LEFT, shift.left, left), (RIGHT, shift.right, right)):
+                if level not in at:
+                    continue
+                text = _label_text(fmt, value)
+                if not text:
+                    continue
+                x, y = at[level]
+                if edge == LEFT:
+                    ax.text(x + 2, y - 1.5, text, fontsize=SHIFT_FONT_PT, ha="left", va="bottom", color=TEXT_COLOUR)
+                else:
+                    ax.text(x - 2, y + 1.5, text, fontsize=SHIFT_FONT_PT, ha="right", va="top", color=TEXT_COLOUR)
+
+    _draw_markers(ax, pattern, markers)
+    return fig
+
+
+def _points_at_levels(outline, edge):
+    for notch in outline.notches:
+        if notch.edge == edge:
+            yield notch.level, notch.point
+    if outline.on_fold and edge == LEFT:
+        line = np.asarray(outline.left_line)
+        for level, y in outline.level_y.items():
+            i = int(np.argmin(np.abs(line[:, 1] - y)))
+            yield level, (float(line[i, 0]), float(line[i, 1]))
+
+
+def _draw_markers(ax, pattern: AlteredPattern, markers: Sequence[Marker]) -> None:
+    by_name = {o.name: o for o in pattern.altered}
+    xs, ys = [], []
+    for panel, where, text in markers:
+        outline = by_name.get(panel) if panel is not None else None
+        if outline is None:
+            continue
+        if isinstance(where, str):
+            y = pattern.level_y.get(where)
+        elif where is None:
+            y = None
+        else:
+            y = float(where)
+        line_l, line_r = np.asarray(outline.left_line), np.asarray(outline.right_line)
+        if y is None:
+            y = 0.5 * (line_l[0, 1] + line_l[-1, 1])
+        xl = np.interp(y, line_l[:, 1], line_l[:, 0])
+        xr = np.interp(y, line_r[:, 1], line_r[:, 0])
+        x = 0.5 * (xl + xr)
+        xs.append(x)
+        ys.append(y)
+        ax.text(x, y + 5, _typeset(text), fontsize=SHIFT_FONT_PT, ha="center", va="top", color=TEXT_COLOUR,
+                fontweight="bold", bbox={"boxstyle": "round,pad=0.2", "facecolor": "white",
+                                         "edgecolor": WARNING_COLOUR, "linewidth": 1.2})
+    if xs:
+        ax.plot(xs, ys, linestyle="none", marker="^", markersize=10, color=WARNING_COLOUR,
+                markeredgecolor=TEXT_COLOUR, markeredgewidth=0.8)
+
+
+def preview_svg(block: Block, alteration: Alteration, markers: Sequence[Marker] = (), unit: str = "cm",
+                formatter: Callable[[float], str] | None = None, pattern: AlteredPattern | None = None) -> str:
+    """The preview as SVG text; the same input gives the same bytes."""
+    buf = io.BytesIO()
+    with _RC_LOCK, matplotlib.rc_context(_RC):
+        fig = build_figure(block, alteration, markers, unit, formatter, pattern)
+        FigureCanvasSVG(fig).print_svg(buf, metadata={"Date": None})
+    return buf.getvalue().decode("utf-8")
+
+
+def preview_png(block: Block, alteration: Alteration, markers: Sequence[Marker] = (), unit: str = "cm",
+                formatter: Callable[[float], str] | None = None, pattern: AlteredPattern | None = None,
+                dpi: int = PNG_DPI) -> bytes:
+    buf = io.BytesIO()
+    with _RC_LOCK, matplotlib.rc_context(_RC):
+        fig = build_figure(block, alteration, markers, unit, formatter, pattern)
+        fig.set_dpi(dpi)
+        FigureCanvasAgg(fig).print_png(buf, metadata={"Software": None})
+    return buf.getvalue()

@@ -1,0 +1,72 @@
+"""Reading base patterns: the stored rows as the core's plain Block."""
+
+from django.db.models import Prefetch, prefetch_related_objects
+
+from patterns.core.block import Block, Level, Panel, Point, Seam
+from patterns.models import BasePattern, PatternPanel
+
+
+def active_patterns():
+    """Patterns offered for new plans, grouped by name, smallest size first."""
+    return BasePattern.objects.filter(is_active=True).select_related("size_run")
+
+
+def block_for(pattern) -> Block:
+    """The plain Block of a stored pattern (an instance or a primary key).
+
+    Four queries for an instance (levels, panels, their lines, seams), none
+    if they were prefetched already, one more for a primary key.
+    """
+    if not isinstance(pattern, BasePattern):
+        pattern = BasePattern.objects.get(pk=pattern)
+    prefetch_related_objects(
+        [pattern],
+        "levels",
+        Prefetch("panels", queryset=PatternPanel.objects.prefetch_related("lines")),
+        "seams",
+    )
+    levels = tuple(
+        Level(name=level.name, y=float(level.y_mm))
+        for level in sorted(pattern.levels.all(), key=lambda level: level.y_mm)
+    )
+    level_rank = {level.name: i for i, level in enumerate(levels)}
+    panel_rows = sorted(pattern.panels.all(), key=lambda panel: panel.order)
+    panels = []
+    for row in panel_rows:
+        lines = sorted(row.lines.all(), key=lambda line: level_rank.get(line.level, len(level_rank)))
+        panels.append(Panel(
+            name=row.name,
+            side=row.side,
+            left={line.level: float(line.left_x) for line in lines},
+            right={line.level: float(line.right_x) for line in lines},
+            top_left=Point(float(row.top_left_x), float(row.top_left_y)),
+            top_right=Point(float(row.top_right_x), float(row.top_right_y)),
+            bottom_left=Point(float(row.bottom_left_x), float(row.bottom_left_y)),
+            bottom_right=Point(float(row.bottom_right_x), float(row.bottom_right_y)),
+            cut_count=row.cut_count,
+            on_fold=row.on_fold,
+        ))
+    name_at = {row.order: row.name for row in panel_rows}
+    seams = tuple(
+        Seam(
+            name=row.name,
+            kind=row.kind,
+            front_panel=name_at.get(row.order, ""),
+            back_panel=name_at.get(row.order + 1, ""),
+            alterable_at=frozenset(row.alterable_levels),
+            cap_mm=float(row.cap_mm),
+        )
+        for row in sorted(pattern.seams.all(), key=lambda seam: seam.order)
+    )
+    return Block(
+        name=pattern.name,
+        size=pattern.size_label,
+        garment=pattern.garment,
+        levels=levels,
+        panels=tuple(panels),
+        seams=seams,
+        centre_front=pattern.centre_front,
+        centre_back=pattern.centre_back,
+        seam_allowance_mm=float(pattern.seam_allowance_mm),
+        size_order=pattern.size_order,
+    )

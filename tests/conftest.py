@@ -1,0 +1,91 @@
+"""Shared fixtures: staff users per role, signed-in test clients, the demo atelier."""
+
+import pytest
+from django.contrib.auth.models import Group
+
+from atelier.roles import FITTER, OWNER, WORKROOM
+
+DEMO_PASSWORD = "tape-and-pins-42"
+
+
+@pytest.fixture(autouse=True)
+def _test_files(settings, tmp_path):
+    """Plain static storage (no collectstatic needed), throwaway folders, quick password hashing."""
+    settings.STORAGES = {
+        **settings.STORAGES,
+        "staticfiles": {"BACKEND": "django.contrib.staticfiles.storage.StaticFilesStorage"},
+    }
+    settings.MEDIA_ROOT = tmp_path / "private"
+    settings.STATIC_ROOT = tmp_path / "static"
+    settings.STATIC_ROOT.mkdir()
+    # Real hashing takes most of a second per password.
+    settings.PASSWORD_HASHERS = ["django.contrib.auth.hashers.MD5PasswordHasher"]
+
+
+@pytest.fixture
+def make_user(django_user_model):
+    """make_user("fitter") -> a saved user in that role's group (role=None: no group)."""
+    counter = iter(range(1, 10_000))
+
+    def make(role=None, username=None, password="a-long-test-password", **fields):
+        user = django_user_model.objects.create_user(
+            username or f"{role or 'nobody'}{next(counter)}", password=password, **fields,
+        )
+        if role:
+            user.groups.add(Group.objects.get(name=role))
+        return user
+
+    return make
+
+
+@pytest.fixture
+def owner_user(make_user):
+    return make_user(OWNER)
+
+
+@pytest.fixture
+def fitter_user(make_user):
+    return make_user(FITTER)
+
+
+@pytest.fixture
+def workroom_user(make_user):
+    return make_user(WORKROOM)
+
+
+@pytest.fixture
+def fitter_client(client, fitter_user):
+    """The Django test client, signed in as a fitter."""
+    client.force_login(fitter_user)
+    return client
+
+
+@pytest.fixture
+def owner_client(client, owner_user):
+    client.force_login(owner_user)
+    return client
+
+
+@pytest.fixture
+def workroom_client(client, workroom_user):
+    client.force_login(workroom_user)
+    return client
+
+
+@pytest.fixture
+def demo_atelier(db):
+    """The invented demo atelier, loaded; the demo login's password is DEMO_PASSWORD."""
+    from fittings.services.demo import load_demo_atelier
+
+    loaded = load_demo_atelier(password=DEMO_PASSWORD)
+    assert loaded is not None
+    return loaded
+
+
+@pytest.fixture
+def bodice_pattern(db):
+    """The demo bodice block, stored."""
+    from patterns import demo
+    from patterns.services import save_block
+
+    return save_block(demo.bodice_block())
