@@ -21,7 +21,7 @@ import numpy as np  # noqa: E402
 from matplotlib.backends.backend_svg import FigureCanvasSVG  # noqa: E402
 from matplotlib.figure import Figure  # noqa: E402
 
-from patterns.core.block import BACK, FRONT, Alteration, Block, Level, Panel, PanelShift, Point, Seam  # noqa: E402
+from patterns.core.block import BACK, FRONT, Alteration, Block, Panel, PanelShift, Point, Seam  # noqa: E402
 from patterns.core.outline import alter_pattern  # noqa: E402
 from patterns.core.preview import _RC, build_figure, preview_svg  # noqa: E402
 from patterns.demo import corset_block  # noqa: E402
@@ -92,13 +92,16 @@ def bare_svg(points_per_line: list[int], labels: int) -> str:
     return buf.getvalue().decode()
 
 
-def timed(fn, runs: int) -> list[float]:
-    fn()  # warm caches (fonts, imports) outside the measurement
-    times = []
+def timed_together(cases: dict, runs: int) -> dict[str, list[float]]:
+    """Each case once per round, in turn, so all of them see the same machine load."""
+    for fn in cases.values():
+        fn()  # warm caches (fonts, imports) outside the measurement
+    times = {name: [] for name in cases}
     for _ in range(runs):
-        start = time.perf_counter()
-        fn()
-        times.append((time.perf_counter() - start) * 1000)
+        for name, fn in cases.items():
+            start = time.perf_counter()
+            fn()
+            times[name].append((time.perf_counter() - start) * 1000)
     return times
 
 
@@ -113,36 +116,31 @@ def main() -> None:
     args = parser.parse_args()
 
     print(f"matplotlib {matplotlib.__version__}, numpy {np.__version__}, runs {args.runs}; times in ms")
-    print(f"{'case':44} {'median':>8} {'p95':>8} {'floor med':>10} {'ratio':>6}")
+    print(f"{'case':46} {'median':>8} {'p95':>8} {'ratio':>6}")
     for block in (corset_block("10"), twelve_panel_block()):
         alteration = waist_alteration(block)
         lines, labels = figure_counts(block, alteration)
+        pattern = alter_pattern(block, alteration)
 
-        def floor():
+        def floor(lines=lines, labels=labels):
             with matplotlib.rc_context(_RC):
                 bare_svg(lines, labels)
 
-        def floor_default():
-            bare_svg(lines, labels)
-
-        floor_times = timed(floor, args.runs)
-        pattern = alter_pattern(block, alteration)
         cases = {
-            "outlines + checks (alter_pattern)": lambda: alter_pattern(block, alteration),
-            "preview SVG from computed outlines": lambda: preview_svg(block, alteration, pattern=pattern),
-            "outlines + preview SVG": lambda: preview_svg(block, alteration),
+            "floor: bare Figure, same rc, as SVG": floor,
+            "floor: bare Figure, default rc": lambda lines=lines, labels=labels: bare_svg(lines, labels),
+            "reference: 6 lines x 200 points, 30 labels": lambda: bare_svg([200] * 6, 30),
+            "outlines + checks (alter_pattern)": lambda b=block, a=alteration: alter_pattern(b, a),
+            "preview SVG from computed outlines": lambda b=block, a=alteration, p=pattern: preview_svg(b, a, pattern=p),
+            "outlines + preview SVG": lambda b=block, a=alteration: preview_svg(b, a),
         }
-        floor_med = statistics.median(floor_times)
-        head = f"{len(block.panels)} panels, {len(lines)} lines, {sum(lines)} points, {labels} labels"
-        print(head)
-        print(f"  {'floor: bare Figure, same rc, as SVG':42} {floor_med:8.1f} {p95(floor_times):8.1f}")
-        default_times = timed(floor_default, args.runs)
-        print(f"  {'floor: bare Figure, default rc (text as paths)':42} "
-              f"{statistics.median(default_times):8.1f} {p95(default_times):8.1f}")
-        for name, fn in cases.items():
-            times = timed(fn, args.runs)
-            med = statistics.median(times)
-            print(f"  {name:42} {med:8.1f} {p95(times):8.1f} {floor_med:10.1f} {med / floor_med:6.2f}")
+        times = timed_together(cases, args.runs)
+        floor_med = statistics.median(times["floor: bare Figure, same rc, as SVG"])
+        print(f"{len(block.panels)} panels: {len(lines)} lines, {sum(lines)} points, {labels} labels; "
+              "ratio = median / floor (same rc) median")
+        for name, values in times.items():
+            med = statistics.median(values)
+            print(f"  {name:44} {med:8.1f} {p95(values):8.1f} {med / floor_med:6.2f}")
 
 
 if __name__ == "__main__":

@@ -141,3 +141,37 @@ class PinAdjustmentAdmin(admin.ModelAdmin):
     list_filter = ["level", "created_at"]
     search_fields = ["seam", "note", "revision__plan__client__reference", "revision__plan__client__name"]
     list_select_related = ["revision", "revision__plan", "revision__plan__client", "created_by"]
+
+
+from django.utils.html import format_html_join  # noqa: E402  (printing, appended below)
+
+from fittings.models import PrintJob  # noqa: E402
+
+
+@admin.register(PrintJob)
+class PrintJobAdmin(admin.ModelAdmin):
+    """Read only: jobs are made by printing from the app, and their files are served by the app."""
+
+    list_display = ["revision", "kind", "paper", "status", "created_by", "created_at", "finished_at"]
+    list_filter = ["status", "kind", "paper", "created_at"]
+    search_fields = ["revision__plan__garment", "revision__plan__client__reference", "revision__plan__client__name"]
+    list_select_related = ["revision", "revision__plan", "revision__plan__client", "created_by"]
+    fields = ["revision", "kind", "paper", "status", "step", "error", "downloads", "task_id", "created_by",
+              "created_at", "started_at", "finished_at"]
+    readonly_fields = fields
+
+    def has_add_permission(self, request):
+        return False
+
+    def has_change_permission(self, request, obj=None):
+        return False
+
+    @admin.display(description="Files")
+    def downloads(self, job):
+        links = [
+            format_html('<a href="{}">{}</a>', reverse("fittings:print_download", args=[job.pk, name]), label)
+            for name, label, file in (("work-order", "Work order", job.work_order),
+                                      ("cutting-sheet", "Cutting sheet", job.cutting_sheet))
+            if file
+        ]
+        return format_html_join(" · ", "{}", ((link,) for link in links)) if links else "–"

@@ -166,11 +166,13 @@ def _person(user) -> str:
 
 
 def revision_path(plan_id: int, number: int) -> str:
-    """Where the app shows this revision: the revision page if the app has one, else the plan's print page."""
-    try:
-        return reverse("fittings:revision_detail", args=[plan_id, number])
-    except NoReverseMatch:
-        return reverse("fittings:print_start", args=[plan_id, number])
+    """Where the app shows this revision: its page if the app has one, else its print page."""
+    for name in ("fittings:revision_detail", "fittings:print_start"):
+        try:
+            return reverse(name, args=[plan_id, number])
+        except NoReverseMatch:
+            continue
+    return f"/plans/{plan_id}/revisions/{number}/print/"
 
 
 def client_label(client) -> str:

@@ -69,7 +69,7 @@ class ClientForm(forms.ModelForm):
         model = Client
         fields = ["reference", "name", "contact", "consent_given_on", "notes"]
         widgets = {
-            "consent_given_on": forms.DateInput(attrs={"type": "date"}),
+            "consent_given_on": forms.DateInput(attrs={"type": "date"}, format="%Y-%m-%d"),
             "notes": forms.Textarea(attrs={"rows": 3}),
         }
         labels = {"consent_given_on": "Consent to keep measurements and photos, given on"}
@@ -81,7 +81,7 @@ class ClientForm(forms.ModelForm):
 class SessionForm(UnitFormMixin, forms.Form):
     """One sitting: a field per measurement with its ISO 8559-1 name and a how-to hint."""
 
-    taken_on = forms.DateField(widget=forms.DateInput(attrs={"type": "date"}))
+    taken_on = forms.DateField(widget=forms.DateInput(attrs={"type": "date"}, format="%Y-%m-%d"))
     kind = forms.ChoiceField(choices=SessionKind.choices)
     unit = forms.ChoiceField(choices=UNIT_CHOICES, widget=forms.RadioSelect, initial="cm")
     posture_notes = forms.CharField(required=False, max_length=2000, widget=forms.Textarea(attrs={"rows": 2}))

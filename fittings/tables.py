@@ -88,7 +88,7 @@ def plan_table(block: Block, result: Allotment, form=None):
         ),
         "bands": [
             {"label": f"{LEVEL_LABELS[b.upper]} to {LEVEL_LABELS[b.lower]}",
-             "change": format_length(b.change_mm, unit, signed=True),
+             "change": format_length(abs(b.change_mm), unit),
              "words": "lengthen" if b.change_mm > 0 else ("shorten" if b.change_mm < 0 else "no change")}
             for b in result.bands
         ],

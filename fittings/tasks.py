@@ -15,7 +15,9 @@ from django.tasks import task
 from django.utils import timezone
 
 from atelier.roles import FITTER, OWNER, role_of
-from fittings.documents import DocumentError, altered_pattern, check_printable, document_data, render_cutting_sheet, render_work_order
+from fittings.documents import (
+    DocumentError, altered_pattern, check_printable, document_data, render_cutting_sheet, render_work_order,
+)
 from fittings.models import PrintJob, PrintKind, PrintPaper, PrintStatus, RevisionStatus
 from fittings.services.plans import issue_revision
 
@@ -101,7 +103,8 @@ def run_print_job(job_id: int) -> str:
         job.save(update_fields=[*files, "status", "step", "finished_at"])
     except Exception as exc:
         logger.exception("Print job %s failed", job_id)
-        _fail(job_id, f"The documents could not be drawn ({type(exc).__name__}: {exc}".rstrip()[:500] + ").")
+        reason = f"{type(exc).__name__}: {exc}"[:400]
+        _fail(job_id, f"The documents could not be drawn ({reason}).")
         raise
     return "done"
 

@@ -63,7 +63,8 @@ def sheet_layout(outlines: tuple[PanelOutline, ...], *, gap_mm: float = PANEL_GA
         side = TEST_SQUARE_MM[test_square]
         square_at = (cursor, margin_mm)
         cursor += side + gap_mm
-        height = max(height, side + 2 * margin_mm + (len(_test_square_lines(test_square)) * 1.4 + 0.5) * LABEL_HEIGHT_MM)
+        label_room = (len(_test_square_lines(test_square)) * 1.4 + 0.5) * LABEL_HEIGHT_MM
+        height = max(height, side + 2 * margin_mm + label_room)
     width = cursor - gap_mm + margin_mm
     return SheetLayout(tuple(offsets), width, height, square_at, side)
 

@@ -242,7 +242,6 @@ def band_map(block: Block, alteration: Alteration):
 @dataclass(frozen=True)
 class _Edge:
     points: np.ndarray  # altered, top to bottom, shape (n, 2)
-    base_y: np.ndarray  # base height of each sample
     level_index: dict[str, int]  # sample index of each level on this edge
     knots: np.ndarray  # altered corner and level points, shape (k, 2)
     knot_levels: tuple[str | None, ...]
@@ -283,7 +282,7 @@ def _edge(block: Block, panel: Panel, edge: str, alteration: Alteration, to_alte
 
     index = {name: int(np.searchsorted(ys, y)) for name, y in zip(knot_levels, knot_y) if name}
     knot_points = points[[int(np.searchsorted(ys, y)) for y in knot_y]]
-    return _Edge(points, ys, index, knot_points, tuple(knot_levels))
+    return _Edge(points, index, knot_points, tuple(knot_levels))
 
 
 def _turning(points: np.ndarray) -> np.ndarray:
@@ -574,6 +573,8 @@ def _narrow(outline: PanelOutline, minimum: float) -> list[GeometryFinding]:
 
 
 def _turns(block: Block, panel: Panel, edges: dict[str, _Edge], limit: float) -> list[GeometryFinding]:
+    """Bend of each stitch line at its level points, between the straight runs to the neighbouring
+    corner or level points: the smoothed curve has no corner there, but the eye sees the bend."""
     found = []
     for edge, e in edges.items():
         k = e.knots

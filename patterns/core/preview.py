@@ -26,7 +26,7 @@ from patterns.core.measures import LEVEL_LABELS
 from patterns.core.outline import AlteredPattern, GeometryFinding, alter_pattern
 from patterns.core.units import format_cm, format_inches
 
-# Okabe & Ito (2008), "Color Universal Design".
+# Okabe & Ito (2008), "Color Universal Design" (the eight values from memory of that list).
 OKABE_ITO = {
     "black": "#000000",
     "orange": "#E69F00",
@@ -113,7 +113,9 @@ def markers_from_findings(findings: Iterable[GeometryFinding]) -> tuple[Marker, 
         if f.panel is None:
             continue
         where = f.level if f.level is not None else f.y
-        marks.append((f.panel, where, SHORT_TEXT.get(f.code, f.code.replace("_", " "))))
+        mark = (f.panel, where, SHORT_TEXT.get(f.code, f.code.replace("_", " ")))
+        if mark not in marks:
+            marks.append(mark)
     return tuple(marks)
 
 

@@ -227,7 +227,8 @@ def test_notch_directions_are_unit_and_square_to_the_stitch_line():
             dx, dy = notch.direction
             assert math.hypot(dx, dy) == pytest.approx(1.0)
             assert abs(np.dot(tangent / np.linalg.norm(tangent), notch.direction)) < 1e-9
-            assert not Polygon(outline.stitch).contains(LineString([notch.point, (notch.point[0] + dx, notch.point[1] + dy)]))
+            outward = LineString([notch.point, (notch.point[0] + dx, notch.point[1] + dy)])
+            assert not Polygon(outline.stitch).contains(outward)
 
 
 def test_grainline_is_parallel_to_centre_front_and_inside_the_panel():
@@ -276,7 +277,8 @@ def test_an_uneven_shift_is_flagged_with_the_edge_end_and_amount():
     block = corset_block("10")
     # Let out the side front's right edge at the bust and take it in at the underbust:
     # that edge alone bends into an S near the top.
-    alteration = Alteration(shifts={"Side front": {"bust": PanelShift(right=15.0), "underbust": PanelShift(right=-15.0)}})
+    alteration = Alteration(shifts={"Side front": {"bust": PanelShift(right=15.0),
+                                                   "underbust": PanelShift(right=-15.0)}})
     pattern = alter_pattern(block, alteration)
     side = next(t for t in pattern.seams if t.seam == "Side seam")
     assert side.back_after_mm == pytest.approx(side.back_base_mm, abs=1e-9)
@@ -380,7 +382,8 @@ def test_a_band_shortened_to_nothing_is_the_only_error_reported():
 
 def test_a_centre_front_moved_evenly_stays_on_the_fold():
     block = bodice_block()
-    pattern = alter_pattern(block, Alteration(shifts={"Centre front": {lv: PanelShift(left=5.0) for lv in block.level_names}}))
+    even = {lv: PanelShift(left=5.0) for lv in block.level_names}
+    pattern = alter_pattern(block, Alteration(shifts={"Centre front": even}))
     assert pattern.findings == ()
 
 
@@ -392,3 +395,27 @@ def test_a_centre_front_moved_evenly_stays_on_the_fold():
 def test_names_the_block_does_not_have_are_refused(bad):
     with pytest.raises(ValueError):
         alter_block(corset_block("10"), bad)
+
+
+@settings(max_examples=25, deadline=None)
+@given(data=st.data())
+def test_wild_shifts_never_fail_and_every_crossed_outline_is_reported(data):
+    block = corset_block("8")
+    wild = st.floats(-60.0, 60.0, allow_nan=False)
+    shifts = {p.name: {lv: PanelShift(data.draw(wild), data.draw(wild))
+                       for lv in data.draw(st.lists(st.sampled_from(block.level_names), unique=True))}
+              for p in block.panels}
+    pattern = alter_pattern(block, Alteration(shifts=shifts))
+    crossed = {o.name for o in pattern.altered if not Polygon(o.stitch).is_valid}
+    reported = {f.panel for f in pattern.findings if f.code == "outline_self_intersects"}
+    assert crossed == reported
+    for outline in pattern.altered:
+        assert Polygon(outline.cutting).is_valid
+
+
+def test_geometry_findings_are_core_findings():
+    from patterns.core.findings import Finding
+
+    (finding,) = alter_pattern(s_bend_block(), Alteration(shifts={})).findings
+    assert isinstance(finding, Finding)
+    assert finding.as_dict()["code"] == "panel_too_narrow" and finding.as_dict()["amount_mm"] < 20

@@ -56,7 +56,10 @@ def test_renders_in_threads_give_the_same_svg():
     block = corset_block("10")
     expected = preview_svg(block, _alteration(block))
     results = []
-    threads = [threading.Thread(target=lambda: results.append(preview_svg(block, _alteration(block)))) for _ in range(4)]
+    def render():
+        results.append(preview_svg(block, _alteration(block)))
+
+    threads = [threading.Thread(target=render) for _ in range(4)]
     for t in threads:
         t.start()
     for t in threads:
@@ -77,7 +80,8 @@ def test_svg_names_every_level_and_writes_shifts_in_the_plan_unit():
 
 def test_shift_labels_in_inches_and_with_a_formatter():
     block = corset_block("10")
-    alteration = Alteration(shifts={"Front": {"waist": PanelShift(3.175, -6.35)}})  # 1/8 in and 1/4 in
+    # 1/8 in and 1/4 in: 1 in = 25.4 mm exactly (international yard and pound agreement, 1959).
+    alteration = Alteration(shifts={"Front": {"waist": PanelShift(3.175, -6.35)}})
     assert "+1/8" in _texts(preview_svg(block, alteration, unit="in"))
     assert f"{MINUS}1/4" in _texts(preview_svg(block, alteration, unit="in"))
     custom = _texts(preview_svg(block, alteration, formatter=lambda mm: f"{mm / 25.4:+.3f} in"))

@@ -47,6 +47,12 @@ def hosts_for(host):
     return [f"[{host}]" if ":" in host else host]
 
 
+def gunicorn_has_setting(name):
+    from gunicorn.config import KNOWN_SETTINGS
+
+    return any(setting.name == name for setting in KNOWN_SETTINGS)
+
+
 class Command(BaseCommand):
     help = (
         "Migrate the database, load the demo atelier into an empty one, collect static files "
@@ -90,6 +96,9 @@ class Command(BaseCommand):
             "--preload",
             "--access-logfile", "-",
         ]
+        if gunicorn_has_setting("control_socket_disable"):
+            # Newer gunicorn opens a control socket in the home folder; this app does not use it.
+            argv.append("--no-control-socket")
         for name in ["127.0.0.1", *extra_hosts] if host in WILDCARDS else extra_hosts:
             self.stdout.write(self.style.SUCCESS(f"Open http://{name}:{port}/"))
         if not settings.HTTPS and host not in ("127.0.0.1", "localhost", "::1"):

@@ -1,0 +1,96 @@
+"""Printing a revision: ask for it, watch it being drawn, download the PDFs."""
+
+from django import forms
+from django.http import FileResponse, Http404
+from django.shortcuts import get_object_or_404, redirect, render
+from django.utils.text import slugify
+from django.views.decorators.http import require_http_methods
+
+from atelier.roles import ROLES, role_required
+from fittings.models import PlanRevision, PrintJob, PrintKind, PrintPaper, PrintStatus
+from fittings.tasks import PrintRefused, start_print
+
+# The file a download link names, and the job's field that holds it.
+DOCUMENTS = {"work-order": "work_order", "cutting-sheet": "cutting_sheet"}
+
+
+class PrintForm(forms.Form):
+    paper = forms.ChoiceField(choices=PrintPaper.choices, label="Paper")
+    kind = forms.ChoiceField(choices=PrintKind.choices, label="Print", initial=PrintKind.BOTH)
+
+
+def default_paper(revision) -> str:
+    """Letter for a plan kept in inches, A4 otherwise."""
+    return PrintPaper.LETTER if revision.inputs.get("unit") == "in" else PrintPaper.A4
+
+
+def _revision(plan_id, number):
+    return get_object_or_404(
+        PlanRevision.objects.select_related("plan__client", "plan__session__measured_by", "issued_by", "based_on"),
+        plan_id=plan_id, number=number, plan__client__is_deleted=False,
+    )
+
+
+def _job(job_id):
+    return get_object_or_404(
+        PrintJob.objects.select_related("revision__plan__client"),
+        pk=job_id, revision__plan__client__is_deleted=False,
+    )
+
+
+@role_required(*ROLES)
+@require_http_methods(["GET", "POST"])
+def print_start(request, plan_id, number):
+    revision = _revision(plan_id, number)
+    status = 200
+    if request.method == "POST":
+        form = PrintForm(request.POST)
+        if form.is_valid():
+            try:
+                job = start_print(
+                    revision=revision, user=request.user, paper=form.cleaned_data["paper"],
+                    kind=form.cleaned_data["kind"], site_url=request.build_absolute_uri("/"),
+                )
+            except PrintRefused as exc:
+                form.add_error(None, str(exc))
+            else:
+                return redirect("fittings:print_status", job.pk)
+        status = 400
+    else:
+        form = PrintForm(initial={"paper": default_paper(revision), "kind": PrintKind.BOTH})
+    return render(request, "fittings/print/start.html", {"revision": revision, "form": form}, status=status)
+
+
+@role_required(*ROLES)
+@require_http_methods(["GET"])
+def print_status(request, job_id):
+    job = _job(job_id)
+    partial = request.htmx and not request.htmx.history_restore_request
+    template = "fittings/print/_status.html" if partial else "fittings/print/status.html"
+    return render(request, template, {"job": job, "revision": job.revision})
+
+
+def download_name(job, document: str) -> str:
+    revision = job.revision
+    reference = slugify(revision.plan.client.reference) or "client"
+    return f"{document}-{reference}-plan{revision.plan_id}-r{revision.number}-{job.paper}.pdf"
+
+
+@role_required(*ROLES)
+@require_http_methods(["GET"])
+def print_download(request, job_id, document):
+    field = DOCUMENTS.get(document)
+    if field is None:
+        raise Http404("No such document.")
+    job = _job(job_id)
+    file = getattr(job, field)
+    if job.status != PrintStatus.DONE or not file:
+        raise Http404("This document is not ready.")
+    try:
+        handle = file.open("rb")
+    except FileNotFoundError:
+        raise Http404("The document's file is missing; print the revision again.") from None
+    response = FileResponse(handle, as_attachment=True, filename=download_name(job, document),
+                            content_type="application/pdf")
+    response["Cache-Control"] = "private, no-store"
+    return response

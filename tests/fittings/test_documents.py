@@ -1,0 +1,533 @@
+"""The printed work order and the 1:1 cutting sheet, read back from the PDF.
+
+Outside references used here:
+- 1 pt = 1/72 in: ISO 32000-1 (PDF 1.7), 8.3.2.3 (PDF user space unit).
+- 1 in = 25.4 mm exactly: international yard and pound agreement (1959).
+- A4 = 210 x 297 mm: ISO 216.  US Letter = 8.5 x 11 in = 215.9 x 279.4 mm: ANSI/ASME Y14.1.
+- A 10 cm and a 4 in test square, "print at 100 %": common practice for printed patterns.
+"""
+
+import io
+import math
+import re
+from datetime import date
+from pathlib import Path
+
+import pdfplumber
+import pypdf
+import pytest
+from django.urls import include, path, reverse
+
+import atelier.urls
+import fittings.urls
+import fittings.urls_print
+from fittings import documents
+from fittings.documents import (
+    PANEL_GAP_MM, SHEET_MARGIN_MM, WAIST_REDUCTION_CAUTION, DocumentData, altered_pattern, client_label,
+    document_data, render_cutting_sheet, render_work_order, work_order_pdf,
+)
+from fittings.models import MeasurementSession, PrintJob, RevisionStatus
+from fittings.services import plans as plan_services
+from fittings.tasks import run_print_job
+from patterns.core.allot import allot
+from patterns.core.fitting import body_from_measurements, load_fitting_text
+from patterns.core.measures import LEVEL_LABELS
+from patterns.core.tiling import OVERLAP_MM, PAGE_MARGIN_MM
+from patterns.core.units import format_length
+
+MM_PER_PT = 25.4 / 72  # ISO 32000-1 8.3.2.3 and the 1959 agreement
+EXAMPLES = Path(__file__).resolve().parents[2] / "patterns" / "examples"
+A4_MM = (210.0, 297.0)  # ISO 216
+LETTER_MM = (8.5 * 25.4, 11 * 25.4)  # ANSI/ASME Y14.1
+PAPER_MM = {"a4": A4_MM, "letter": LETTER_MM}
+BASE_URL = "https://atelier.example"
+
+# The print views, wherever the lead includes them: this module is also the URL conf of its view tests.
+urlpatterns = [p for p in atelier.urls.urlpatterns if getattr(p, "app_name", None) != "fittings"] + [
+    path("", include((list(fittings.urls.urlpatterns) + list(fittings.urls_print.urlpatterns), "fittings"))),
+]
+
+
+# --- plain data, no database ------------------------------------------------------------------
+
+
+def example_data(name: str, status: str = "issued") -> DocumentData:
+    """One of the project's invented example fittings, worked out by the engine."""
+    measurements, block, options = load_fitting_text((EXAMPLES / f"{name}.json").read_text())
+    result = allot(block, body_from_measurements(measurements), options)
+    return DocumentData(
+        atelier_name="Wrenfield Stays & Bodices", client_label="WF-0102", garment="Daily corset",
+        fitting_date=date(2025, 3, 4), measured_by="Demo Fitter", revision_number=3, revision_status=status,
+        issued_at=None, issued_by="", based_on=2, revision_url=f"{BASE_URL}/plans/7/revisions/3/",
+        measurements=measurements, block=block, options=options, result=result,
+    )
+
+
+@pytest.fixture(scope="module")
+def strong():
+    return example_data("odalys-brenneman-strong-reduction")  # inches, 15 cm reduction, one toile pin
+
+
+@pytest.fixture(scope="module")
+def gentle():
+    return example_data("hester-quayle-first-corset")  # centimetres, 6 cm reduction
+
+
+@pytest.fixture(scope="module")
+def bodice():
+    return example_data("marguerite-ashdown-vale-bodice")  # centimetres, no reduction, cut on the fold
+
+
+@pytest.fixture(scope="module")
+def pdfs(strong, gentle, bodice):
+    """Each document rendered once for the module (WeasyPrint takes a while)."""
+    cache = {}
+
+    def get(kind, name, paper):
+        key = (kind, name, paper)
+        if key not in cache:
+            data = {"strong": strong, "gentle": gentle, "bodice": bodice}[name]
+            render = render_work_order if kind == "work_order" else render_cutting_sheet
+            cache[key] = render(data, paper)
+        return cache[key]
+
+    return get
+
+
+def pages_mm(pdf: bytes) -> list[tuple[float, float]]:
+    reader = pypdf.PdfReader(io.BytesIO(pdf))
+    return [(float(p.mediabox.width) * MM_PER_PT, float(p.mediabox.height) * MM_PER_PT) for p in reader.pages]
+
+
+def text_of(pdf: bytes) -> str:
+    with pdfplumber.open(io.BytesIO(pdf)) as doc:
+        return "\n".join(page.extract_text() or "" for page in doc.pages)
+
+
+def flat(text: str) -> str:
+    return re.sub(r"\s+", " ", text)
+
+
+@pytest.mark.parametrize("paper", ["a4", "letter"])
+@pytest.mark.parametrize("kind", ["work_order", "cutting_sheet"])
+def test_it_prints_on_the_paper_asked_for(pdfs, kind, paper):
+    sizes = pages_mm(pdfs(kind, "strong", paper))
+    assert len(sizes) >= 2
+    width, height = PAPER_MM[paper]
+    for w, h in sizes:
+        # Tiles may lie in landscape: compare the short and the long side.
+        assert min(w, h) == pytest.approx(width, abs=0.1)
+        assert max(w, h) == pytest.approx(height, abs=0.1)
+
+
+@pytest.mark.parametrize("paper", ["a4", "letter"])
+def test_it_draws_the_test_squares_at_true_size(pdfs, paper):
+    with pdfplumber.open(io.BytesIO(pdfs("cutting_sheet", "strong", paper))) as doc:
+        cover = doc.pages[0]
+        squares = [(r["width"] * MM_PER_PT, r["height"] * MM_PER_PT) for r in cover.rects
+                   if abs(r["width"] - r["height"]) * MM_PER_PT < 0.2 and r["width"] * MM_PER_PT > 90]
+        text = flat(cover.extract_text())
+    # 10 cm, and 4 in = 101.6 mm (1959 agreement); to 0.2 mm.
+    assert sorted(round(w, 1) for w, _ in squares) == [100.0, 101.6]
+    for w, h in squares:
+        assert min(abs(w - 100.0), abs(w - 101.6)) < 0.2 and min(abs(h - 100.0), abs(h - 101.6)) < 0.2
+    assert "10 cm test square" in text and "4 in test square" in text
+    assert "Print at 100 % (actual size)" in text
+
+
+def expected_grid(data: DocumentData, paper: str) -> tuple[str, int, int]:
+    """Orientation, rows and columns worked out here from the panel extents and the paper, not by the app."""
+    pattern = altered_pattern(data)
+    boxes = [([x for x, _ in o.cutting], [y for _, y in o.cutting]) for o in pattern.altered]
+    sheet_w = sum(max(xs) - min(xs) for xs, _ in boxes) + PANEL_GAP_MM * (len(boxes) - 1) + 2 * SHEET_MARGIN_MM
+    sheet_h = (max(max(ys) for _, ys in boxes) - min(min(ys) for _, ys in boxes)) + 2 * SHEET_MARGIN_MM
+
+    def count(extent, printable):
+        return 1 if extent <= printable else 1 + math.ceil((extent - printable) / (printable - OVERLAP_MM))
+
+    short, long = PAPER_MM[paper]
+    options = []
+    for orientation, page_w, page_h in (("portrait", short, long), ("landscape", long, short)):
+        cols = count(sheet_w, page_w - 2 * PAGE_MARGIN_MM)
+        rows = count(sheet_h, page_h - 2 * PAGE_MARGIN_MM)
+        options.append((rows * cols, orientation, rows, cols))
+    best = min(options, key=lambda o: o[0])  # portrait first, so it wins a tie
+    return best[1], best[2], best[3]
+
+
+@pytest.mark.parametrize(("name", "paper"), [("strong", "a4"), ("strong", "letter"), ("bodice", "letter")])
+def test_it_tiles_as_many_pages_as_the_panels_need(pdfs, strong, bodice, name, paper):
+    data = {"strong": strong, "bodice": bodice}[name]
+    orientation, rows, cols = expected_grid(data, paper)
+    pdf = pdfs("cutting_sheet", name, paper)
+    sizes = pages_mm(pdf)
+    assert len(sizes) - 1 == rows * cols  # the first page is the cover
+    for w, h in sizes[1:]:
+        assert (w > h) == (orientation == "landscape")
+    with pdfplumber.open(io.BytesIO(pdf)) as doc:
+        labels = [re.search(r"\b([A-Z]+[0-9]+)\b", page.extract_text()).group(1) for page in doc.pages[1:]]
+    assert labels == [f"{'ABCDEFGHIJKLMNOPQRSTUVWXYZ'[r]}{c + 1}" for r in range(rows) for c in range(cols)]
+
+
+def _is_black(colour) -> bool:
+    return colour is not None and len(colour) == 3 and all(abs(c) < 1e-6 for c in colour)
+
+
+@pytest.mark.parametrize(("name", "paper"), [("strong", "a4"), ("strong", "letter"), ("bodice", "letter")])
+def test_it_draws_every_panel_at_true_size_across_the_tiles(pdfs, strong, bodice, name, paper):
+    data = {"strong": strong, "bodice": bodice}[name]
+    _, rows, cols = expected_grid(data, paper)
+    pattern = altered_pattern(data)
+    cut_width_pt = documents.CUT_WIDTH_MM / MM_PER_PT
+    groups: dict[tuple, list] = {}
+    with pdfplumber.open(io.BytesIO(pdfs("cutting_sheet", name, paper))) as doc:
+        for index, page in enumerate(doc.pages[1:]):
+            row, col = divmod(index, cols)
+            # The tile's frame: the printable area, found on the page itself.
+            frame = max(page.rects, key=lambda r: r["width"] * r["height"] if r["stroke"] and not r["fill"] else 0)
+            fx, fy = frame["x0"] * MM_PER_PT, frame["top"] * MM_PER_PT
+            fw, fh = frame["width"] * MM_PER_PT, frame["height"] * MM_PER_PT
+            # Each tile starts one printable width less the overlap after the one before it.
+            ox, oy = col * (fw - OVERLAP_MM), row * (fh - OVERLAP_MM)
+            for curve in page.curves:
+                if not (_is_black(curve["stroking_color"]) and abs(curve["linewidth"] - cut_width_pt) < 0.01
+                        and len(curve["pts"]) > 8):
+                    continue
+                pts = [(x * MM_PER_PT, y * MM_PER_PT) for x, y in curve["pts"]]
+                whole = tuple(round(v * 2) / 2 for v in (
+                    min(x for x, _ in pts) - fx + ox, min(y for _, y in pts) - fy + oy,
+                    max(x for x, _ in pts) - fx + ox, max(y for _, y in pts) - fy + oy))
+                seen = [(x - fx + ox, y - fy + oy) for x, y in pts
+                        if fx - 0.01 <= x <= fx + fw + 0.01 and fy - 0.01 <= y <= fy + fh + 0.01]
+                # The same panel lands on the same place of the sheet from every tile.
+                groups.setdefault(whole, []).extend(seen)
+    assert len(groups) == len(pattern.altered)
+    drawn = sorted(groups.items())
+    for (whole, seen), outline in zip(drawn, pattern.altered):
+        xs, ys = [x for x, _ in outline.cutting], [y for _, y in outline.cutting]
+        width, height = max(xs) - min(xs), max(ys) - min(ys)
+        assert max(x for x, _ in seen) - min(x for x, _ in seen) == pytest.approx(width, abs=0.5)
+        assert max(y for _, y in seen) - min(y for _, y in seen) == pytest.approx(height, abs=0.5)
+
+
+def expected_cell(edge, unit: str) -> str:
+    if edge is None:
+        return "–"
+    amount = format_length(abs(edge.shift_mm), unit)
+    if amount in ("0", "0.0"):
+        return "no change"
+    return ("let out " if edge.shift_mm > 0 else "take in ") + amount
+
+
+def table_rows(pdf: bytes) -> list[list[str]]:
+    rows = []
+    with pdfplumber.open(io.BytesIO(pdf)) as doc:
+        for page in doc.pages:
+            # Only the drawn cell borders, not the edges of the shaded header cells.
+            for table in page.extract_tables({"vertical_strategy": "lines_strict", "horizontal_strategy": "lines_strict"}):
+                rows += [[flat(cell or "").strip() for cell in row] for row in table]
+    return rows
+
+
+@pytest.mark.parametrize("name", ["strong", "gentle", "bodice"])
+def test_it_lists_every_seam_shift_at_every_level_in_words(pdfs, strong, gentle, bodice, name):
+    data = {"strong": strong, "gentle": gentle, "bodice": bodice}[name]
+    unit = data.result.unit
+    rows = table_rows(pdfs("work_order", name, "a4"))
+    by_edge = {(s.seam, s.level, s.panel): s for s in data.result.shifts}
+    checked = 0
+    for seam in data.block.seams:
+        for panel in (seam.front_panel, seam.back_panel):
+            row = next(r for r in rows if r[:2] == [seam.name, panel])
+            cells = [cell.split(" set by hand")[0].split(" with pins")[0] for cell in row[2:]]
+            assert cells == [expected_cell(by_edge.get((seam.name, level, panel)), unit)
+                             for level in data.block.level_names]
+            checked += 1
+    assert checked == 2 * len(data.block.seams)
+    text = text_of(pdfs("work_order", name, "a4"))
+    moved = [s.shift_mm for s in data.result.shifts if format_length(abs(s.shift_mm), unit) not in ("0", "0.0")]
+    if any(v < 0 for v in moved):
+        assert "take in" in text
+    if any(v > 0 for v in moved):
+        assert "let out" in text
+
+
+def test_it_lists_the_girths_per_level(pdfs, strong):
+    rows = table_rows(pdfs("work_order", "strong", "a4"))
+    for level in strong.result.levels:
+        row = next(r for r in rows if r and r[0] == LEVEL_LABELS[level.level])
+        assert row[1] == format_length(level.body, "in")
+        assert row[4] == format_length(level.target, "in")
+        assert row[6] == format_length(level.difference, "in", signed=True)
+
+
+def test_it_names_the_revision_and_how_to_open_it(pdfs):
+    text = flat(text_of(pdfs("work_order", "strong", "a4")))
+    assert "Work order" in text and "revision 3" in text and "(based on revision 2)" in text
+    assert "WF-0102" in text and "Overbust corset, six panels, size 12" in text
+    assert "4 March 2025" in text and "Demo Fitter" in text
+    assert f"{BASE_URL}/plans/7/revisions/3/" in text.replace(" ", "")
+    sheet = flat(text_of(pdfs("cutting_sheet", "strong", "a4")))
+    assert "Cutting sheet: Daily corset, revision 3" in sheet
+
+
+def test_it_shows_the_breathing_caution_for_a_strong_reduction(pdfs, strong):
+    finding = next(f for f in strong.result.findings if f.code == "strong_waist_reduction")
+    for kind in ("work_order", "cutting_sheet"):
+        text = flat(text_of(pdfs(kind, "strong", "a4")))
+        assert flat(WAIST_REDUCTION_CAUTION) in text
+        assert "restricts breathing" in text
+        assert flat(finding.message) in text
+
+
+def test_it_shows_the_waist_caution_for_any_reduction_and_not_without_one(pdfs, gentle):
+    assert not any(f.code == "strong_waist_reduction" for f in gentle.result.findings)
+    assert flat(WAIST_REDUCTION_CAUTION) in flat(text_of(pdfs("work_order", "gentle", "a4")))
+    assert "restricts breathing" not in text_of(pdfs("work_order", "bodice", "a4"))
+
+
+def test_it_carries_the_toile_pins(pdfs, strong):
+    rows = table_rows(pdfs("work_order", "strong", "a4"))
+    pin = strong.options.pins[0]
+    row = next(r for r in rows if r[:2] == [pin.seam, LEVEL_LABELS[pin.level]])
+    word = "let out" if pin.amount_mm > 0 else "take in"
+    assert row[2] == f"{word} {format_length(abs(pin.amount_mm), 'in')} in"
+
+
+def test_it_lists_the_layers_to_cut(pdfs, strong, bodice):
+    corset = table_rows(pdfs("work_order", "strong", "a4"))
+    assert ["Panel", "Outer fabric", "Strength layer", "Lining"] in corset
+    assert ["Centre front", "2 (a mirrored pair)", "2 (a mirrored pair)", "2 (a mirrored pair)"] in corset
+    dress = table_rows(pdfs("work_order", "bodice", "a4"))
+    assert ["Panel", "Outer fabric", "Lining"] in dress
+    assert ["Centre front", "1 on the fold", "1 on the fold"] in dress
+
+
+def test_it_has_sign_off_lines_and_page_numbers(pdfs):
+    pdf = pdfs("work_order", "strong", "letter")
+    text = text_of(pdf)
+    assert "Cut by" in text and "Checked by the fitter" in text
+    pages = len(pages_mm(pdf))
+    for n in range(1, pages + 1):
+        assert f"Page {n} of {pages}" in text
+
+
+def test_it_embeds_its_fonts(pdfs):
+    for kind in ("work_order", "cutting_sheet"):
+        reader = pypdf.PdfReader(io.BytesIO(pdfs(kind, "strong", "a4")))
+        fonts = {}
+        for page in reader.pages:
+            for font in page["/Resources"].get("/Font", {}).values():
+                font = font.get_object()
+                descendant = font["/DescendantFonts"][0].get_object() if "/DescendantFonts" in font else font
+                fonts[str(font["/BaseFont"])] = descendant["/FontDescriptor"].get_object()
+        assert fonts and all("DejaVu" in name for name in fonts)
+        assert all(any(k in d for k in ("/FontFile", "/FontFile2", "/FontFile3")) for d in fonts.values())
+
+
+def _geometry(pdf: bytes):
+    with pdfplumber.open(io.BytesIO(pdf)) as doc:
+        return [
+            (page.extract_text(),
+             [tuple(round(r[k], 3) for k in ("x0", "top", "width", "height")) for r in page.rects],
+             [tuple((round(x, 3), round(y, 3)) for x, y in c["pts"]) for c in page.curves],
+             [tuple((round(x, 3), round(y, 3)) for x, y in line["pts"]) for line in page.lines])
+            for page in doc.pages
+        ]
+
+
+def test_it_renders_the_same_pages_every_time(pdfs, strong):
+    for kind, render in (("work_order", render_work_order), ("cutting_sheet", render_cutting_sheet)):
+        first, again = pdfs(kind, "strong", "a4"), render(strong, "a4")
+        assert _geometry(first) == _geometry(again)
+        assert first == again  # and, with this WeasyPrint, the very same bytes
+
+
+def test_it_marks_a_draft_as_not_for_cutting():
+    text = flat(text_of(render_work_order(example_data("hester-quayle-first-corset", status="draft"), "a4")))
+    assert "Do not cut from this copy" in text
+
+
+# --- the app: revisions, print jobs, views ---------------------------------------------------
+
+PDF_STUB = b"%PDF-1.7\n% test stand-in\n"
+
+
+@pytest.fixture
+def quick_render(monkeypatch):
+    """Stand-ins for WeasyPrint where a test is about the job, not the pages."""
+    monkeypatch.setattr("fittings.tasks.render_work_order", lambda data, paper, pattern=None: PDF_STUB + b"WO")
+    monkeypatch.setattr("fittings.tasks.render_cutting_sheet", lambda data, paper, pattern=None: PDF_STUB + b"CS")
+
+
+def start_url(revision):
+    return reverse("fittings:print_start", args=[revision.plan_id, revision.number])
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_issues_a_draft_prints_it_and_serves_the_files(fitter_client, plan):
+    revision = plan_services.latest_revision(plan)
+    assert revision.status == RevisionStatus.DRAFT
+    response = fitter_client.post(start_url(revision), {"paper": "letter", "kind": "both"})
+    job = PrintJob.objects.get()
+    assert response.status_code == 302 and response["Location"] == reverse("fittings:print_status", args=[job.pk])
+    revision.refresh_from_db()
+    assert revision.status == RevisionStatus.ISSUED and revision.issued_by is not None
+    assert (job.status, job.paper, job.kind, job.error) == ("done", "letter", "both", "")
+    page = fitter_client.get(response["Location"])
+    assert page.status_code == 200 and "Download the work order" in page.content.decode()
+    download = fitter_client.get(reverse("fittings:print_download", args=[job.pk, "work-order"]))
+    assert download.status_code == 200 and download["Content-Type"] == "application/pdf"
+    assert download["Content-Disposition"].startswith("attachment;")
+    assert f"r{revision.number}-letter.pdf" in download["Content-Disposition"]
+    served = b"".join(download.streaming_content)
+    text = flat(text_of(served))
+    assert f"revision {revision.number}" in text and "issued" in text and "WF-0102" in text
+    assert "Odalys" not in text  # the client's name stays off paper unless the atelier allows it
+    # Printing again renders from the stored revision: the same document.
+    assert work_order_pdf(revision, "letter", "http://testserver/") == served
+    sheet = fitter_client.get(reverse("fittings:print_download", args=[job.pk, "cutting-sheet"]))
+    assert sheet.status_code == 200 and b"".join(sheet.streaming_content).startswith(b"%PDF")
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_shows_progress_as_an_htmx_fragment_that_polls_until_done(fitter_client, plan, quick_render):
+    revision = plan_services.issue_revision(revision=plan_services.latest_revision(plan), user=None)
+    waiting = PrintJob.objects.create(revision=revision, paper="a4")
+    url = reverse("fittings:print_status", args=[waiting.pk])
+    full = fitter_client.get(url)
+    assert full.status_code == 200 and "<html" in full.content.decode()
+    fragment = fitter_client.get(url, headers={"HX-Request": "true"})
+    html = fragment.content.decode()
+    assert fragment.status_code == 200 and "<html" not in html
+    assert html.lstrip().startswith('<div id="print-status"') and 'hx-trigger="every 1s"' in html
+    assert "Waiting to start" in html
+    assert run_print_job(waiting.pk) == "done"
+    done = fitter_client.get(url, headers={"HX-Request": "true"}).content.decode()
+    assert "hx-trigger" not in done and "Download the cutting sheet" in done
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_sends_anonymous_visitors_to_the_login(client, plan, quick_render):
+    revision = plan_services.latest_revision(plan)
+    job = PrintJob.objects.create(revision=revision, paper="a4")
+    for url in (reverse("fittings:print_download", args=[job.pk, "work-order"]),
+                reverse("fittings:print_status", args=[job.pk]), start_url(revision)):
+        response = client.get(url)
+        assert response.status_code == 302 and response["Location"].startswith(reverse("login"))
+    response = client.post(start_url(revision), {"paper": "a4", "kind": "both"})
+    assert response.status_code == 302 and response["Location"].startswith(reverse("login"))
+    revision.refresh_from_db()
+    assert revision.status == RevisionStatus.DRAFT
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_answers_404_for_what_does_not_exist(fitter_client, plan, quick_render):
+    revision = plan_services.latest_revision(plan)
+    assert fitter_client.get(reverse("fittings:print_status", args=[999999])).status_code == 404
+    assert fitter_client.get(reverse("fittings:print_download", args=[999999, "work-order"])).status_code == 404
+    assert fitter_client.get(reverse("fittings:print_start", args=[plan.pk, 99])).status_code == 404
+    assert fitter_client.post(reverse("fittings:print_start", args=[999999, 1]), {"paper": "a4"}).status_code == 404
+    job = PrintJob.objects.create(revision=revision, paper="a4")
+    # Not drawn yet, and a document that does not exist.
+    assert fitter_client.get(reverse("fittings:print_download", args=[job.pk, "work-order"])).status_code == 404
+    assert fitter_client.get(reverse("fittings:print_download", args=[job.pk, "invoice"])).status_code == 404
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+@pytest.mark.parametrize("data", [{"paper": "a3", "kind": "both"}, {"paper": "a4", "kind": "poster"}, {}])
+def test_it_refuses_bad_choices_with_a_message(fitter_client, plan, quick_render, data):
+    revision = plan_services.latest_revision(plan)
+    response = fitter_client.post(start_url(revision), data)
+    assert response.status_code == 400
+    assert "Select a valid choice" in response.content.decode() or "This field is required" in response.content.decode()
+    revision.refresh_from_db()
+    assert revision.status == RevisionStatus.DRAFT and not PrintJob.objects.exists()
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_offers_the_print_form_and_refuses_other_methods(fitter_client, plan):
+    revision = plan_services.latest_revision(plan)
+    page = fitter_client.get(start_url(revision))
+    html = page.content.decode()
+    assert page.status_code == 200 and "Issue and print" in html
+    assert '<option value="letter" selected>' in html  # the plan is kept in inches
+    assert fitter_client.put(start_url(revision)).status_code == 405
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_lets_the_workroom_print_issued_revisions_only(workroom_client, fitter_user, plan, quick_render):
+    revision = plan_services.latest_revision(plan)
+    assert workroom_client.post(start_url(revision), {"paper": "a4", "kind": "both"}).status_code == 403
+    revision.refresh_from_db()
+    assert revision.status == RevisionStatus.DRAFT and not PrintJob.objects.exists()
+    plan_services.issue_revision(revision=revision, user=fitter_user)
+    response = workroom_client.post(start_url(revision), {"paper": "a4", "kind": "work_order"})
+    job = PrintJob.objects.get()
+    assert response.status_code == 302 and job.status == "done" and job.work_order and not job.cutting_sheet
+    download = workroom_client.get(reverse("fittings:print_download", args=[job.pk, "work-order"]))
+    assert b"".join(download.streaming_content) == PDF_STUB + b"WO"
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_refuses_to_issue_a_draft_the_engine_found_errors_in(fitter_client, fitter_user, reducing_client, corset_12):
+    session = MeasurementSession.objects.create(client=reducing_client, unit="cm")
+    session.measurements.create(code="bust_girth", value_mm=950)  # no waist, underbust, abdomen or hip
+    plan = plan_services.start_plan(client=reducing_client, session=session, pattern=corset_12,
+                                    garment="Corset", user=fitter_user)
+    revision = plan_services.latest_revision(plan)
+    response = fitter_client.post(start_url(revision), {"paper": "a4", "kind": "both"})
+    assert response.status_code == 400
+    assert "problems to resolve before it can be printed" in response.content.decode()
+    revision.refresh_from_db()
+    assert revision.status == RevisionStatus.DRAFT and not PrintJob.objects.exists()
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_records_a_failed_drawing_in_words(fitter_client, plan, monkeypatch):
+    def broken(data, paper, pattern=None):
+        raise RuntimeError("the pen ran dry")
+
+    monkeypatch.setattr("fittings.tasks.render_work_order", broken)
+    revision = plan_services.latest_revision(plan)
+    response = fitter_client.post(start_url(revision), {"paper": "a4", "kind": "both"})
+    job = PrintJob.objects.get()
+    assert response.status_code == 302 and job.status == "failed" and job.finished_at is not None
+    assert "could not be drawn" in job.error and "the pen ran dry" in job.error
+    page = fitter_client.get(response["Location"]).content.decode()
+    assert "the pen ran dry" in page and "Try again" in page
+    assert fitter_client.get(reverse("fittings:print_download", args=[job.pk, "work-order"])).status_code == 404
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_prints_the_client_name_only_where_the_atelier_allows_it(settings, plan):
+    revision = plan_services.latest_revision(plan)
+    client = plan.client
+    assert client_label(client) == client.reference
+    data = document_data(revision, BASE_URL)
+    assert data.client_label == client.reference and client.name not in data.client_label
+    assert data.revision_url == BASE_URL + reverse("fittings:revision_detail", args=[plan.pk, revision.number])
+    settings.ATELIER_PRINT_CLIENT_NAME = True
+    assert client_label(client) == f"{client.reference} {client.name}"
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_runs_a_job_once(plan, quick_render):
+    revision = plan_services.latest_revision(plan)
+    job = PrintJob.objects.create(revision=revision, paper="a4", kind="cutting_sheet")
+    assert run_print_job(job.pk) == "done"
+    assert run_print_job(job.pk) == "skipped"
+    assert run_print_job(999999) == "skipped"
+    job.refresh_from_db()
+    assert job.cutting_sheet and not job.work_order and job.started_at and job.finished_at
