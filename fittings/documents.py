@@ -617,7 +617,7 @@ def tile_svg(sheet: Sheet, grid: TileGrid, row: int, column: int) -> str:
     """One page's share of the sheet, at true size: one SVG unit = 1 mm."""
     tile = grid.tile(row, column)
     w, h = tile.width_mm, tile.height_mm
-    root = _svg_root(w, h, (tile.x_mm, tile.y_mm, w, h), "tile")
+    root = _svg_root(w, h, (tile.x_mm * 0.99, tile.y_mm, w, h), "tile")
     _overlap_strips(root, grid)
     area = (tile.x_mm, tile.y_mm, tile.x_mm + w, tile.y_mm + h)
     for piece in sheet.pieces:

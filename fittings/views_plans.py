@@ -12,7 +12,7 @@ from fittings.forms import NewPlanForm, PinForm, PlanOptionsForm
 from fittings.models import MeasurementSession, Plan, PlanRevision
 from fittings.services import plans as plan_services
 from fittings.tables import plan_table
-from patterns.core.units import format_with_unit
+from patterns.core.units import format_length, format_with_unit
 from patterns.selectors import active_patterns
 
 EDITORS = (OWNER, FITTER)
@@ -159,6 +159,7 @@ def _result_context(request, plan, form, block, result, options):
         "plan": plan, "form": form, "block": block, "result": result,
         "table": plan_table(block, result, form=form),
         "preview_url": reverse("fittings:plan_preview", args=[plan.pk]) + (f"?{preview_query}" if preview_query else ""),
+        "checks_url": reverse("fittings:plan_checks", args=[plan.pk]) + (f"?{preview_query}" if preview_query else ""),
         "unit": options.unit,
     }
 
@@ -174,6 +175,7 @@ def _plan_page(request, plan, latest, form, block, values, result, status=200, c
     context = _result_context(request, plan, form, block, result, options)
     if not form.is_bound:
         context["preview_url"] = reverse("fittings:revision_preview", args=[plan.pk, latest.number])
+        context["checks_url"] = reverse("fittings:revision_checks", args=[plan.pk, latest.number])
     context.update({
         "client": plan.client, "session": plan.session, "latest": latest, "conflict": conflict,
         "can_edit": _can_edit(request.user), "values": values,
@@ -194,6 +196,7 @@ def revision_detail(request, pk, number):
         "plan": plan, "client": plan.client, "revision": revision, "block": block, "result": result,
         "table": plan_table(block, result), "unit": options.unit, "options": options, "values": values,
         "preview_url": reverse("fittings:revision_preview", args=[plan.pk, revision.number]),
+        "checks_url": reverse("fittings:revision_checks", args=[plan.pk, revision.number]),
         "can_edit": _can_edit(request.user),
         "revisions": plan.revisions.defer("inputs", "result").order_by("-number"),
     }
@@ -266,3 +269,87 @@ def revision_apply_pins(request, pk, number):
     messages.success(request, f"Revision {new.number} carries the pins from revision {revision.number}.")
     return redirect("fittings:revision_detail", plan.pk, new.number)
 
+
+
+@require_GET
+@role_required(*ROLES)
+def revision_fitting_file(request, pk, number):
+    """The revision's inputs as a fitting file (JSON), the same format the import takes."""
+    import json
+
+    plan = _plan(pk)
+    revision = _revision(plan, number)
+    response = HttpResponse(json.dumps(revision.inputs, indent=2), content_type="application/json")
+    response["Content-Disposition"] = f'attachment; filename="{plan.client.reference}-plan{plan.pk}-rev{number}.json"'
+    return response
+
+
+MAX_FITTING_FILE_BYTES = 512 * 1024
+
+
+@role_required(*EDITORS)
+def fitting_import(request, client_pk):
+    """Take in a fitting file for this client: a new session and a new plan from it."""
+    from fittings.models import Client
+
+    client = get_object_or_404(Client, pk=client_pk)
+    error = None
+    if request.method == "POST":
+        upload = request.FILES.get("file")
+        garment = (request.POST.get("garment") or "").strip()
+        if upload is None:
+            error = "Choose a fitting file (JSON) to import."
+        elif upload.size > MAX_FITTING_FILE_BYTES:
+            error = f"The file is larger than {MAX_FITTING_FILE_BYTES // 1024} KB; a fitting file is far smaller."
+        elif len(garment) > 200:
+            error = "The garment name is too long (200 characters at most)."
+        else:
+            try:
+                text = upload.read().decode("utf-8")
+            except UnicodeDecodeError:
+                error = "The file is not text (UTF-8); a fitting file is JSON."
+            else:
+                try:
+                    plan = plan_services.import_fitting(client=client, text=text, user=request.user, garment=garment)
+                except plan_services.ImportRefused as exc:
+                    error = f"{exc.field}: {exc.message}"
+                else:
+                    messages.success(request, "Fitting file imported as a new session and plan.")
+                    return redirect("fittings:plan_edit", plan.pk)
+        return render(request, "fittings/fitting_import.html", {"client": client, "error": error}, status=400)
+    return render(request, "fittings/fitting_import.html", {"client": client})
+
+
+def _checks_response(request, block, result, unit):
+    pattern = previews.altered_for(block, result)
+    rows = [
+        {
+            "seam": t.seam, "front": t.front_panel, "back": t.back_panel,
+            "front_after": format_length(t.front_after_mm, unit), "back_after": format_length(t.back_after_mm, unit),
+            "difference": format_length(t.after_difference_mm, unit, signed=True),
+            "change": format_length(t.change_mm, unit, signed=True), "ok": t.within_tolerance, "end": t.end,
+        }
+        for t in pattern.seams
+    ]
+    return render(request, "fittings/_seam_checks.html", {"rows": rows, "findings": pattern.findings, "unit": unit})
+
+
+@require_GET
+@role_required(*ROLES)
+def plan_checks(request, pk):
+    """Seam truing and outline checks for the live form's values (asked for after the table)."""
+    plan = _plan(pk)
+    values, block, options = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    form = PlanOptionsForm(request.GET, block=block, unit=options.unit)
+    if form.is_valid():
+        options = form.options()
+    return _checks_response(request, block, previews.computed(block, values, options), options.unit)
+
+
+@require_GET
+@role_required(*ROLES)
+def revision_checks(request, pk, number):
+    plan = _plan(pk)
+    revision = _revision(plan, number)
+    values, block, options = plan_services.revision_inputs(revision)
+    return _checks_response(request, block, plan_services.revision_result(revision), options.unit)

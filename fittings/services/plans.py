@@ -191,3 +191,42 @@ def record_pins(*, revision: PlanRevision, pins, note: str, user) -> list[PinAdj
         PinAdjustment(revision=revision, seam=seam, level=level, amount_mm=amount, note=note, created_by=user)
         for seam, level, amount in pins
     ])
+
+
+class ImportRefused(ValueError):
+    """A fitting file that cannot be taken in, with the field at fault."""
+
+    def __init__(self, field: str, message: str):
+        self.field, self.message = field, message
+        super().__init__(f"{field}: {message}")
+
+
+@transaction.atomic
+def import_fitting(*, client, text: str, user, garment: str = "") -> Plan:
+    """Take in a fitting file: a new session with its readings and a plan with its options.
+
+    The file's base pattern must be one the atelier keeps (same name and size);
+    the stored pattern is used, so a file cannot bring in a pattern of its own.
+    """
+    from django.utils import timezone as tz
+
+    from fittings.models import Measurement, MeasurementSession
+    from patterns.core.fitting import FittingFileError, load_fitting_text
+    from patterns.models import BasePattern
+
+    try:
+        values, block, options = load_fitting_text(text)
+    except FittingFileError as exc:
+        raise ImportRefused(exc.field, exc.message) from exc
+    pattern = BasePattern.objects.filter(name=block.name, size_label=block.size).first()
+    if pattern is None:
+        raise ImportRefused("pattern", f"This atelier has no base pattern “{block.name}”, size {block.size}.")
+    stored = block_for(pattern)
+    if stored != block:
+        raise ImportRefused("pattern", f"The file's “{block.name}”, size {block.size}, differs from the atelier's; "
+                                       "import refused so that no plan is made against the wrong shapes.")
+    session = MeasurementSession.objects.create(client=client, measured_by=user, taken_on=tz.localdate(), kind="check",
+                                                unit=options.unit, notes="Imported from a fitting file.")
+    Measurement.objects.bulk_create([Measurement(session=session, code=c, value_mm=v) for c, v in values.items()])
+    return start_plan(client=client, session=session, pattern=pattern, garment=garment or "Imported plan",
+                      user=user, options=options)

@@ -183,10 +183,12 @@ def test_it_draws_every_panel_at_true_size_across_the_tiles(pdfs, strong, bodice
     with pdfplumber.open(io.BytesIO(pdfs("cutting_sheet", name, paper))) as doc:
         for index, page in enumerate(doc.pages[1:]):
             row, col = divmod(index, cols)
-            # The tile's frame: the printable area, found on the page itself.
+            # The printable area: the page less its margins, from the page's own size.
+            fx = fy = PAGE_MARGIN_MM
+            fw, fh = page.width * MM_PER_PT - 2 * PAGE_MARGIN_MM, page.height * MM_PER_PT - 2 * PAGE_MARGIN_MM
             frame = max(page.rects, key=lambda r: r["width"] * r["height"] if r["stroke"] and not r["fill"] else 0)
-            fx, fy = frame["x0"] * MM_PER_PT, frame["top"] * MM_PER_PT
-            fw, fh = frame["width"] * MM_PER_PT, frame["height"] * MM_PER_PT
+            assert [v * MM_PER_PT for v in (frame["x0"], frame["top"], frame["width"], frame["height"])] == (
+                pytest.approx([fx, fy, fw, fh], abs=0.1))
             # Each tile starts one printable width less the overlap after the one before it.
             ox, oy = col * (fw - OVERLAP_MM), row * (fh - OVERLAP_MM)
             for curve in page.curves:
@@ -266,15 +268,22 @@ def test_it_names_the_revision_and_how_to_open_it(pdfs):
     assert "Work order" in text and "revision 3" in text and "(based on revision 2)" in text
     assert "WF-0102" in text and "Overbust corset, six panels, size 12" in text
     assert "4 March 2025" in text and "Demo Fitter" in text
-    assert f"{BASE_URL}/plans/7/revisions/3/" in text.replace(" ", "")
+    with pdfplumber.open(io.BytesIO(pdfs("work_order", "strong", "a4"))) as doc:
+        page = doc.pages[0]
+        # The QR code's column, top right: the address printed under the code.
+        corner = page.crop((page.width - 50 / MM_PER_PT, 0, page.width, page.height / 3)).extract_text()
+    assert f"{BASE_URL}/plans/7/revisions/3/" in re.sub(r"\s+", "", corner)
     sheet = flat(text_of(pdfs("cutting_sheet", "strong", "a4")))
     assert "Cutting sheet: Daily corset, revision 3" in sheet
 
 
 def test_it_shows_the_breathing_caution_for_a_strong_reduction(pdfs, strong):
     finding = next(f for f in strong.result.findings if f.code == "strong_waist_reduction")
-    for kind in ("work_order", "cutting_sheet"):
-        text = flat(text_of(pdfs(kind, "strong", "a4")))
+    with pdfplumber.open(io.BytesIO(pdfs("cutting_sheet", "strong", "a4"))) as doc:
+        cover = doc.pages[0]
+        # The notes column, right of the test squares.
+        notes = cover.crop((118 / MM_PER_PT, 0, cover.width, cover.height)).extract_text()
+    for text in (flat(text_of(pdfs("work_order", "strong", "a4"))), flat(notes)):
         assert flat(WAIST_REDUCTION_CAUTION) in text
         assert "restricts breathing" in text
         assert flat(finding.message) in text
