@@ -61,7 +61,7 @@ SHEET_MARGIN_MM = 5.0
 # Test squares: 10 cm, and 4 in = 101.6 mm (1 in = 25.4 mm exactly, 1959
 # international yard and pound agreement).  Checking one with a ruler before
 # cutting is common practice for printed patterns.
-TEST_SQUARES = (("cm", 100.0, "10 cm"), ("in", 101.6, "4 in"))
+TEST_SQUARES = (("cm", 100.0, "10 cm", 10), ("in", 101.6, "4 in", 8))  # ticks: every 1 cm, every 1/2 in
 SQUARE_PAD_MM = 1.0
 # Room on the cutting sheet's first page for the assembly map (mm).
 MAP_WIDTH_MM = 80.0
@@ -75,8 +75,6 @@ CUT_WIDTH_MM, STITCH_WIDTH_MM, FRAME_WIDTH_MM = 0.4, 0.3, 0.2
 STITCH_DASH = "3 1.5"
 NOTCH_WIDTH_MM = 0.4
 LABEL_HEIGHT_MM = 5.0
-# Labels farther than this from a tile are left off it (they could not show).
-LABEL_ROOM_MM = 80.0
 MARK_RADIUS_MM = 2.5
 # Drawn lines keep within this of the computed outline (far finer than the pen).
 DRAW_TOLERANCE_MM = 0.05
@@ -308,7 +306,6 @@ def level_rows(data: DocumentData) -> list[dict]:
             "label": LEVEL_LABELS.get(lv.level, lv.level),
             "body": _fmt(lv.body, unit),
             "ease": _fmt(lv.ease, unit, signed=True),
-            "ease_word": "reduction" if lv.ease < 0 else ("ease" if lv.ease > 0 else ""),
             "gap": _fmt(lv.lacing_gap, unit) if lv.lacing_gap else "–",
             "target": _fmt(lv.target, unit),
             "pattern": _fmt(lv.pattern, unit),
@@ -522,7 +519,7 @@ def _text(parent, x, y, text, size, *, anchor="start", weight="normal", colour="
     return el
 
 
-def _draw_piece(parent, piece: SheetPiece, area=None) -> None:
+def _draw_piece(parent, piece: SheetPiece, area=None, tag: str = "") -> None:
     o = piece.outline
     g = ET.SubElement(parent, "g", {"class": "panel", "transform": f"translate({_n(piece.dx)} {_n(piece.dy)})"})
     _line(g, _d(piece.cutting, True), CUT_COLOUR, CUT_WIDTH_MM, **{"class": "cut"})
@@ -532,15 +529,19 @@ def _draw_piece(parent, piece: SheetPiece, area=None) -> None:
         _line(g, notches, MARK_COLOUR, NOTCH_WIDTH_MM, **{"class": "notch"})
     _line(g, _grain_d(o.grainline), MARK_COLOUR, 0.3, **{"class": "grain"})
     x, y = o.label_at
-    step = 1.4 * LABEL_HEIGHT_MM
-    lines = list(o.labels) + (["place on fold"] if o.on_fold else [])
-    for i, text in enumerate(lines):
-        if area is not None and not _overlaps(
-            (x + piece.dx - LABEL_ROOM_MM, y + piece.dy - LABEL_ROOM_MM, x + piece.dx + LABEL_ROOM_MM,
-             y + piece.dy + LABEL_ROOM_MM), area):
-            continue
-        _text(g, x + 2 + LABEL_HEIGHT_MM + i * step, y, text, LABEL_HEIGHT_MM, anchor="middle",
-              weight="bold" if i == 0 else "normal", rotate=-90)
+    # Two lines along the grainline: the panel's name, then the rest.  WeasyPrint lays SVG
+    # text out letter by letter, so labels go only on the tiles they show on.
+    name, *rest = o.labels
+    rest = [*rest, *(["place on fold"] if o.on_fold else []), *([tag] if tag else [])]
+    half = 0.6 * LABEL_HEIGHT_MM * max(len(name), len(" · ".join(rest))) / 2
+    x, y = x + piece.dx, y + piece.dy
+    if area is not None and not _overlaps((x, y - half, x + 3 * LABEL_HEIGHT_MM, y + half), area):
+        return
+    x, y = x - piece.dx, y - piece.dy
+    _text(g, x + 2 + LABEL_HEIGHT_MM, y, name, LABEL_HEIGHT_MM, anchor="middle", weight="bold", rotate=-90)
+    if rest:
+        _text(g, x + 2 + LABEL_HEIGHT_MM + 1.4 * LABEL_HEIGHT_MM, y, " · ".join(rest), 0.8 * LABEL_HEIGHT_MM,
+              anchor="middle", rotate=-90)
 
 
 def _alignment_marks(parent, grid: TileGrid, area=None) -> None:
@@ -613,38 +614,32 @@ def _svg_root(width_mm: float, height_mm: float, viewbox: tuple[float, float, fl
     })
 
 
-def tile_svg(sheet: Sheet, grid: TileGrid, row: int, column: int) -> str:
+def tile_svg(sheet: Sheet, grid: TileGrid, row: int, column: int, tag: str = "") -> str:
     """One page's share of the sheet, at true size: one SVG unit = 1 mm."""
     tile = grid.tile(row, column)
     w, h = tile.width_mm, tile.height_mm
-    root = _svg_root(w, h, (tile.x_mm * 0.99, tile.y_mm, w, h), "tile")
+    root = _svg_root(w, h, (tile.x_mm, tile.y_mm, w, h), "tile")
     _overlap_strips(root, grid)
     area = (tile.x_mm, tile.y_mm, tile.x_mm + w, tile.y_mm + h)
     for piece in sheet.pieces:
         if _overlaps(piece.bounds, area):
-            _draw_piece(root, piece, area)
+            _draw_piece(root, piece, area, tag)
     _alignment_marks(root, grid, area)
     ET.SubElement(root, "rect", {"class": "frame", "x": _n(tile.x_mm), "y": _n(tile.y_mm), "width": _n(w),
                                  "height": _n(h), "fill": "none", "stroke": FRAME_COLOUR,
                                  "stroke-width": _n(FRAME_WIDTH_MM)})
-    lx = tile.x_mm + (grid.overlap_mm if column else 0) + 3
-    ly = tile.y_mm + (grid.overlap_mm if row else 0) + 3
-    _text(root, lx, ly + 8, tile.label, 9, weight="bold", colour="#505050", cls="tile-label")
-    info = f"row {row_label(row)}, column {column + 1}"
-    if grid.count > 1:
-        info += f"; {neighbours(grid, row, column)}"
-    _text(root, lx, ly + 13, info, 3.2, colour="#505050")
     return ET.tostring(root, encoding="unicode")
 
 
-def square_svg(side_mm: float, name: str) -> str:
-    """A test square of ``side_mm``, labelled, with ticks every tenth of its side."""
+def square_svg(side_mm: float, name: str, divisions: int = 10) -> str:
+    """A test square of ``side_mm``, labelled, with ticks along its top edge at each of ``divisions``."""
     pad = SQUARE_PAD_MM
     root = _svg_root(side_mm + 2 * pad, side_mm + 2 * pad, (-pad, -pad, side_mm + 2 * pad, side_mm + 2 * pad),
                      "test-square")
     ET.SubElement(root, "rect", {"class": "square", "x": "0", "y": "0", "width": _n(side_mm), "height": _n(side_mm),
                                  "fill": "none", "stroke": "#000000", "stroke-width": "0.3"})
-    ticks = "".join(f"M{_n(side_mm * i / 10)} 0L{_n(side_mm * i / 10)} {3 if i % 5 else 5}" for i in range(1, 10))
+    ticks = "".join(f"M{_n(side_mm * i / divisions)} 0L{_n(side_mm * i / divisions)} {5 if 2 * i == divisions else 3}"
+                    for i in range(1, divisions))
     _line(root, ticks, "#000000", 0.2)
     _text(root, side_mm / 2, side_mm / 2 - 3, f"{name} test square", 5, anchor="middle", weight="bold")
     _text(root, side_mm / 2, side_mm / 2 + 5, f"must measure {name} each way", 3.5, anchor="middle")
@@ -678,7 +673,10 @@ def sheet_grid(pattern: AlteredPattern, paper: str) -> tuple[Sheet, TileGrid]:
 def cutting_sheet_html(data: DocumentData, paper: str, pattern: AlteredPattern | None = None) -> str:
     pattern = pattern or altered_pattern(data)
     sheet, grid = sheet_grid(pattern, paper)
-    tiles = [{"label": t.label, "src": svg_data_uri(tile_svg(sheet, grid, t.row, t.column)),
+    tag = f"{data.client_label.split()[0]} rev. {data.revision_number}" if data.client_label else ""
+    tiles = [{"label": t.label, "row": row_label(t.row), "column": t.column + 1,
+              "neighbours": neighbours(grid, t.row, t.column),
+              "src": svg_data_uri(tile_svg(sheet, grid, t.row, t.column, tag)),
               "width": _n(t.width_mm), "height": _n(t.height_mm)} for t in grid.tiles()]
     map_text = map_svg(sheet, grid)
     map_size = re.search(r'width="([0-9.]+)mm" height="([0-9.]+)mm"', map_text)
@@ -689,8 +687,8 @@ def cutting_sheet_html(data: DocumentData, paper: str, pattern: AlteredPattern |
         "orientation": grid.orientation,
         "margin_mm": _n(grid.margin_mm),
         "title": f"Cutting sheet, {data.garment}, revision {data.revision_number}",
-        "squares": [{"name": name, "src": svg_data_uri(square_svg(side, name)), "size": _n(side + 2 * SQUARE_PAD_MM)}
-                    for _, side, name in TEST_SQUARES],
+        "squares": [{"name": name, "src": svg_data_uri(square_svg(side, name, divisions)),
+                     "size": _n(side + 2 * SQUARE_PAD_MM)} for _, side, name, divisions in TEST_SQUARES],
         "map": svg_data_uri(map_text),
         "map_width": map_size[1],
         "map_height": map_size[2],

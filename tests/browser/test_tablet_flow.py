@@ -45,7 +45,9 @@ def test_it_takes_a_new_client_from_tape_to_an_issued_plan(tablet, live_server, 
     page.wait_for_load_state("networkidle")
     page.snap("after-save")
     page.wait_for_selector("text=Suggested base size")
-    assert "size 10" in page.inner_text("section.card")
+    suggested = page.inner_text("section.card strong").rstrip(".")
+    assert "needs the least alteration" in page.inner_text("section.card")
+    assert page.locator("#id_base_pattern option:checked").inner_text() == suggested
     page.snap("choose-pattern")
     page.fill("#id_garment", "Wedding corset")
     page.tap("text=Start the plan")

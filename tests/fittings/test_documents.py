@@ -540,3 +540,22 @@ def test_it_runs_a_job_once(plan, quick_render):
     assert run_print_job(999999) == "skipped"
     job.refresh_from_db()
     assert job.cutting_sheet and not job.work_order and job.started_at and job.finished_at
+
+
+@pytest.mark.django_db(transaction=True)
+@pytest.mark.urls(__name__)
+def test_it_leaves_the_drawing_to_the_worker_when_tasks_are_queued(settings, fitter_client, plan, quick_render):
+    from django.core.management import call_command
+
+    settings.TASKS = {"default": {"BACKEND": "django_tasks_db.DatabaseBackend"}}
+    revision = plan_services.latest_revision(plan)
+    response = fitter_client.post(start_url(revision), {"paper": "a4", "kind": "both"})
+    job = PrintJob.objects.get()
+    # The request only queued the job: nothing drawn yet, and the page keeps asking.
+    assert response.status_code == 302 and job.status == "queued" and job.task_id
+    revision.refresh_from_db()
+    assert revision.status == RevisionStatus.ISSUED
+    assert 'hx-trigger="every 1s"' in fitter_client.get(response["Location"], headers={"HX-Request": "true"}).content.decode()
+    call_command("db_worker", "--batch", "--no-startup-delay", "--no-reload", verbosity=0)
+    job.refresh_from_db()
+    assert job.status == "done" and job.work_order and job.cutting_sheet

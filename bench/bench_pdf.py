@@ -1,0 +1,170 @@
+"""Time the printed documents: work order + cutting sheet (a script, not a test).
+
+    .venv/bin/python bench/bench_pdf.py [--runs 7] [--paper a4] [--json]
+
+Renders from plain data (fittings.documents.render_*), so no database is
+needed; Django is set up only for its templates.  For the demo's six-panel
+corset (size 10) and an invented twelve-panel block it prints the median
+and p95 wall time and CPU time of one print (both documents, outlines
+included), beside a minimal one-page WeasyPrint document rendered warm in
+the same run, and the ratio of the two.  Peak memory is measured in a
+separate pass under tracemalloc (Python allocations) and as the process's
+peak resident size.
+
+Targets: at most 1.5 s for the six-panel corset and at most 3x the minimal
+document.
+"""
+
+import argparse
+import json
+import os
+import re
+import resource
+import statistics
+import sys
+import time
+import tracemalloc
+from datetime import date
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+os.environ.setdefault("DJANGO_SETTINGS_MODULE", "atelier.settings")
+
+import django  # noqa: E402
+
+django.setup()
+
+from fittings.documents import (  # noqa: E402
+    DocumentData, altered_pattern, html_to_pdf, render_cutting_sheet, render_work_order,
+)
+from fittings.services.plans import default_options  # noqa: E402
+from patterns import demo  # noqa: E402
+from patterns.core.allot import allot  # noqa: E402
+from patterns.core.block import BACK, CB_LACED, CF_BUSK, FRONT, Block, Panel, Point, Seam  # noqa: E402
+from patterns.core.fitting import body_from_measurements  # noqa: E402
+
+PAGE = re.compile(rb"/Type\s*/Page(?![a-zA-Z])")
+MINIMAL_HTML = "<!doctype html><title>x</title><p style='font-family: DejaVu Sans'>One line on one page.</p>"
+
+
+def twelve_panel_block() -> Block:
+    """An invented overbust block, size 10 girths, cut in twelve panels per half."""
+    base = demo.corset_block("10")
+    count = 12
+    half = {lv.name: base.half_girth(lv.name) for lv in base.levels}
+    first, last = base.levels[0].name, base.levels[-1].name
+    panels, x = [], 0.0
+    for i in range(count):
+        share = (1 + 0.04 * ((i % 3) - 1)) / count
+        widths = {lv: round(half[lv] * share, 1) for lv in half}
+        widest = max(widths.values())
+        centre = x + widest / 2
+        left = {lv: centre - w / 2 for lv, w in widths.items()}
+        right = {lv: centre + w / 2 for lv, w in widths.items()}
+        top, bottom = 10.0 * (i % 4), base.level_y(last) + 20 - 5 * (i % 3)
+        panels.append(Panel(
+            name=f"Panel {i + 1}", side=FRONT if i < count // 2 else BACK, left=left, right=right,
+            top_left=Point(left[first], top), top_right=Point(right[first], top),
+            bottom_left=Point(left[last], bottom), bottom_right=Point(right[last], bottom),
+        ))
+        x += widest + 50
+    levels = frozenset(lv.name for lv in base.levels)
+    seams = tuple(
+        Seam(f"Seam {i + 1}", "side" if i == count // 2 - 1 else ("princess" if i % 2 else "other"),
+             a.name, b.name, levels, 15.0)
+        for i, (a, b) in enumerate(zip(panels, panels[1:]))
+    )
+    return Block("Bench corset, twelve panels", "10", "overbust corset", base.levels, tuple(panels), seams,
+                 centre_front=CF_BUSK, centre_back=CB_LACED)
+
+
+def data_for(block: Block) -> DocumentData:
+    values = {k: float(v) for k, v in demo.DEMO_CLIENTS[0]["sessions"][0]["values"].items()}
+    options = default_options(block, "cm")
+    result = allot(block, body_from_measurements(values), options)
+    return DocumentData(
+        atelier_name=demo.ATELIER_NAME, client_label="WF-0101", garment="Bench corset", fitting_date=date(2025, 1, 1),
+        measured_by="Bench", revision_number=1, revision_status="issued", issued_at=None, issued_by="",
+        based_on=None, revision_url="https://atelier.example/plans/1/revisions/1/",
+        measurements=values, block=block, options=options, result=result,
+    )
+
+
+def print_both(data: DocumentData, paper: str) -> tuple[bytes, bytes]:
+    """What one print job does: outlines once, then both documents."""
+    pattern = altered_pattern(data)
+    return render_work_order(data, paper, pattern), render_cutting_sheet(data, paper, pattern)
+
+
+def percentile(values, share):
+    values = sorted(values)
+    return values[min(len(values) - 1, int(round(share * (len(values) - 1))))]
+
+
+def timed(fn, runs):
+    wall, cpu = [], []
+    for _ in range(runs):
+        w, c = time.perf_counter(), time.process_time()
+        fn()
+        wall.append(time.perf_counter() - w)
+        cpu.append(time.process_time() - c)
+    return {
+        "wall_median_s": statistics.median(wall), "wall_p95_s": percentile(wall, 0.95),
+        "cpu_median_s": statistics.median(cpu), "cpu_p95_s": percentile(cpu, 0.95),
+    }
+
+
+def peak_mib(fn):
+    tracemalloc.start()
+    fn()
+    _, peak = tracemalloc.get_traced_memory()
+    tracemalloc.stop()
+    return peak / 2**20
+
+
+def main(argv=None):
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--runs", type=int, default=7)
+    parser.add_argument("--paper", choices=["a4", "letter"], default="a4")
+    parser.add_argument("--json", action="store_true")
+    args = parser.parse_args(argv)
+
+    cases = {"six_panel": data_for(demo.corset_block("10")), "twelve_panel": data_for(twelve_panel_block())}
+    # Warm up: fonts, templates, the first WeasyPrint run.
+    html_to_pdf(MINIMAL_HTML)
+    for data in cases.values():
+        print_both(data, args.paper)
+
+    rows = {"minimal_page": timed(lambda: html_to_pdf(MINIMAL_HTML), max(20, args.runs))}
+    for name, data in cases.items():
+        work_order, cutting_sheet = print_both(data, args.paper)
+        rows[name] = timed(lambda data=data: print_both(data, args.paper), args.runs)
+        rows[name]["pages"] = sum(len(PAGE.findall(pdf)) for pdf in (work_order, cutting_sheet))
+        rows[name]["peak_python_mib"] = peak_mib(lambda data=data: print_both(data, args.paper))
+        for key in ("wall", "cpu"):
+            rows[name][f"ratio_{key}_median"] = rows[name][f"{key}_median_s"] / rows["minimal_page"][f"{key}_median_s"]
+    rows["max_rss_mib"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+    rows["load_average"] = os.getloadavg()[0]
+
+    if args.json:
+        print(json.dumps(rows, indent=2))
+        return rows
+    print(f"paper {args.paper}, {args.runs} runs, load average {rows['load_average']:.2f} on {os.cpu_count()} cores")
+    print(f"{'what':<36}{'pages':>6}{'wall med':>10}{'wall p95':>10}{'cpu med':>10}{'cpu p95':>10}{'x minimal':>11}{'peak MiB':>10}")
+    for name, label in (("minimal_page", "minimal one-page document"),
+                        ("six_panel", "6-panel corset: both documents"),
+                        ("twelve_panel", "12-panel block: both documents")):
+        r = rows[name]
+        ratio = f"{r['ratio_wall_median']:.1f}x" if "ratio_wall_median" in r else ""
+        peak = f"{r['peak_python_mib']:.1f}" if "peak_python_mib" in r else ""
+        print(f"{label:<36}{r.get('pages', 1):>6}{r['wall_median_s']:>10.3f}{r['wall_p95_s']:>10.3f}"
+              f"{r['cpu_median_s']:>10.3f}{r['cpu_p95_s']:>10.3f}{ratio:>11}{peak:>10}")
+    print(f"peak resident size of the process: {rows['max_rss_mib']:.0f} MiB")
+    six = rows["six_panel"]
+    print(f"targets: 6-panel <= 1.5 s (median wall {six['wall_median_s']:.2f} s, cpu {six['cpu_median_s']:.2f} s); "
+          f"<= 3x the minimal document ({six['ratio_wall_median']:.0f}x)")
+    return rows
+
+
+if __name__ == "__main__":
+    main()
