@@ -114,6 +114,7 @@ INSTALLED_APPS = [
 
 MIDDLEWARE = [
     "django.middleware.security.SecurityMiddleware",
+    "atelier.security.RequestSizeLimitMiddleware",
     "whitenoise.middleware.WhiteNoiseMiddleware",
     "django.contrib.sessions.middleware.SessionMiddleware",
     "django.middleware.common.CommonMiddleware",
@@ -231,6 +232,13 @@ SECURE_CSP = {
     "frame-ancestors": [CSP.NONE],
 }
 X_FRAME_OPTIONS = "DENY"
+
+# Requests larger than this are refused before they are read (atelier/security.py):
+# a session form with three 8 MB photos fits.
+ATELIER_MAX_REQUEST_BYTES = env_int("ATELIER_MAX_REQUEST_MB", 30) * 1024 * 1024
+# htmx sends the token from the page (base.html), so no script needs to read the cookie.
+CSRF_COOKIE_HTTPONLY = True
+SESSION_COOKIE_HTTPONLY = True
 
 if env_bool("ATELIER_BEHIND_PROXY"):
     # The proxy in front terminates HTTPS and says so in this header.

@@ -175,3 +175,30 @@ class PrintJobAdmin(admin.ModelAdmin):
             if file
         ]
         return format_html_join(" · ", "{}", ((link,) for link in links)) if links else "–"
+
+
+# --- audit trail (read only) ------------------------------------------------------------
+
+from fittings.models import AuditEntry  # noqa: E402
+
+
+@admin.register(AuditEntry)
+class AuditEntryAdmin(admin.ModelAdmin):
+    """Read only: entries are written by the app's services and kept as written."""
+
+    list_display = ["at", "username", "action", "object_type", "object_id", "client_reference", "summary"]
+    list_filter = ["action", "object_type", "at"]
+    search_fields = ["client_reference", "username", "summary"]
+    date_hierarchy = "at"
+    fields = ["at", "username", "user", "action", "object_type", "object_id", "client_reference", "summary",
+              "before", "after"]
+    readonly_fields = fields
+
+    def has_add_permission(self, request):
+        return False
+
+    def has_change_permission(self, request, obj=None):
+        return False
+
+    def has_delete_permission(self, request, obj=None):
+        return False

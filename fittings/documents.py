@@ -14,10 +14,12 @@ Two layers:
 
 ``work_order_pdf`` and ``cutting_sheet_pdf`` join the two for a revision.
 
-Scale: the cutting sheet's tiles are inline SVG sized in CSS millimetres,
-which are absolute units (W3C CSS Values and Units Level 3, 5.2), with one
-SVG user unit to the millimetre; WeasyPrint writes them in PDF points of
-1/72 in (ISO 32000-1, 8.3.2.3).
+Scale: each tile of the cutting sheet is an SVG image sized in CSS
+millimetres, which are absolute units (W3C CSS Values and Units Level 3,
+5.2), with one SVG user unit to the millimetre; WeasyPrint writes it as
+vector paths in PDF points of 1/72 in (ISO 32000-1, 8.3.2.3).  The images
+go in as data: addresses because WeasyPrint reads those with an XML
+parser, far quicker than SVG written inline in the HTML.
 """
 
 from __future__ import annotations
@@ -41,15 +43,13 @@ from shapely.geometry import Polygon
 from patterns.core.allot import Allotment, PlanOptions
 from patterns.core.block import Block
 from patterns.core.export import notch_segments, sheet_layout
-from patterns.core.findings import CAUTION, ERROR
+from patterns.core.findings import CAUTION, ERROR, WARNING
 from patterns.core.measures import LEVEL_LABELS, MEASURES
 from patterns.core.outline import AlteredPattern, PanelOutline, alter_pattern
 from patterns.core.preview import markers_from_findings, preview_png
 from patterns.core.report import direction
 from patterns.core.tiling import PAGE_MARGIN_MM, TileGrid, paper_size, row_label, tile_grid, tile_label
 from patterns.core.units import UNIT_LABELS, format_length, format_with_unit
-
-WORK_ORDER, CUTTING_SHEET = "work_order", "cutting_sheet"
 
 # The picture of the altered pattern in the work order: enough for a
 # printed page (about 10 in wide in the figure), quicker to embed than 150 dpi.
@@ -88,7 +88,7 @@ WAIST_REDUCTION_CAUTION = (
     "at every fitting; loosen at once on pain, numbness, dizziness or shortness of breath. "
     "The fitter's judgment and local practice come first."
 )
-SEVERITY_WORDS = {ERROR: "Problem", "warning": "Check", CAUTION: "Caution"}
+SEVERITY_WORDS = {ERROR: "Problem", WARNING: "Check", CAUTION: "Caution"}
 
 # Layers of fabric cut from each panel (common practice: a corset has an
 # outer fabric, a strength layer and a lining; a bodice an outer and a lining).
@@ -140,18 +140,13 @@ def font_config():
     return FontConfiguration()
 
 
-@functools.cache
-def _url_fetcher():
-    """Only data: addresses: a document never reaches out to the network or the file system."""
+def html_to_pdf(html: str) -> bytes:
+    """The PDF of ``html``; only data: addresses are fetched, never the network or the file system."""
+    from weasyprint import HTML
     from weasyprint.urls import URLFetcher
 
-    return URLFetcher(allowed_protocols=("data",))
-
-
-def html_to_pdf(html: str) -> bytes:
-    from weasyprint import HTML
-
-    return HTML(string=html, url_fetcher=_url_fetcher()).write_pdf(font_config=font_config())
+    fetcher = URLFetcher(allowed_protocols=("data",))
+    return HTML(string=html, url_fetcher=fetcher).write_pdf(font_config=font_config())
 
 
 # --- reading a revision ---------------------------------------------------------------
@@ -390,6 +385,7 @@ def _preview_data_uri(data: DocumentData, pattern: AlteredPattern) -> str:
 def work_order_html(data: DocumentData, paper: str, pattern: AlteredPattern | None = None) -> str:
     pattern = pattern or altered_pattern(data)
     layers, cuts = cut_rows(data)
+    gap = data.result.levels[0].lacing_gap if data.result.levels else 0.0
     context = {
         **_header(data),
         "paper": _paper_css(paper),
@@ -409,8 +405,7 @@ def work_order_html(data: DocumentData, paper: str, pattern: AlteredPattern | No
         "preview": _preview_data_uri(data, pattern),
         "layers": layers,
         "cuts": cuts,
-        "lacing_gap": format_with_unit(data.options.lacing_gap_mm, data.unit) if data.result.levels
-        and data.result.levels[0].lacing_gap else "",
+        "lacing_gap": format_with_unit(gap, data.unit) if gap else "",
         "seam_allowance": format_with_unit(data.block.seam_allowance_mm, data.unit),
     }
     return render_to_string("fittings/print/work_order.html", context)

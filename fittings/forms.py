@@ -1,9 +1,12 @@
 """Forms for the fitting: lengths are typed in the session's unit and kept in mm."""
 
+from datetime import timedelta
 from decimal import Decimal
 
 from django import forms
 from django.core.exceptions import ValidationError
+from django.utils import timezone
+from PIL import Image
 
 from fittings.models import Client, MeasurementSession, PhotoView, SessionKind
 from patterns.core.allot import POLICIES, Override, PlanOptions
@@ -14,7 +17,63 @@ from patterns.core.units import (
 )
 
 UNIT_CHOICES = [(u, UNIT_LABELS[u]) for u in UNITS]
+
+# --- upload checks -----------------------------------------------------------------------
 MAX_PHOTO_BYTES = 8 * 1024 * 1024
+# From memory: tablet cameras take 8-12 million pixels, phones up to about 48 million in
+# their full-resolution mode.  Beyond this a file is refused before it is decoded, so a
+# small file that claims a huge picture cannot take the server's memory.
+MAX_PHOTO_PIXELS = 50_000_000
+# What tablet and phone cameras and their browsers send (MPO is a camera's multi-picture JPEG).
+PHOTO_FORMATS = {"JPEG", "MPO", "PNG", "WEBP"}
+
+
+class PhotoField(forms.ImageField):
+    """A client photo, checked by its content with Pillow, not by its name.
+
+    The file must be at most 8 MB, decode completely as a JPEG, PNG or WebP
+    picture and have no more than MAX_PHOTO_PIXELS pixels.  What is stored
+    is re-encoded from the pixels (``services.clients.clean_photo``).
+    """
+
+    def to_python(self, data):
+        f = forms.FileField.to_python(self, data)
+        if f is None:
+            return None
+        if f.size > MAX_PHOTO_BYTES:
+            raise ValidationError(f"The photo is larger than {MAX_PHOTO_BYTES // (1024 * 1024)} MB.", code="too_big")
+        not_a_photo = ValidationError(
+            "This file is not a photo that can be read (JPEG, PNG or WebP), or it is damaged.", code="invalid_image",
+        )
+        try:
+            f.seek(0)
+            with Image.open(f) as image:
+                if image.format not in PHOTO_FORMATS:
+                    raise not_a_photo
+                width, height = image.size
+                if width * height > MAX_PHOTO_PIXELS:
+                    raise ValidationError(
+                        f"The photo has too many pixels ({width} × {height}); "
+                        "take it again at the camera's normal size.", code="too_many_pixels",
+                    )
+                image.verify()
+            f.seek(0)
+            with Image.open(f) as image:
+                image.load()  # every pixel decoded: a cut-off or damaged file fails here
+                f.image = image
+                f.content_type = Image.MIME.get(image.format)
+        except ValidationError:
+            raise
+        except (Image.DecompressionBombError, Image.DecompressionBombWarning):
+            raise ValidationError("The photo has too many pixels; take it again at the camera's normal size.",
+                                  code="too_many_pixels") from None
+        except Exception:  # noqa: BLE001 - Pillow raises many kinds of error for a bad file
+            raise not_a_photo from None
+        finally:
+            if hasattr(f, "seek") and callable(f.seek):
+                f.seek(0)
+        return f
+# ------------------------------------------------------------------------------------------
 
 
 class LengthInput(forms.TextInput):
@@ -93,7 +152,7 @@ class SessionForm(UnitFormMixin, forms.Form):
         for m in MEASURES:
             self.fields[m.code] = LengthField(label=m.label, help_text=m.hint, required=False, limits=m.limits)
         for view in PhotoView:
-            self.fields[f"photo_{view.value}"] = forms.ImageField(
+            self.fields[f"photo_{view.value}"] = PhotoField(
                 label=f"{view.label} photo", required=False,
                 widget=forms.ClearableFileInput(attrs={"accept": "image/*", "capture": "environment"}),
             )
@@ -106,14 +165,18 @@ class SessionForm(UnitFormMixin, forms.Form):
     def photo_fields(self):
         return [self[f"photo_{view.value}"] for view in PhotoView]
 
+    def clean_taken_on(self):
+        # A sitting is recorded on the day or afterwards: refuse dates that cannot be a real sitting.
+        taken_on = self.cleaned_data["taken_on"]
+        latest = timezone.localdate() + timedelta(days=1)
+        if taken_on > latest or taken_on.year < 1900:
+            raise ValidationError("The date of the sitting cannot be in the future.", code="date")
+        return taken_on
+
     def clean(self):
         cleaned = super().clean()
         if not any(cleaned.get(m.code) for m in MEASURES):
             raise ValidationError("Enter at least one measurement.")
-        for name in ("photo_front", "photo_side", "photo_back"):
-            photo = cleaned.get(name)
-            if photo and photo.size > MAX_PHOTO_BYTES:
-                self.add_error(name, f"The photo is larger than {MAX_PHOTO_BYTES // (1024 * 1024)} MB.")
         return cleaned
 
     def values_mm(self):

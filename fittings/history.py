@@ -83,7 +83,7 @@ def _row(label, a, b, unit):
 
 
 def _pick(client, token):
-    if len(token) < 2 or token[0] not in "sr" or not token[1:].isdigit():
+    if len(token) < 2 or token[0] not in "sr" or not (token[1:].isascii() and token[1:].isdigit()):
         raise NotComparable("Choose two sessions or two revisions to compare.")
     pk = int(token[1:])
     if token[0] == "s":

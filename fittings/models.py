@@ -12,6 +12,7 @@ from pathlib import PurePath
 
 from django.conf import settings
 from django.core.exceptions import ValidationError
+from django.core.serializers.json import DjangoJSONEncoder
 from django.db import models
 from django.db.models import Q
 from django.utils import timezone
@@ -387,3 +388,68 @@ class PrintJob(models.Model):
     @property
     def wants_cutting_sheet(self):
         return self.kind in (PrintKind.BOTH, PrintKind.CUTTING_SHEET)
+
+
+# --- audit trail (security and data safety) ---------------------------------------------
+
+
+class AuditLocked(Exception):
+    """An audit entry was about to change or disappear."""
+
+
+class AuditAction(models.TextChoices):
+    CREATE = "create", "Created"
+    CHANGE = "change", "Changed"
+    DELETE = "delete", "Deleted"
+    ISSUE = "issue", "Issued"
+    IMPORT = "import", "Imported"
+    ERASE = "erase", "Erased"
+    EXPORT = "export", "Exported"
+
+
+class AuditEntryQuerySet(models.QuerySet):
+    def delete(self):
+        raise AuditLocked("The audit trail is kept for good; entries cannot be deleted.")
+
+    def update(self, **kwargs):
+        raise AuditLocked("The audit trail cannot be changed.")
+
+
+class AuditEntry(models.Model):
+    """Who did what to a client's records, and when; written by the services (fittings/audit.py).
+
+    Append-only like plan revisions.  The one exception is erasing a client
+    for good (fittings/services/safety.py), which blanks the personal parts
+    of the entries that mention that client.
+    """
+
+    at = models.DateTimeField(default=timezone.now, db_index=True)
+    user = models.ForeignKey(settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+")
+    username = models.CharField(max_length=150, blank=True, help_text="Kept as written, or the command that did it.")
+    action = models.CharField(max_length=10, choices=AuditAction.choices)
+    object_type = models.CharField(max_length=40)
+    object_id = models.CharField(max_length=40, blank=True)
+    client_reference = models.CharField(max_length=32, blank=True, db_index=True)
+    summary = models.CharField(max_length=500)
+    before = models.JSONField(null=True, blank=True, encoder=DjangoJSONEncoder)
+    after = models.JSONField(null=True, blank=True, encoder=DjangoJSONEncoder)
+
+    objects = AuditEntryQuerySet.as_manager()
+
+    class Meta:
+        ordering = ["-at", "-id"]
+        verbose_name_plural = "audit entries"
+        constraints = [
+            models.CheckConstraint(condition=Q(action__in=AuditAction.values), name="audit_action_known"),
+        ]
+
+    def __str__(self):
+        return f"{self.at:%Y-%m-%d %H:%M} {self.username or '-'} {self.get_action_display().lower()} {self.object_type}"
+
+    def save(self, *args, **kwargs):
+        if not self._state.adding:
+            raise AuditLocked("Audit entries are kept as written; they cannot be changed.")
+        return super().save(*args, **kwargs)
+
+    def delete(self, *args, **kwargs):
+        raise AuditLocked("Audit entries are kept for good; they cannot be deleted.")

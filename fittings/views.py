@@ -4,7 +4,7 @@ from django.core.paginator import Paginator
 from django.http import FileResponse, Http404
 from django.shortcuts import get_object_or_404, render
 
-from atelier.roles import ROLES, role_required
+from atelier.roles import FITTER, OWNER, ROLES, role_required
 from fittings import selectors
 from fittings.models import Photo
 
@@ -13,14 +13,16 @@ CLIENTS_PER_PAGE = 25
 
 @role_required(*ROLES)
 def client_list(request):
-    query = request.GET.get("q", "").strip()[:100]
+    # NUL cannot be stored or searched for in PostgreSQL text; it is never part of a name.
+    query = request.GET.get("q", "").replace("\x00", "").strip()[:100]
     page = Paginator(selectors.client_search(query), CLIENTS_PER_PAGE).get_page(request.GET.get("page"))
     partial = request.htmx and not request.htmx.history_restore_request
     template = "fittings/_client_rows.html" if partial else "fittings/client_list.html"
     return render(request, template, {"page": page, "q": query})
 
 
-@role_required(*ROLES)
+# Photos of clients' bodies are for the fitters and the owner; the workroom cuts from the work order.
+@role_required(OWNER, FITTER)
 def photo_file(request, pk):
     photo = get_object_or_404(Photo.objects.select_related("session__client"), pk=pk, session__client__is_deleted=False)
     try:

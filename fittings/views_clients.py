@@ -119,7 +119,7 @@ def session_check(request, client_pk):
     client = _client(client_pk)
     session_pk = request.POST.get("session")
     current = None
-    if session_pk and session_pk.isdigit():
+    if session_pk and session_pk.isascii() and session_pk.isdigit():
         current = MeasurementSession.objects.filter(pk=session_pk, client=client).first()
     previous = selectors.latest_session(client, before=current)
     form = SessionForm(request.POST)

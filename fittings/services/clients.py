@@ -13,6 +13,7 @@ from django.db.models import F
 from django.utils import timezone
 from PIL import Image, ImageOps
 
+from fittings import audit
 from fittings.models import Client, Measurement, MeasurementSession, Photo, PhotoView
 from patterns.core.measures import MEASURES
 
@@ -27,10 +28,13 @@ def today():
 
 @transaction.atomic
 def create_client(*, user, reference, name, contact="", notes="", consent_given_on=None) -> Client:
-    return Client.objects.create(
+    client = Client.objects.create(
         reference=reference, name=name, contact=contact, notes=notes, consent_given_on=consent_given_on,
         created_by=user,
     )
+    audit.record(user=user, action=audit.CREATE, object_type="client", object_id=client.pk, client=client,
+                 summary=f"Client {client.reference} added.", after=audit.client_snapshot(client))
+    return client
 
 
 @transaction.atomic
@@ -38,6 +42,8 @@ def soft_delete_client(*, client: Client, user) -> None:
     client.is_deleted = True
     client.deleted_at = timezone.now()
     client.save(update_fields=["is_deleted", "deleted_at", "updated_at"])
+    audit.record(user=user, action=audit.DELETE, object_type="client", object_id=client.pk, client=client,
+                 summary=f"Client {client.reference} removed from the lists (records kept).")
 
 
 def clean_photo(upload) -> ContentFile:
@@ -71,12 +77,21 @@ def record_session(*, client: Client, user, form_data: dict, values: dict) -> Me
     session = MeasurementSession.objects.create(client=client, measured_by=user, **_session_fields(form_data))
     Measurement.objects.bulk_create([Measurement(session=session, code=code, value_mm=mm) for code, mm in values.items()])
     _save_photos(session, form_data)
+    audit.record(user=user, action=audit.CREATE, object_type="session", object_id=session.pk, client=client,
+                 summary=f"Measurements of {session.taken_on} recorded ({len(values)} readings).",
+                 after=audit.session_snapshot(session))
     return session
 
 
 @transaction.atomic
 def update_session(*, session: MeasurementSession, user, form_data: dict, values: dict, expected_version: int):
-    """Replace the session's readings, if nobody saved it since ``expected_version``."""
+    """Replace the session's readings, if nobody saved it since ``expected_version``.
+
+    The readings as they were go into the audit trail, so nothing a fitter
+    entered is lost when another fitter corrects it.
+    """
+    stored = MeasurementSession.objects.select_for_update().filter(pk=session.pk, version=expected_version).first()
+    before = audit.session_snapshot(stored) if stored is not None else None
     updated = MeasurementSession.objects.filter(pk=session.pk, version=expected_version).update(
         version=F("version") + 1, updated_at=timezone.now(), **_session_fields(form_data),
     )
@@ -91,4 +106,8 @@ def update_session(*, session: MeasurementSession, user, form_data: dict, values
     for code, mm in values.items():
         Measurement.objects.update_or_create(session=session, code=code, defaults={"value_mm": mm})
     _save_photos(session, form_data)
+    audit.record(user=user, action=audit.CHANGE, object_type="session", object_id=session.pk,
+                 client_reference=session.client.reference,
+                 summary=f"Measurements of {session.taken_on} changed (version {expected_version} to {session.version}).",
+                 before=before, after=audit.session_snapshot(session))
     return session

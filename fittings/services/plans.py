@@ -12,6 +12,7 @@ from django.db import transaction
 from django.db.models import F
 from django.utils import timezone
 
+from fittings import audit
 from fittings.models import PinAdjustment, Plan, PlanRevision, RevisionStatus
 from patterns.core.allot import Allotment, PlanOptions, allot, suggest_size
 from patterns.core.allot import PinAdjustment as Pin
@@ -22,10 +23,12 @@ from patterns.core.fitting import (
 from patterns.core.units import DEFAULT_STEP_MM
 from patterns.selectors import block_for
 
-# Common practice: a corset sits close at bust and hip and reduces the
-# waist; 5 cm is a gentle first reduction.  A bodice block has its ease
-# drafted in already.
+# Starting ease per garment, changed by the fitter at every plan.  Common
+# practice: a corset sits close at bust and hip and reduces the waist, 5 cm
+# being a gentle first reduction; a fitted bodice keeps a few centimetres of
+# wearing ease (the bodice figures are from memory).
 CORSET_EASE_MM = {"bust": -20.0, "underbust": -20.0, "waist": -50.0, "abdomen": -20.0, "hip": 0.0}
+BODICE_EASE_MM = {"bust": 40.0, "underbust": 20.0, "waist": 20.0, "abdomen": 30.0, "hip": 30.0}
 LACING_GAP_MM = 50.0
 
 
@@ -43,9 +46,9 @@ def session_values(session) -> dict[str, float]:
 
 
 def default_options(block: Block, unit: str) -> PlanOptions:
-    corset = "corset" in block.garment
+    ease = CORSET_EASE_MM if "corset" in block.garment else BODICE_EASE_MM
     return PlanOptions(
-        ease={lv: CORSET_EASE_MM.get(lv, 0.0) for lv in block.level_names} if corset else {lv: 0.0 for lv in block.level_names},
+        ease={lv: ease.get(lv, 0.0) for lv in block.level_names},
         lacing_gap_mm=LACING_GAP_MM if block.centre_back == CB_LACED else 0.0,
         step_mm=DEFAULT_STEP_MM[unit],
         unit=unit,
@@ -96,7 +99,11 @@ def start_plan(*, client, session, pattern, garment: str, user, options: PlanOpt
     if options is None:
         options = default_options(block, session.unit)
     plan = Plan.objects.create(client=client, session=session, base_pattern=pattern, garment=garment, created_by=user)
-    _append(plan, block, session_values(session), options, user)
+    first = _append(plan, block, session_values(session), options, user)
+    audit.record(user=user, action=audit.CREATE, object_type="plan", object_id=plan.pk, client=client,
+                 summary=f"Plan “{garment}” started on {pattern.name}, size {pattern.size_label}, with revision 1.",
+                 after={"garment": garment, "base_pattern": pattern.pk, "session": session.pk, "revision": first.pk,
+                        "based_on": based_on.pk if based_on else None})
     return plan
 
 
@@ -118,7 +125,19 @@ def save_revision(*, plan: Plan, options: PlanOptions, user, expected_version: i
     plan.refresh_from_db(fields=["version"])
     latest = latest_revision(plan)
     block = block_for(plan.base_pattern)
-    return _append(plan, block, session_values(plan.session), options, user, based_on=latest)
+    revision = _append(plan, block, session_values(plan.session), options, user, based_on=latest)
+    _audit_revision(revision, user, expected_version, f"saved from revision {latest.number if latest else '-'}")
+    return revision
+
+
+def _audit_revision(revision: PlanRevision, user, expected_version: int, how: str) -> None:
+    plan = revision.plan
+    audit.record(user=user, action=audit.CREATE, object_type="revision", object_id=revision.pk,
+                 client_reference=plan.client.reference,
+                 summary=f"Plan {plan.pk} revision {revision.number} {how}.",
+                 before={"plan_version": expected_version},
+                 after={"plan_version": expected_version + 1, "revision": revision.number,
+                        "based_on": revision.based_on_id})
 
 
 @transaction.atomic
@@ -131,6 +150,10 @@ def issue_revision(*, revision: PlanRevision, user) -> PlanRevision:
     revision.issued_at = timezone.now()
     revision.issued_by = user
     revision.save()
+    audit.record(user=user, action=audit.ISSUE, object_type="revision", object_id=revision.pk,
+                 client_reference=revision.plan.client.reference,
+                 summary=f"Plan {revision.plan_id} revision {revision.number} issued to the workroom.",
+                 before={"status": RevisionStatus.DRAFT}, after={"status": RevisionStatus.ISSUED})
     return revision
 
 
@@ -143,7 +166,9 @@ def revision_with_pins(*, revision: PlanRevision, user, expected_version: int) -
     options = replace(options, pins=options.pins + pins)
     if not Plan.objects.filter(pk=plan.pk, version=expected_version).update(version=F("version") + 1):
         raise ConcurrentEdit("Someone saved this plan while you were recording pins. Reload and try again.")
-    return _append(plan, block, values, options, user, based_on=revision)
+    new = _append(plan, block, values, options, user, based_on=revision)
+    _audit_revision(new, user, expected_version, f"made from the pins on revision {revision.number}")
+    return new
 
 
 @dataclass(frozen=True)
@@ -187,10 +212,16 @@ def suggestions_for_session(session, patterns) -> list[Suggestion]:
 @transaction.atomic
 def record_pins(*, revision: PlanRevision, pins, note: str, user) -> list[PinAdjustment]:
     """Keep what was pinned at a toile fitting of ``revision``: (seam, level, amount in mm) each."""
-    return PinAdjustment.objects.bulk_create([
+    made = PinAdjustment.objects.bulk_create([
         PinAdjustment(revision=revision, seam=seam, level=level, amount_mm=amount, note=note, created_by=user)
         for seam, level, amount in pins
     ])
+    audit.record(user=user, action=audit.CREATE, object_type="pins", object_id=revision.pk,
+                 client_reference=revision.plan.client.reference,
+                 summary=f"{len(made)} pin adjustment(s) recorded on plan {revision.plan_id} revision {revision.number}.",
+                 after={"pins": [{"seam": p.seam, "level": p.level, "amount_mm": str(p.amount_mm)} for p in made],
+                        "note": note})
+    return made
 
 
 class ImportRefused(ValueError):
@@ -228,5 +259,9 @@ def import_fitting(*, client, text: str, user, garment: str = "") -> Plan:
     session = MeasurementSession.objects.create(client=client, measured_by=user, taken_on=tz.localdate(), kind="check",
                                                 unit=options.unit, notes="Imported from a fitting file.")
     Measurement.objects.bulk_create([Measurement(session=session, code=c, value_mm=v) for c, v in values.items()])
-    return start_plan(client=client, session=session, pattern=pattern, garment=garment or "Imported plan",
+    plan = start_plan(client=client, session=session, pattern=pattern, garment=garment or "Imported plan",
                       user=user, options=options)
+    audit.record(user=user, action=audit.IMPORT, object_type="plan", object_id=plan.pk, client=client,
+                 summary=f"Fitting file imported as session {session.pk} and plan {plan.pk}.",
+                 after={"session": session.pk, "plan": plan.pk, "measurements_mm": {c: str(v) for c, v in values.items()}})
+    return plan

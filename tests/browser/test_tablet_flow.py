@@ -116,3 +116,22 @@ def test_it_never_lets_a_late_answer_overwrite_a_newer_one(tablet, live_server, 
     page.wait_for_timeout(800)
     waist_row = page.locator("#plan-result table").first.locator("tr", has_text="Waist")
     assert "-6.0" in waist_row.inner_text()
+
+
+def test_it_follows_the_readme_route_to_an_issued_plan(tablet, live_server, demo_atelier):
+    """The route the README promises a new user: a demo client to an issued plan in a few taps."""
+    page = tablet
+    sign_in(page, live_server)
+    page.tap("text=Marguerite Ashdown-Vale")
+    page.tap("text=Plan from these readings")
+    page.fill("#id_garment", "Gala bodice")
+    page.tap("text=Start the plan")
+    page.fill("#id_ease_bust", "3")
+    page.wait_for_selector("#plan-result >> text=+3.0")
+    page.snap("readme-route-plan")
+    page.tap("text=Save as a new revision")
+    page.tap("text=Issue to the workroom")
+    page.wait_for_selector(".status-issued")
+    revision = PlanRevision.objects.get(plan__garment="Gala bodice", number=2)
+    assert revision.status == "issued"
+    assert revision.inputs["plan"]["ease"]["bust"] == 30.0

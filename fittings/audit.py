@@ -1,0 +1,63 @@
+"""The audit trail: one line per change to a client's records, written by the services.
+
+Call :func:`record` inside the service's transaction, so the entry and the
+change are kept together or not at all.  Entries are append-only
+(``AuditEntry`` refuses updates and deletes); only erasing a client for good
+blanks the personal parts of the entries that mention that client
+(``fittings.services.safety.erase_client``).
+"""
+
+from fittings.models import AuditAction, AuditEntry
+
+CREATE = AuditAction.CREATE
+CHANGE = AuditAction.CHANGE
+DELETE = AuditAction.DELETE
+ISSUE = AuditAction.ISSUE
+IMPORT = AuditAction.IMPORT
+ERASE = AuditAction.ERASE
+EXPORT = AuditAction.EXPORT
+
+SUMMARY_MAX = 500
+
+
+def _who(user, actor):
+    """(user to link, name to keep): a signed-in user, or a command's name when there is none."""
+    if user is not None and getattr(user, "is_authenticated", False):
+        return user, user.get_username()
+    return None, actor or ""
+
+
+def record(*, user, action, object_type: str, object_id="", client=None, client_reference: str = "",
+           summary: str, before=None, after=None, actor: str = "") -> AuditEntry:
+    """Add one entry.  ``client`` (or ``client_reference``) says whose records these are."""
+    linked, username = _who(user, actor)
+    if client is not None and not client_reference:
+        client_reference = client.reference
+    return AuditEntry.objects.create(
+        user=linked, username=username[:150], action=action, object_type=object_type,
+        object_id="" if object_id is None else str(object_id), client_reference=client_reference or "",
+        summary=summary[:SUMMARY_MAX], before=before, after=after,
+    )
+
+
+def session_snapshot(session) -> dict:
+    """Everything a fitter entered in a session, read fresh from the database (mm as strings)."""
+    return {
+        "taken_on": session.taken_on,
+        "kind": session.kind,
+        "unit": session.unit,
+        "posture_notes": session.posture_notes,
+        "notes": session.notes,
+        "version": session.version,
+        "measurements_mm": {
+            code: str(value) for code, value in session.measurements.order_by("code").values_list("code", "value_mm")
+        },
+        "photos": sorted(session.photos.values_list("view", flat=True)),
+    }
+
+
+def client_snapshot(client) -> dict:
+    return {
+        "reference": client.reference, "name": client.name, "contact": client.contact, "notes": client.notes,
+        "consent_given_on": client.consent_given_on, "is_deleted": client.is_deleted,
+    }

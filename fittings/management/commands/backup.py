@@ -1,0 +1,23 @@
+from django.core.management.base import BaseCommand, CommandError
+
+from fittings.services import safety
+
+
+class Command(BaseCommand):
+    help = (
+        "Copy the database and the private files (photos, printed documents) into one new archive (.tar.gz). "
+        "Safe while the app is running. The archive holds clients' personal data: keep it as safe as the data folder."
+    )
+
+    def add_arguments(self, parser):
+        parser.add_argument("out", help="The archive to write, e.g. /media/usb/atelier-2026-12-02.tar.gz (must not exist).")
+
+    def handle(self, *args, out, **options):
+        try:
+            receipt = safety.backup(out)
+        except safety.SafetyError as exc:
+            raise CommandError(str(exc)) from None
+        self.stdout.write(self.style.SUCCESS(
+            f"Backed up the {receipt.engine} database and {receipt.files} private file(s) to {receipt.path} "
+            f"({receipt.bytes / 1024 / 1024:.1f} MB)."
+        ))
