@@ -199,6 +199,7 @@ def revision_detail(request, pk, number):
         "checks_url": reverse("fittings:revision_checks", args=[plan.pk, revision.number]),
         "can_edit": _can_edit(request.user),
         "revisions": plan.revisions.defer("inputs", "result").order_by("-number"),
+        "latest_session": plan.client.sessions.order_by("-taken_on", "-id").first(),
     }
     return render(request, "fittings/revision_detail.html", context)
 

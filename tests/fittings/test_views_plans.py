@@ -226,3 +226,25 @@ def test_it_checks_the_seam_lengths_after_the_alteration(fitter_client, plan):
     uneven = fitter_client.get(url, options_post(plan, **{cell_name(side, "waist", 0): "-1 1/4", cell_name(side, "waist", 1): "0"}))
     html = uneven.content.decode()
     assert "walk and true it" in html and "Side seam" in html
+
+
+def test_it_starts_a_new_plan_from_an_earlier_revision(fitter_client, plan):
+    """Carry an earlier plan's choices into the next fitting's readings."""
+    session = plan.client.sessions.order_by("-taken_on").first()
+    page = fitter_client.get(reverse("fittings:revision_detail", args=[plan.pk, 1]))
+    link = reverse("fittings:plan_new", args=[session.pk]) + f"?from={plan.revisions.get().pk}"
+    assert link in page.content.decode()
+    source = plan.revisions.get()
+    response = fitter_client.post(link, {"garment": "Second corset", "base_pattern": plan.base_pattern.pk,
+                                         "from": source.pk})
+    assert response.status_code == 302
+    new = Plan.objects.get(garment="Second corset").revisions.get()
+    assert new.inputs["plan"]["ease"] == source.inputs["plan"]["ease"]
+    assert new.inputs["plan"]["policy"] == source.inputs["plan"]["policy"]
+
+
+def test_it_refuses_to_start_from_another_clients_revision(fitter_client, plan):
+    other = Plan.objects.exclude(client=plan.client).first().revisions.first()
+    session = plan.client.sessions.first()
+    response = fitter_client.get(reverse("fittings:plan_new", args=[session.pk]) + f"?from={other.pk}")
+    assert response.status_code == 404
