@@ -48,7 +48,7 @@ def negative_bust():
 @pytest.mark.parametrize("text, field", [
     ("{", "(file)"),
     (negative_bust(), "measurements/bust_girth"),
-    ('{"format": "atelier-fitting", "version": 1, "measurements": {}, "pattern": {}}', "pattern"),
+    ('{"format": "atelier-fitting", "version": 1, "measurements": {"bust_girth": 900}, "pattern": {}}', "pattern"),
 ])
 def test_it_names_the_field_of_a_bad_file_and_fails(text, field):
     done = run("-", stdin=text)

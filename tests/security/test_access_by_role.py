@@ -96,6 +96,7 @@ RULES = {
 # Writes the workroom may make: printing, and signing itself out.
 WORKROOM_WRITES = {"fittings:print_start", "logout"}
 SIGN_IN = {"login", "admin:login"}
+SIGN_OUT = {"logout", "admin:logout"}
 
 
 def app_names():
@@ -164,7 +165,12 @@ def test_it_answers_404_for_ids_that_do_not_exist_and_still_refuses_the_wrong_ro
         for role in (WORKROOM, FITTER, OWNER):
             allowed = expected[role] not in (403, 405)
             response = _request(actors[role], method, url)
-            assert response.status_code == (404 if allowed else expected[role]), f"{method} {url} as {role}"
+            if allowed:
+                assert response.status_code == 404, f"{method} {url} as {role}"
+            elif rule.methods.get("GET", {}).get(role) == 200 and response.status_code == 404:
+                pass  # a role that may read this page may learn that it does not exist
+            else:
+                assert response.status_code == expected[role], f"{method} {url} as {role}"
 
 
 def test_it_answers_404_for_a_revision_number_beyond_the_plans(world, actors):
@@ -200,7 +206,7 @@ def admin_example_urls():
 
     urls = []
     for name, pattern in leaf_patterns():
-        if not name.startswith("admin:") or name in SIGN_IN:
+        if not name.startswith("admin:") or name in SIGN_IN | SIGN_OUT:
             continue
         template, params = normalize(pattern.pattern.regex.pattern.lstrip("^").rstrip("$").removesuffix(r"\Z"))[0]
         urls.append((name, "/admin/" + template % {p: "1" for p in params}))
