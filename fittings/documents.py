@@ -26,6 +26,7 @@ from __future__ import annotations
 
 import base64
 import functools
+import io
 import math
 import re
 from dataclasses import dataclass
@@ -33,7 +34,6 @@ from datetime import date, datetime
 from xml.etree import ElementTree as ET
 
 import qrcode
-import qrcode.image.svg
 from django.conf import settings
 from django.template.loader import render_to_string
 from django.urls import NoReverseMatch, reverse
@@ -51,9 +51,11 @@ from patterns.core.report import direction
 from patterns.core.tiling import PAGE_MARGIN_MM, TileGrid, paper_size, row_label, tile_grid, tile_label
 from patterns.core.units import UNIT_LABELS, format_length, format_with_unit
 
-# The picture of the altered pattern in the work order: enough for a
-# printed page (about 10 in wide in the figure), quicker to embed than 150 dpi.
-PREVIEW_DPI = 110
+# The picture of the altered pattern in the work order: the figure is at
+# least 10 in wide, printed about 7 in wide, so 90 dpi gives some 130 pixels
+# to the printed inch: plenty for a picture that is not to scale, and far
+# quicker to embed than the screen's 150 dpi.
+PREVIEW_DPI = 90
 # Panels on the cutting sheet: this far apart, and this far in from the
 # sheet's edge (mm).
 PANEL_GAP_MM = 10.0
@@ -140,13 +142,18 @@ def font_config():
     return FontConfiguration()
 
 
-def html_to_pdf(html: str) -> bytes:
-    """The PDF of ``html``; only data: addresses are fetched, never the network or the file system."""
-    from weasyprint import HTML
+@functools.cache
+def url_fetcher():
+    """Fetches data: addresses only, never the network or the file system; built once (it sets up TLS)."""
     from weasyprint.urls import URLFetcher
 
-    fetcher = URLFetcher(allowed_protocols=("data",))
-    return HTML(string=html, url_fetcher=fetcher).write_pdf(font_config=font_config())
+    return URLFetcher(allowed_protocols=("data",))
+
+
+def html_to_pdf(html: str) -> bytes:
+    from weasyprint import HTML
+
+    return HTML(string=html, url_fetcher=url_fetcher()).write_pdf(font_config=font_config())
 
 
 # --- reading a revision ---------------------------------------------------------------
@@ -260,14 +267,15 @@ def cautions(data: DocumentData) -> list[str]:
 # --- work order ---------------------------------------------------------------------
 
 
-def _qr_svg(url: str, size_mm: float = 30.0) -> str:
-    """The address as a QR code, inline SVG (four modules of quiet zone, as the QR standard asks)."""
-    image = qrcode.make(url, image_factory=qrcode.image.svg.SvgPathImage, border=4,
-                        error_correction=qrcode.constants.ERROR_CORRECT_M)
-    text = image.to_string(encoding="unicode")
-    text = re.sub(r'\swidth="[^"]*"', "", text, count=1)
-    text = re.sub(r'\sheight="[^"]*"', "", text, count=1)
-    return text.replace("<svg ", f'<svg width="{size_mm:g}mm" height="{size_mm:g}mm" ', 1)
+def qr_png(url: str) -> bytes:
+    """The address as a QR code, a small black-and-white PNG (four modules of quiet zone, as the QR standard asks).
+
+    A raster keeps the PDF quick to draw; the template scales it up without smoothing.
+    """
+    image = qrcode.make(url, box_size=4, border=4, error_correction=qrcode.constants.ERROR_CORRECT_M)
+    buffer = io.BytesIO()
+    image.save(buffer, format="PNG")
+    return buffer.getvalue()
 
 
 def _fmt(mm, unit, signed=False) -> str:
@@ -377,8 +385,12 @@ def cut_rows(data: DocumentData) -> tuple[tuple[str, ...], list[dict]]:
 
 
 def _preview_data_uri(data: DocumentData, pattern: AlteredPattern) -> str:
-    png = preview_png(data.block, data.result.alteration(data.block), markers_from_findings(pattern.findings),
-                      unit=data.unit, pattern=pattern, dpi=PREVIEW_DPI)
+    return png_data_uri(preview_png(data.block, data.result.alteration(data.block),
+                                    markers_from_findings(pattern.findings), unit=data.unit, pattern=pattern,
+                                    dpi=PREVIEW_DPI))
+
+
+def png_data_uri(png: bytes) -> str:
     return "data:image/png;base64," + base64.b64encode(png).decode("ascii")
 
 
@@ -390,7 +402,7 @@ def work_order_html(data: DocumentData, paper: str, pattern: AlteredPattern | No
         **_header(data),
         "paper": _paper_css(paper),
         "title": f"Work order, {data.garment}, revision {data.revision_number}",
-        "qr": svg_data_uri(_qr_svg(data.revision_url)) if data.revision_url else "",
+        "qr": png_data_uri(qr_png(data.revision_url)) if data.revision_url else "",
         "revision_url": data.revision_url,
         "cautions": cautions(data),
         "measurements": _pairs(measurement_rows(data)),
@@ -514,29 +526,68 @@ def _text(parent, x, y, text, size, *, anchor="start", weight="normal", colour="
     return el
 
 
-def _draw_piece(parent, piece: SheetPiece, area=None, tag: str = "") -> None:
+def _draw_piece(parent, piece: SheetPiece) -> None:
     o = piece.outline
     g = ET.SubElement(parent, "g", {"class": "panel", "transform": f"translate({_n(piece.dx)} {_n(piece.dy)})"})
     _line(g, _d(piece.cutting, True), CUT_COLOUR, CUT_WIDTH_MM, **{"class": "cut"})
-    _line(g, _d(piece.stitch, True), STITCH_COLOUR, STITCH_WIDTH_MM, stroke_dasharray=STITCH_DASH, **{"class": "stitch"})
+    _line(g, _d(piece.stitch, True), STITCH_COLOUR, STITCH_WIDTH_MM, stroke_dasharray=STITCH_DASH,
+          **{"class": "stitch"})
     notches = "".join(_d(segment, False) for segment in notch_segments(o))
     if notches:
         _line(g, notches, MARK_COLOUR, NOTCH_WIDTH_MM, **{"class": "notch"})
     _line(g, _grain_d(o.grainline), MARK_COLOUR, 0.3, **{"class": "grain"})
-    x, y = o.label_at
-    # Two lines along the grainline: the panel's name, then the rest.  WeasyPrint lays SVG
-    # text out letter by letter, so labels go only on the tiles they show on.
-    name, *rest = o.labels
-    rest = [*rest, *(["place on fold"] if o.on_fold else []), *([tag] if tag else [])]
-    half = 0.6 * LABEL_HEIGHT_MM * max(len(name), len(" · ".join(rest))) / 2
-    x, y = x + piece.dx, y + piece.dy
-    if area is not None and not _overlaps((x, y - half, x + 3 * LABEL_HEIGHT_MM, y + half), area):
-        return
-    x, y = x - piece.dx, y - piece.dy
-    _text(g, x + 2 + LABEL_HEIGHT_MM, y, name, LABEL_HEIGHT_MM, anchor="middle", weight="bold", rotate=-90)
-    if rest:
-        _text(g, x + 2 + LABEL_HEIGHT_MM + 1.4 * LABEL_HEIGHT_MM, y, " · ".join(rest), 0.8 * LABEL_HEIGHT_MM,
-              anchor="middle", rotate=-90)
+
+
+@dataclass(frozen=True)
+class PieceLabel:
+    """A line of a panel's label, written along its grainline; where it starts on a tile (mm)."""
+
+    left_mm: float
+    top_mm: float
+    text: str
+    size_mm: float
+    bold: bool
+
+
+def _label_centre(y: float, half: float, grid: TileGrid, low: float, high: float) -> float:
+    """The height nearest ``y`` where a label ``2 * half`` long lies on one tile, clear of the
+    overlap strips and within ``low``-``high`` (the grainline); ``y`` itself when none is."""
+    candidates = []
+    for row in range(grid.rows):
+        top = row * grid.step_y_mm + (grid.overlap_mm if row else 0.0) + half
+        bottom = row * grid.step_y_mm + grid.printable_height_mm - (
+            grid.overlap_mm if row < grid.rows - 1 else 0.0) - half
+        top, bottom = max(top, low + half), min(bottom, high - half)
+        if top <= bottom:
+            candidates.append(min(max(y, top), bottom))
+    return min(candidates, key=lambda c: abs(c - y), default=y)
+
+
+def piece_labels(sheet: Sheet, grid: TileGrid, tile, tag: str = "") -> list[PieceLabel]:
+    """The labels that show on ``tile``: the panel's name, then its size, cut count and revision.
+
+    They are set as HTML text over the tile's picture (WeasyPrint lays SVG text
+    out letter by letter, which is slow), reading upwards beside the grainline,
+    on one tile where the panel allows.
+    """
+    area = (tile.x_mm, tile.y_mm, tile.x_mm + tile.width_mm, tile.y_mm + tile.height_mm)
+    labels = []
+    for piece in sheet.pieces:
+        o = piece.outline
+        name, *rest = o.labels
+        rest = [*rest, *(["place on fold"] if o.on_fold else []), *([tag] if tag else [])]
+        lines = [(name, LABEL_HEIGHT_MM, True), (" · ".join(rest), 0.8 * LABEL_HEIGHT_MM, False)]
+        half = 0.35 * LABEL_HEIGHT_MM * max(len(text) for text, _, _ in lines)
+        (_, g0), (_, g1) = o.grainline
+        x = o.label_at[0] + piece.dx + 2
+        y = _label_centre(o.label_at[1] + piece.dy, half, grid, min(g0, g1) + piece.dy, max(g0, g1) + piece.dy)
+        if not _overlaps((x, y - half, x + 3 * LABEL_HEIGHT_MM, y + half), area):
+            continue
+        for text, size, bold in lines:
+            if text:
+                labels.append(PieceLabel(x - tile.x_mm, y - tile.y_mm, text, size, bold))
+                x += 1.4 * size
+    return labels
 
 
 def _alignment_marks(parent, grid: TileGrid, area=None) -> None:
@@ -609,7 +660,7 @@ def _svg_root(width_mm: float, height_mm: float, viewbox: tuple[float, float, fl
     })
 
 
-def tile_svg(sheet: Sheet, grid: TileGrid, row: int, column: int, tag: str = "") -> str:
+def tile_svg(sheet: Sheet, grid: TileGrid, row: int, column: int) -> str:
     """One page's share of the sheet, at true size: one SVG unit = 1 mm."""
     tile = grid.tile(row, column)
     w, h = tile.width_mm, tile.height_mm
@@ -618,7 +669,7 @@ def tile_svg(sheet: Sheet, grid: TileGrid, row: int, column: int, tag: str = "")
     area = (tile.x_mm, tile.y_mm, tile.x_mm + w, tile.y_mm + h)
     for piece in sheet.pieces:
         if _overlaps(piece.bounds, area):
-            _draw_piece(root, piece, area, tag)
+            _draw_piece(root, piece)
     _alignment_marks(root, grid, area)
     ET.SubElement(root, "rect", {"class": "frame", "x": _n(tile.x_mm), "y": _n(tile.y_mm), "width": _n(w),
                                  "height": _n(h), "fill": "none", "stroke": FRAME_COLOUR,
@@ -671,8 +722,11 @@ def cutting_sheet_html(data: DocumentData, paper: str, pattern: AlteredPattern |
     tag = f"{data.client_label.split()[0]} rev. {data.revision_number}" if data.client_label else ""
     tiles = [{"label": t.label, "row": row_label(t.row), "column": t.column + 1,
               "neighbours": neighbours(grid, t.row, t.column),
-              "src": svg_data_uri(tile_svg(sheet, grid, t.row, t.column, tag)),
-              "width": _n(t.width_mm), "height": _n(t.height_mm)} for t in grid.tiles()]
+              "src": svg_data_uri(tile_svg(sheet, grid, t.row, t.column)),
+              "labels": [{"text": label.text, "bold": label.bold, "rule": f"l{i}-{j}", "left": _n(label.left_mm),
+                          "top": _n(label.top_mm), "size": _n(label.size_mm)}
+                         for j, label in enumerate(piece_labels(sheet, grid, t, tag))]}
+             for i, t in enumerate(grid.tiles())]
     map_text = map_svg(sheet, grid)
     map_size = re.search(r'width="([0-9.]+)mm" height="([0-9.]+)mm"', map_text)
     context = {

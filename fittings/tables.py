@@ -1,6 +1,14 @@
-"""The allotment table as the page shows it: rows of raw edges, a column per level, in the plan's unit."""
+"""The allotment table as the page shows it: rows of raw edges, a column per level, in the plan's unit.
+
+Everything the template prints is worked out here as plain strings: the
+table is redrawn at every keystroke, and looking up form fields and their
+errors from the template costs far more than building the strings once.
+"""
 
 from dataclasses import dataclass, field
+from functools import lru_cache
+
+from django.forms.utils import flatatt
 
 from fittings.forms import cell_name
 from patterns.core.allot import Allotment
@@ -11,6 +19,14 @@ from patterns.core.units import format_length
 
 
 @dataclass
+class CellInput:
+    """The form's input for fixing one cell by hand: its attributes escaped and joined, and its first error."""
+
+    attrs: str
+    error: str = ""
+
+
+@dataclass
 class Cell:
     level: str
     shift: float | None  # None: the seam is not altered at this level
@@ -18,7 +34,8 @@ class Cell:
     words: str
     fixed: bool = False
     pinned: bool = False
-    field: object = None  # the form's input for fixing this cell by hand
+    input: CellInput | None = None  # only on the plan being edited, and only where the edge may move
+    css: str = ""
 
 
 @dataclass
@@ -43,8 +60,28 @@ class LevelRow:
     front_back: str = ""
 
 
+@lru_cache(maxsize=4096)
+def _length(value: float, unit: str, signed: bool) -> str:
+    # Shifts are whole steps, so the same few values come back at every keystroke.
+    return format_length(value, unit, signed=signed)
+
+
 def _f(value, unit, signed=False):
-    return "" if value is None else format_length(value, unit, signed=signed)
+    return "" if value is None else _length(value, unit, signed)
+
+
+def _input(form, name: str, placeholder: str, label: str) -> CellInput:
+    bound = form[name]
+    value = bound.value()
+    errors = form.errors.get(name) if form.is_bound else None
+    return CellInput(
+        attrs=flatatt({
+            "id": bound.auto_id, "name": bound.html_name, "value": "" if value is None else str(value),
+            "placeholder": placeholder, "inputmode": "decimal", "autocomplete": "off", "class": "cell",
+            "aria-label": label,
+        }),
+        error=errors[0] if errors else "",
+    )
 
 
 def plan_table(block: Block, result: Allotment, form=None):
@@ -69,13 +106,17 @@ def plan_table(block: Block, result: Allotment, form=None):
             row = EdgeRow(seam=seam.name, panel=panel, first_of_seam=edge == 0)
             for level in block.level_names:
                 s = shifts.get((seam.name, level, panel))
+                text = "" if s is None else _length(s.shift_mm, unit, True)
+                words = "not altered here" if s is None else direction(s.shift_mm)
+                fixed, pinned = bool(s and s.fixed), bool(s and s.pin_mm)
                 cell = Cell(
-                    level=level, shift=None if s is None else s.shift_mm,
-                    text="" if s is None else format_length(s.shift_mm, unit, signed=True),
-                    words="not altered here" if s is None else direction(s.shift_mm),
-                    fixed=bool(s and s.fixed), pinned=bool(s and s.pin_mm),
-                    field=form[cell_name(i, level, edge)] if form is not None else None,
+                    level=level, shift=None if s is None else s.shift_mm, text=text, words=words,
+                    fixed=fixed, pinned=pinned,
+                    css=("fixed" if fixed else "") + (" pinned" if pinned else "") + (" locked" if s is None else ""),
                 )
+                if form is not None and s is not None:
+                    cell.input = _input(form, cell_name(i, level, edge), text,
+                                        f"{seam.name}, {panel} edge, {level}: {words} {text}")
                 row.cells.append(cell)
             rows.append(row)
     return {
@@ -83,15 +124,16 @@ def plan_table(block: Block, result: Allotment, form=None):
         "level_labels": [LEVEL_LABELS.get(lv, lv) for lv in block.level_names],
         "rows": rows,
         "centre_front": (
-            f"{direction(result.centre_front_shift_mm)} {format_length(abs(result.centre_front_shift_mm), unit)} {unit}"
+            f"{direction(result.centre_front_shift_mm)} {_length(abs(result.centre_front_shift_mm), unit, False)} {unit}"
             if result.centre_front_shift_mm else ""
         ),
         "bands": [
             {"label": f"{LEVEL_LABELS[b.upper]} to {LEVEL_LABELS[b.lower]}",
-             "change": format_length(abs(b.change_mm), unit),
+             "change": _length(abs(b.change_mm), unit, False),
              "words": "lengthen" if b.change_mm > 0 else ("shorten" if b.change_mm < 0 else "no change")}
             for b in result.bands
         ],
         "findings": result.findings,
         "unit": unit,
+        "editable": form is not None,
     }

@@ -15,7 +15,8 @@ EDITORS = (OWNER, FITTER)
 
 
 def _client(pk):
-    return get_object_or_404(Client, pk=pk)
+    # Client.objects: a client removed from the lists is not opened or added to (the admin restores them).
+    return get_object_or_404(Client.objects, pk=pk)
 
 
 @role_required(*EDITORS)

@@ -293,7 +293,7 @@ def fitting_import(request, client_pk):
     """Take in a fitting file for this client: a new session and a new plan from it."""
     from fittings.models import Client
 
-    client = get_object_or_404(Client, pk=client_pk)
+    client = get_object_or_404(Client.objects, pk=client_pk)  # not a client removed from the lists
     error = None
     if request.method == "POST":
         upload = request.FILES.get("file")

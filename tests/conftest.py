@@ -32,7 +32,7 @@ def make_user(django_user_model):
             username or f"{role or 'nobody'}{next(counter)}", password=password, **fields,
         )
         if role:
-            user.groups.add(Group.objects.get(name=role))
+            user.groups.add(Group.objects.get_or_create(name=role)[0])
         return user
 
     return make

@@ -52,7 +52,7 @@ def ensure_demo_login(password: str | None = None) -> DemoLogin:
         return DemoLogin(DEMO_USERNAME, None)
     password = password or os.environ.get("ATELIER_DEMO_PASSWORD") or get_random_string(12, _PASSWORD_CHARS)
     user = User.objects.create_user(DEMO_USERNAME, password=password, first_name="Demo", last_name="Fitter")
-    user.groups.add(Group.objects.get(name=FITTER))
+    user.groups.add(Group.objects.get_or_create(name=FITTER)[0])
     return DemoLogin(DEMO_USERNAME, password)
 
 

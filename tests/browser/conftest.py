@@ -20,7 +20,7 @@ def _chromium_missing():
     return not (Path(CHROMIUM).exists() or shutil.which(CHROMIUM))
 
 
-@pytest.fixture(scope="session")
+@pytest.fixture(scope="module")
 def browser():
     if _chromium_missing():
         if os.environ.get("CI"):
@@ -28,7 +28,19 @@ def browser():
         pytest.skip(f"Chromium not found at {CHROMIUM}; install Debian's chromium to run the browser tests.")
     from playwright.sync_api import sync_playwright
 
-    os.environ["DJANGO_ALLOW_ASYNC_UNSAFE"] = "true"  # Playwright's sync API runs an event loop in this thread
+    # Playwright's sync API runs an event loop in this thread; Django's ORM must be told it is safe here.
+    before = os.environ.get("DJANGO_ALLOW_ASYNC_UNSAFE")
+    os.environ["DJANGO_ALLOW_ASYNC_UNSAFE"] = "true"
+    try:
+        yield from _launch(sync_playwright)
+    finally:
+        if before is None:
+            os.environ.pop("DJANGO_ALLOW_ASYNC_UNSAFE", None)
+        else:
+            os.environ["DJANGO_ALLOW_ASYNC_UNSAFE"] = before
+
+
+def _launch(sync_playwright):
     with sync_playwright() as playwright:
         browser = playwright.chromium.launch(
             executable_path=CHROMIUM,

@@ -7,7 +7,7 @@ import pytest
 from fittings.models import Client, PlanRevision
 from tests.conftest import DEMO_PASSWORD
 
-pytestmark = [pytest.mark.browser, pytest.mark.django_db(transaction=True, serialized_rollback=True)]
+pytestmark = [pytest.mark.browser, pytest.mark.django_db(transaction=True)]
 
 
 def sign_in(page, live_server):

@@ -212,6 +212,20 @@ def test_it_draws_every_panel_at_true_size_across_the_tiles(pdfs, strong, bodice
         assert max(y for _, y in seen) - min(y for _, y in seen) == pytest.approx(height, abs=0.5)
 
 
+@pytest.mark.parametrize("name", ["strong", "gentle", "bodice"])
+@pytest.mark.parametrize("paper", ["a4", "letter"])
+def test_it_keeps_each_panel_label_within_one_row_of_tiles(strong, gentle, bodice, name, paper):
+    data = {"strong": strong, "gentle": gentle, "bodice": bodice}[name]
+    sheet, grid = documents.sheet_grid(altered_pattern(data), paper)
+    rows_of: dict[str, set[int]] = {}
+    for tile in grid.tiles():
+        for label in documents.piece_labels(sheet, grid, tile):
+            if label.bold:
+                rows_of.setdefault(label.text, set()).add(tile.row)
+    assert sorted(rows_of) == sorted(o.name for o in altered_pattern(data).altered)
+    assert all(len(rows) == 1 for rows in rows_of.values())
+
+
 def expected_cell(edge, unit: str) -> str:
     if edge is None:
         return "–"
@@ -226,7 +240,8 @@ def table_rows(pdf: bytes) -> list[list[str]]:
     with pdfplumber.open(io.BytesIO(pdf)) as doc:
         for page in doc.pages:
             # Only the drawn cell borders, not the edges of the shaded header cells.
-            for table in page.extract_tables({"vertical_strategy": "lines_strict", "horizontal_strategy": "lines_strict"}):
+            strict = {"vertical_strategy": "lines_strict", "horizontal_strategy": "lines_strict"}
+            for table in page.extract_tables(strict):
                 rows += [[flat(cell or "").strip() for cell in row] for row in table]
     return rows
 
@@ -474,6 +489,8 @@ def test_it_offers_the_print_form_and_refuses_other_methods(fitter_client, plan)
 @pytest.mark.urls(__name__)
 def test_it_lets_the_workroom_print_issued_revisions_only(workroom_client, fitter_user, plan, quick_render):
     revision = plan_services.latest_revision(plan)
+    page = workroom_client.get(start_url(revision)).content.decode()
+    assert "Only the owner or a fitter can issue this draft" in page and "Issue and print" not in page
     assert workroom_client.post(start_url(revision), {"paper": "a4", "kind": "both"}).status_code == 403
     revision.refresh_from_db()
     assert revision.status == RevisionStatus.DRAFT and not PrintJob.objects.exists()
@@ -555,7 +572,23 @@ def test_it_leaves_the_drawing_to_the_worker_when_tasks_are_queued(settings, fit
     assert response.status_code == 302 and job.status == "queued" and job.task_id
     revision.refresh_from_db()
     assert revision.status == RevisionStatus.ISSUED
-    assert 'hx-trigger="every 1s"' in fitter_client.get(response["Location"], headers={"HX-Request": "true"}).content.decode()
+    fragment = fitter_client.get(response["Location"], headers={"HX-Request": "true"}).content.decode()
+    assert 'hx-trigger="every 1s"' in fragment
     call_command("db_worker", "--batch", "--no-startup-delay", "--no-reload", verbosity=0)
     job.refresh_from_db()
     assert job.status == "done" and job.work_order and job.cutting_sheet
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_shows_print_jobs_read_only_in_the_admin(admin_client, plan, quick_render):
+    revision = plan_services.issue_revision(revision=plan_services.latest_revision(plan), user=None)
+    job = PrintJob.objects.create(revision=revision, paper="a4")
+    run_print_job(job.pk)
+    listing = admin_client.get(reverse("admin:fittings_printjob_changelist"))
+    assert listing.status_code == 200 and "Work order and cutting sheet" in listing.content.decode()
+    page = admin_client.get(reverse("admin:fittings_printjob_change", args=[job.pk]))
+    html = page.content.decode()
+    assert page.status_code == 200
+    assert reverse("fittings:print_download", args=[job.pk, "cutting-sheet"]) in html
+    assert admin_client.get(reverse("admin:fittings_printjob_add")).status_code == 403

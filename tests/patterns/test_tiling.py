@@ -55,8 +55,9 @@ def test_it_refuses_an_overlap_as_large_as_the_page():
         tiles_needed(500, 10, 10)
 
 
-@pytest.mark.parametrize(("row", "label"), [(0, "A"), (1, "B"), (25, "Z"), (26, "AA"), (27, "AB"), (51, "AZ"), (52, "BA"),
-                                            (701, "ZZ"), (702, "AAA")])
+@pytest.mark.parametrize(("row", "label"), [
+    (0, "A"), (1, "B"), (25, "Z"), (26, "AA"), (27, "AB"), (51, "AZ"), (52, "BA"), (701, "ZZ"), (702, "AAA"),
+])
 def test_it_letters_rows_like_a_spreadsheet(row, label):
     assert row_label(row) == label
 

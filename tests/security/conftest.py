@@ -2,6 +2,7 @@
 
 import io
 from dataclasses import dataclass
+from html.parser import HTMLParser
 
 import pytest
 from django.apps import apps
@@ -11,6 +12,8 @@ from django.utils import timezone
 from PIL import Image
 
 from fittings.models import Client, Photo, Plan, PlanRevision, PrintJob, PrintStatus
+from fittings.services import plans as plan_services
+from tests.fittings.conftest import corset_12, plan, reducing_client  # noqa: F401  (shared fixtures)
 
 # The tables a bad request must leave exactly as they were.
 MAIN_APPS = ("fittings", "patterns")
@@ -20,6 +23,17 @@ def jpeg_bytes(size=(40, 30), colour=(200, 120, 90), exif=None) -> bytes:
     out = io.BytesIO()
     Image.new("RGB", size, colour).save(out, format="JPEG", **({"exif": exif} if exif is not None else {}))
     return out.getvalue()
+
+
+def options_post(plan, **changes):
+    """The plan page's form as a browser sends it (the saved options, the plan's version), some fields changed."""
+    from fittings.forms import PlanOptionsForm
+
+    values, block, options = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    data = dict(PlanOptionsForm.initial_for(options, block))
+    data["version"] = plan.version
+    data.update(changes)
+    return data
 
 
 def table_rows(model) -> list[tuple]:
@@ -70,3 +84,59 @@ def world(demo_atelier):
         client=client, other_client=other, session=session, plan=plan, issued=issued,
         draft=plan.revisions.get(number=2), other_plan=Plan.objects.get(client=other), photo=photo, job=job,
     )
+
+
+class _FormReader(HTMLParser):
+    """The fields one form would send, read from a page as a browser reads it."""
+
+    def __init__(self, form_id):
+        super().__init__(convert_charrefs=True)
+        self.form_id, self.inside, self.data = form_id, False, {}
+        self._select = self._textarea = None
+        self._first_option = None
+
+    def handle_starttag(self, tag, attrs):
+        attrs = dict(attrs)
+        if tag == "form":
+            self.inside = attrs.get("id") == self.form_id or self.form_id in (attrs.get("class") or "").split()
+        if not self.inside:
+            return
+        name = attrs.get("name")
+        if tag == "input" and name:
+            kind = attrs.get("type", "text")
+            if kind in ("file", "submit", "button"):
+                return
+            if kind in ("radio", "checkbox") and "checked" not in attrs:
+                return
+            self.data[name] = attrs.get("value", "")
+        elif tag == "select" and name:
+            self._select, self._first_option = name, None
+        elif tag == "option" and self._select:
+            if self._first_option is None:
+                self._first_option = attrs.get("value", "")
+            if "selected" in attrs:
+                self.data[self._select] = attrs.get("value", "")
+        elif tag == "textarea" and name:
+            self._textarea = name
+            self.data[name] = ""
+
+    def handle_endtag(self, tag):
+        if tag == "form":
+            self.inside = False
+        elif tag == "select" and self._select:
+            self.data.setdefault(self._select, self._first_option or "")
+            self._select = None
+        elif tag == "textarea":
+            self._textarea = None
+
+    def handle_data(self, data):
+        if self._textarea:
+            self.data[self._textarea] += data.lstrip("\n") if not self.data[self._textarea] else data
+
+
+def form_fields(html: str, form_id: str) -> dict[str, str]:
+    """What the form with this id (or class) sends when submitted unchanged."""
+    reader = _FormReader(form_id)
+    reader.feed(html)
+    assert reader.data, f"no form {form_id!r} on the page"
+    return reader.data

@@ -1,0 +1,303 @@
+"""Bad input over every form, the fitting-file import, uploads and URL parameters.
+
+Each case is refused with a 4xx (never a 500), says what is wrong where a
+page is shown, and leaves every table of the fittings and patterns apps
+(rows and contents) and the private files exactly as they were.
+"""
+
+import copy
+import json
+from dataclasses import dataclass, field
+
+import pytest
+from django.core.files.uploadedfile import SimpleUploadedFile
+from django.urls import reverse
+
+from tests.security.conftest import jpeg_bytes, private_files, snapshot
+from tests.security.test_private_files import png_claiming
+
+pytestmark = pytest.mark.django_db
+
+TOO_BIG = 10**25  # beyond any 64-bit id
+
+
+@dataclass
+class Case:
+    id: str
+    method: str
+    url: object  # world -> path
+    data: object = None  # world -> dict (files as uploaded-file objects)
+    status: int = 400
+    words: str | None = None  # must appear in the page shown
+    headers: dict = field(default_factory=dict)
+
+
+def u(name, *args):
+    """world -> reverse(name, args), each arg a callable on the world or a value."""
+    return lambda w: reverse(name, args=[a(w) if callable(a) else a for a in args])
+
+
+def q(name, query, *args):
+    return lambda w: u(name, *args)(w) + "?" + (query(w) if callable(query) else query)
+
+
+CLIENT = lambda w: w.client.pk  # noqa: E731  WF-0102, read in inches
+SESSION = lambda w: w.session.pk  # noqa: E731
+PLAN = lambda w: w.plan.pk  # noqa: E731
+CM_PLAN = lambda w: w.other_plan.pk  # noqa: E731  WF-0101's plan, kept in centimetres
+
+
+def new_client(**changes):
+    return lambda w: {"reference": "BI-1", "name": "Perpetua Lisle", **changes}
+
+
+def session(**changes):
+    return lambda w: {"taken_on": "2026-11-30", "kind": "first", "unit": "cm", "bust_girth": "95", "done": "1",
+                      **changes}
+
+
+def session_edit(**changes):
+    return lambda w: {**session(**changes)(w), "version": changes.get("version", w.session.version)}
+
+
+def photo(data, name="front.jpg"):
+    return lambda w: {**session()(w), "photo_front": SimpleUploadedFile(name, data() if callable(data) else data)}
+
+
+def options(plan_of=lambda w: w.plan, **changes):
+    def build(w):
+        from tests.security.conftest import options_post
+
+        return options_post(plan_of(w), **changes)
+
+    return build
+
+
+def fitting(change=None, raw=None):
+    """A fitting file: the stored revision's own (valid) file with one thing changed, or raw bytes."""
+
+    def build(w):
+        if raw is not None:
+            content = raw
+        else:
+            data = copy.deepcopy(w.issued.inputs)
+            change(data)
+            content = json.dumps(data).encode()
+        return {"file": SimpleUploadedFile("fitting.json", content, content_type="application/json")}
+
+    return build
+
+
+def setitem(path, value):
+    def change(data):
+        target = data
+        for key in path[:-1]:
+            target = target[key]
+        target[path[-1]] = value
+
+    return change
+
+
+def without_level(data):
+    data["pattern"]["levels"] = data["pattern"]["levels"][:1]
+
+
+def renamed_seam(data):
+    data["pattern"]["seams"][0]["name"] = "Imaginary seam"
+
+
+def bigger(n):
+    return lambda: jpeg_bytes() + b"\x00" * n
+
+
+CASES = [
+    # --- a new client ------------------------------------------------------------------------
+    Case("client-reference-empty", "post", u("fittings:client_new"), new_client(reference=""), words="This field is required"),
+    Case("client-reference-blank", "post", u("fittings:client_new"), new_client(reference="   "), words="This field is required"),
+    Case("client-name-empty", "post", u("fittings:client_new"), new_client(name=""), words="This field is required"),
+    Case("client-reference-too-long", "post", u("fittings:client_new"), new_client(reference="R" * 33), words="at most 32"),
+    Case("client-name-too-long", "post", u("fittings:client_new"), new_client(name="N" * 201), words="at most 200"),
+    Case("client-contact-too-long", "post", u("fittings:client_new"), new_client(contact="0" * 201), words="at most 200"),
+    Case("client-consent-not-a-date", "post", u("fittings:client_new"), new_client(consent_given_on="yesterday"), words="valid date"),
+    Case("client-consent-no-such-day", "post", u("fittings:client_new"), new_client(consent_given_on="2026-02-30"), words="valid date"),
+    Case("client-reference-taken", "post", u("fittings:client_new"), new_client(reference="WF-0101"), words="already exists"),
+    Case("client-reference-nul", "post", u("fittings:client_new"), new_client(reference="BI\x001"), words="Null characters"),
+    # --- a session's readings ------------------------------------------------------------------
+    Case("reading-not-a-number", "post", u("fittings:session_new", CLIENT), session(bust_girth="abc"), words="not a length in centimetres"),
+    Case("reading-nan", "post", u("fittings:session_new", CLIENT), session(bust_girth="NaN"), words="not a length"),
+    Case("reading-infinity", "post", u("fittings:session_new", CLIENT), session(bust_girth="inf"), words="not a length"),
+    Case("reading-negative", "post", u("fittings:session_new", CLIENT), session(bust_girth="-90"), words="not a length"),
+    Case("reading-zero", "post", u("fittings:session_new", CLIENT), session(bust_girth="0"), words="Must be between"),
+    Case("reading-absurd", "post", u("fittings:session_new", CLIENT), session(bust_girth="9000"), words="Must be between"),
+    Case("reading-exponent", "post", u("fittings:session_new", CLIENT), session(bust_girth="1e3"), words="not a length"),
+    Case("reading-fraction-in-cm", "post", u("fittings:session_new", CLIENT), session(bust_girth="27 3/8"), words="Fractions are for inches"),
+    Case("reading-fraction-over-zero", "post", u("fittings:session_new", CLIENT), session(unit="in", bust_girth="37 3/0"), words="0 below the line"),
+    Case("reading-fraction-over-one", "post", u("fittings:session_new", CLIENT), session(unit="in", bust_girth="37 9/8"), words="less than 1"),
+    Case("reading-too-long", "post", u("fittings:session_new", CLIENT), session(bust_girth="9" * 40), words="too long"),
+    Case("reading-none-at-all", "post", u("fittings:session_new", CLIENT), session(bust_girth=""), words="Enter at least one measurement"),
+    Case("session-kind-unknown", "post", u("fittings:session_new", CLIENT), session(kind="fitting"), words="Select a valid choice"),
+    Case("session-unit-unknown", "post", u("fittings:session_new", CLIENT), session(unit="yd"), words="Select a valid choice"),
+    Case("session-date-impossible", "post", u("fittings:session_new", CLIENT), session(taken_on="2026-13-45"), words="valid date"),
+    Case("session-date-far-future", "post", u("fittings:session_new", CLIENT), session(taken_on="9999-12-31"), words="cannot be in the future"),
+    Case("session-notes-too-long", "post", u("fittings:session_new", CLIENT), session(posture_notes="x" * 2001), words="at most 2000"),
+    Case("session-notes-nul", "post", u("fittings:session_new", CLIENT), session(notes="a\x00b"), words="Null characters"),
+    Case("edit-version-not-a-number", "post", u("fittings:session_edit", SESSION), session_edit(version="abc"), words="whole number"),
+    Case("edit-version-zero", "post", u("fittings:session_edit", SESSION), session_edit(version="0"), words="greater than or equal to 1"),
+    Case("edit-version-stale", "post", u("fittings:session_edit", SESSION), session_edit(version="999"), status=409, words="Someone else saved"),
+    Case("edit-bad-reading", "post", u("fittings:session_edit", SESSION), session_edit(waist_girth="-1"), words="not a length"),
+    # --- photos --------------------------------------------------------------------------------
+    Case("photo-not-a-picture", "post", u("fittings:session_new", CLIENT), photo(b"<?php echo 1; ?>" * 20), words="not a photo that can be read"),
+    Case("photo-empty-file", "post", u("fittings:session_new", CLIENT), photo(b""), words="empty"),
+    Case("photo-over-8-mb", "post", u("fittings:session_new", CLIENT), photo(bigger(8 * 1024 * 1024)), words="larger than 8 MB"),
+    Case("photo-too-many-pixels", "post", u("fittings:session_new", CLIENT), photo(png_claiming(10_000, 6_000), "f.png"), words="too many pixels"),
+    Case("photo-pixel-bomb", "post", u("fittings:session_new", CLIENT), photo(png_claiming(30_000, 30_000), "f.png"), words="too many pixels"),
+    Case("photo-cut-off", "post", u("fittings:session_new", CLIENT), photo(lambda: jpeg_bytes((300, 200))[:250]), words="damaged"),
+    Case("photo-svg", "post", u("fittings:session_new", CLIENT), photo(b"<svg xmlns='http://www.w3.org/2000/svg'/>", "f.svg"), words="not a photo"),
+    # --- a new plan ----------------------------------------------------------------------------
+    Case("plan-garment-empty", "post", u("fittings:plan_new", SESSION), lambda w: {"garment": "", "base_pattern": w.plan.base_pattern_id}, words="This field is required"),
+    Case("plan-garment-too-long", "post", u("fittings:plan_new", SESSION), lambda w: {"garment": "g" * 201, "base_pattern": w.plan.base_pattern_id}, words="at most 200"),
+    Case("plan-pattern-not-a-number", "post", u("fittings:plan_new", SESSION), lambda w: {"garment": "Corset", "base_pattern": "abc"}, words="Select a valid choice"),
+    Case("plan-pattern-missing", "post", u("fittings:plan_new", SESSION), lambda w: {"garment": "Corset", "base_pattern": TOO_BIG}, words="Select a valid choice"),
+    Case("plan-from-another-clients-revision", "get", q("fittings:plan_new", lambda w: f"from={w.other_plan.revisions.get().pk}", SESSION), status=404, words="Not found"),
+    Case("plan-from-not-a-number", "get", q("fittings:plan_new", "from=abc", SESSION), status=404, words="Not found"),
+    Case("plan-from-too-big", "get", q("fittings:plan_new", f"from={TOO_BIG}", SESSION), status=404, words="Not found"),
+    # --- a plan's options ----------------------------------------------------------------------
+    Case("ease-not-a-number", "post", u("fittings:plan_edit", PLAN), options(ease_waist="abc"), words="not a length in inches"),
+    Case("ease-nan", "post", u("fittings:plan_edit", PLAN), options(ease_waist="nan"), words="not a length"),
+    Case("ease-absurd", "post", u("fittings:plan_edit", PLAN), options(ease_waist="-999"), words="Must be between"),
+    Case("ease-fraction-in-cm", "post", u("fittings:plan_edit", CM_PLAN), options(lambda w: w.other_plan, ease_waist="-1 1/2"), words="Fractions are for inches"),
+    Case("lacing-gap-negative", "post", u("fittings:plan_edit", PLAN), options(lacing_gap="-2"), words="not a length in inches"),
+    Case("step-not-offered", "post", u("fittings:plan_edit", PLAN), options(step="0.3"), words="Select a valid choice"),
+    Case("policy-unknown", "post", u("fittings:plan_edit", PLAN), options(policy="random"), words="Select a valid choice"),
+    Case("centre-front-absurd", "post", u("fittings:plan_edit", PLAN), options(centre_front_width="1e9"), words="not a length"),
+    Case("fixed-cell-absurd", "post", u("fittings:plan_edit", PLAN), options(**{"fix-0-waist-0": "99"}), words="Must be between"),
+    Case("plan-version-not-a-number", "post", u("fittings:plan_edit", PLAN), options(version="abc"), words="whole number"),
+    Case("plan-version-stale", "post", u("fittings:plan_edit", PLAN), options(version="1"), status=409, words="Someone saved this plan"),
+    Case("recompute-infinity-htmx", "post", u("fittings:plan_recompute", PLAN), options(ease_waist="inf"), status=422, words="not a length", headers={"HX-Request": "true"}),
+    # --- pins from a toile fitting -------------------------------------------------------------
+    Case("pins-none", "post", u("fittings:revision_pins", PLAN, 2), lambda w: {"note": "nothing"}, words="Enter at least one pin"),
+    Case("pin-not-a-number", "post", u("fittings:revision_pins", PLAN, 2), lambda w: {"pin-0-waist": "lots"}, words="not a length"),
+    Case("pin-over-zero", "post", u("fittings:revision_pins", PLAN, 2), lambda w: {"pin-0-waist": "1/0"}, words="0 below the line"),
+    Case("pin-absurd", "post", u("fittings:revision_pins", PLAN, 2), lambda w: {"pin-0-waist": "300"}, words="Must be between"),
+    Case("pin-note-too-long", "post", u("fittings:revision_pins", PLAN, 2), lambda w: {"pin-0-waist": "-1/4", "note": "n" * 2001}, words="at most 2000"),
+    Case("apply-pins-version-damaged", "post", u("fittings:revision_apply_pins", PLAN, 1), lambda w: {"version": "²"}, words="damaged"),
+    # --- the fitting-file import ---------------------------------------------------------------
+    Case("import-no-file", "post", u("fittings:fitting_import", CLIENT), lambda w: {}, words="Choose a fitting file"),
+    Case("import-malformed-json", "post", u("fittings:fitting_import", CLIENT), fitting(raw=b'{"format": "atelier-fitting",'), words="Not valid JSON"),
+    Case("import-not-text", "post", u("fittings:fitting_import", CLIENT), fitting(raw=b"\xff\xfe\x00\x01"), words="not text"),
+    Case("import-not-an-object", "post", u("fittings:fitting_import", CLIENT), fitting(raw=b"[1, 2]"), words="JSON object"),
+    Case("import-empty-file", "post", u("fittings:fitting_import", CLIENT), fitting(raw=b""), words="Not valid JSON"),
+    Case("import-nan", "post", u("fittings:fitting_import", CLIENT), fitting(raw=b'{"measurements": {"bust_girth": NaN}}'), words="NaN is not a length"),
+    Case("import-infinity", "post", u("fittings:fitting_import", CLIENT), fitting(raw=b'{"measurements": {"bust_girth": -Infinity}}'), words="Infinity is not a length"),
+    Case("import-overflowing-number", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["measurements", "bust_girth"], "1e999")), words="measurements/bust_girth"),
+    Case("import-no-measurements", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["measurements"], {})), words="should be non-empty"),
+    Case("import-negative-reading", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["measurements", "waist_girth"], -700)), words="measurements/waist_girth"),
+    Case("import-absurd-reading", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["measurements", "waist_girth"], 4000)), words="outside what a body measures"),
+    Case("import-reading-as-text", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["measurements", "waist_girth"], "700")), words="is not of type"),
+    Case("import-unknown-measurement", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["measurements", "shoe_size"], 38)), words="shoe_size"),
+    Case("import-unknown-seam-override", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["plan", "overrides"], [{"seam": "Nowhere seam", "level": "waist", "panel": "Side front", "shift_mm": 2}])), words="no seam called"),
+    Case("import-unknown-seam-pin", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["plan", "pins"], [{"seam": "Nowhere seam", "level": "waist", "amount_mm": -3}])), words="no seam called"),
+    Case("import-unknown-level-ease", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["plan", "ease"], {"knee": 5})), words="knee"),
+    Case("import-unknown-seam-in-pattern", "post", u("fittings:fitting_import", CLIENT), fitting(renamed_seam), words="differs from the atelier"),
+    Case("import-missing-levels", "post", u("fittings:fitting_import", CLIENT), fitting(without_level), words="pattern"),
+    Case("import-pattern-not-kept", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["pattern", "name"], "Someone else's block")), words="has no base pattern"),
+    Case("import-unit-unknown", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["unit"], "yd")), words="unit"),
+    Case("import-wrong-format", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["format"], "other-program")), words="format"),
+    Case("import-deeply-nested", "post", u("fittings:fitting_import", CLIENT), fitting(raw=b"[" * 100_000 + b"]" * 100_000), words="Not valid JSON"),
+    Case("import-file-too-large", "post", u("fittings:fitting_import", CLIENT), fitting(raw=b" " * (600 * 1024) + b"{}"), words="larger than 512 KB"),
+    Case("import-garment-too-long", "post", u("fittings:fitting_import", CLIENT), lambda w: {**fitting(setitem(["unit"], "in"))(w), "garment": "g" * 201}, words="too long"),
+    # --- URL parameters: other clients' objects, ids that do not exist, junk ---------------------
+    Case("compare-another-clients-session", "get", q("fittings:compare", lambda w: f"a=s{w.other_client.sessions.get().pk}&b=s{w.session.pk}", CLIENT), words="not in this client"),
+    Case("compare-another-clients-revision", "get", q("fittings:compare", lambda w: f"a=r{w.other_plan.revisions.get().pk}&b=r{w.issued.pk}", CLIENT), words="not in this client"),
+    Case("compare-session-with-revision", "get", q("fittings:compare", lambda w: f"a=s{w.session.pk}&b=r{w.issued.pk}", CLIENT), words="a session with a session"),
+    Case("compare-junk", "get", q("fittings:compare", "a=%27%3B--&b=%3Cscript%3E", CLIENT), words="Choose two sessions"),
+    Case("compare-superscript-digits", "get", q("fittings:compare", "a=s%C2%B2&b=s%C2%B3", CLIENT), words="Choose two sessions"),
+    Case("compare-id-too-big", "get", q("fittings:compare", lambda w: f"a=s{TOO_BIG}&b=s{w.session.pk}", CLIENT), words="not in this client"),
+    Case("session-that-does-not-exist", "get", u("fittings:session_edit", TOO_BIG), status=404, words="Not found"),
+    Case("plan-that-does-not-exist", "post", u("fittings:plan_edit", 999_999), lambda w: {}, status=404, words="Not found"),
+    Case("revision-beyond-the-plans", "get", u("fittings:revision_detail", PLAN, 3), status=404, words="Not found"),
+    Case("revision-file-beyond-the-plans", "get", u("fittings:revision_fitting_file", PLAN, 99), status=404, words="Not found"),
+    Case("issue-revision-beyond-the-plans", "post", u("fittings:revision_issue", PLAN, 3), lambda w: {}, status=404, words="Not found"),
+    Case("photo-that-does-not-exist", "get", u("fittings:photo_file", TOO_BIG), status=404, words="Not found"),
+    Case("client-that-does-not-exist", "get", u("fittings:session_new", 999_999), status=404, words="Not found"),
+]
+
+
+def test_it_has_a_corpus_of_at_least_fifty_cases():
+    assert len(CASES) >= 50
+    assert len({case.id for case in CASES}) == len(CASES)
+
+
+def _send(client, case, world):
+    url = case.url(world)
+    data = case.data(world) if case.data else None
+    if case.method == "get":
+        return client.get(url, headers=case.headers)
+    return client.post(url, data or {}, headers=case.headers)
+
+
+@pytest.mark.parametrize("case", [pytest.param(c, id=c.id) for c in CASES])
+def test_it_refuses_bad_input_plainly_and_changes_nothing(fitter_client, world, case):
+    fitter_client.raise_request_exception = False  # a 500 must fail the check below, not stop the test
+    tables, files = snapshot(), private_files()
+    response = _send(fitter_client, case, world)
+    assert response.status_code == case.status, response.content[:2000]
+    if case.words is not None:
+        body = response.content.decode()
+        assert case.words in body, body[:3000]
+    assert snapshot() == tables
+    assert private_files() == files
+
+
+# Junk in the query string of a page that only reads: ignored, the page still shown.
+IGNORED = [
+    Case("list-page-not-a-number", "get", q("fittings:client_list", "page=abc"), status=200, words="WF-0102"),
+    Case("list-page-negative", "get", q("fittings:client_list", "page=-1"), status=200, words="WF-0102"),
+    Case("list-page-too-big", "get", q("fittings:client_list", f"page={TOO_BIG}"), status=200, words="WF-0102"),
+    Case("list-search-10k-chars", "get", q("fittings:client_list", "q=" + "x" * 10_000), status=200, words="No client matches"),
+    Case("list-search-nul", "get", q("fittings:client_list", "q=Odalys%00"), status=200, words="WF-0102"),
+    Case("preview-junk-options", "get", q("fittings:plan_preview", "ease_waist=1e999&step=abc&fix-0-waist-0=%00", PLAN), status=200),
+    Case("advice-superscript-session", "post", u("fittings:session_check", CLIENT), lambda w: {"session": "²", "bust_girth": "90"}, status=200),
+]
+
+
+@pytest.mark.parametrize("case", [pytest.param(c, id=c.id) for c in IGNORED])
+def test_it_ignores_junk_in_a_reading_page_and_changes_nothing(fitter_client, world, case):
+    fitter_client.raise_request_exception = False
+    tables = snapshot()
+    response = _send(fitter_client, case, world)
+    assert response.status_code == case.status
+    if case.words:
+        assert case.words in response.content.decode()
+    assert snapshot() == tables
+
+
+def test_it_refuses_to_add_to_a_client_removed_from_the_lists(fitter_client, world):
+    from django.utils import timezone
+
+    from fittings.models import Client
+
+    Client.all_objects.filter(pk=world.client.pk).update(is_deleted=True, deleted_at=timezone.now())
+    tables = snapshot()
+    for url, data in ((reverse("fittings:session_new", args=[world.client.pk]), session()(world)),
+                      (reverse("fittings:fitting_import", args=[world.client.pk]), fitting(setitem(["unit"], "in"))(world)),
+                      (reverse("fittings:client_detail", args=[world.client.pk]), None)):
+        response = fitter_client.post(url, data) if data else fitter_client.get(url)
+        assert response.status_code == 404, url
+    assert snapshot() == tables
+
+
+def test_it_reads_arabic_indic_digits_as_digits(fitter_client, world):
+    """Not bad input: a tablet keyboard may type other digits; they mean what they say."""
+    response = fitter_client.post(reverse("fittings:session_new", args=[world.client.pk]),
+                                  session(unit="in", bust_girth="٣٧")(world))
+    assert response.status_code == 302
+    assert str(world.client.sessions.order_by("-id").first().measurements.get().value_mm) == "939.8000"  # 37 in
+
+
+def test_it_keeps_junk_inputs_away_from_pages_as_markup(fitter_client, world):
+    response = fitter_client.get(reverse("fittings:client_list"), {"q": "<script>alert(1)</script>"})
+    assert "<script>alert(1)</script>" not in response.content.decode()
+    assert "&lt;script&gt;" in response.content.decode()
+
+
