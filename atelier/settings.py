@@ -95,6 +95,8 @@ ALLOWED_HOSTS += [host for host in env_list("ATELIER_BIND_HOSTS") if host not in
 CSRF_TRUSTED_ORIGINS = env_list("ATELIER_CSRF_TRUSTED_ORIGINS")
 
 ATELIER_NAME = os.environ.get("ATELIER_NAME") or demo.ATELIER_NAME
+# Printed work orders name the client by reference only, unless the atelier chooses otherwise.
+ATELIER_PRINT_CLIENT_NAME = os.environ.get("ATELIER_PRINT_CLIENT_NAME", "0") == "1"
 
 INSTALLED_APPS = [
     "django.contrib.admin",
@@ -167,6 +169,22 @@ else:
         },
     }
 DEFAULT_AUTO_FIELD = "django.db.models.BigAutoField"
+
+# Caches.  "previews" holds drawn panel previews in the data folder, shared by
+# every server process, so a plan is drawn once whichever process is asked.
+# The key prefix is new at every start (gunicorn's --preload makes the
+# workers share it), so drawings made by an older version of the app are
+# never served after an upgrade.
+CACHES = {
+    "default": {"BACKEND": "django.core.cache.backends.locmem.LocMemCache"},
+    "previews": {
+        "BACKEND": "django.core.cache.backends.filebased.FileBasedCache",
+        "LOCATION": DATA_DIR / "cache" / "previews",
+        "TIMEOUT": 24 * 3600,
+        "KEY_PREFIX": secrets.token_hex(4),
+        "OPTIONS": {"MAX_ENTRIES": 2000},
+    },
+}
 
 # Background work (rendering work orders): run at once unless ATELIER_TASKS=db,
 # which queues tasks in the database for `manage.py db_worker`.

@@ -277,7 +277,7 @@ def svg_artists(svg: bytes):
     width = float(re.search(r'width="([0-9.]+)pt"', text).group(1)) / 72
     height = float(re.search(r'height="([0-9.]+)pt"', text).group(1)) / 72
     paths = re.findall(r'<path d="([^"]+)"', text)
-    lines = [d.count(" L ") + 1 for d in paths if d.count(" L ") >= 1]
+    lines = [len(re.findall(r"\bL ", d)) + 1 for d in paths if re.search(r"\bL ", d)]
     labels = text.count("<text ")
     return lines, labels, (width, height)
 

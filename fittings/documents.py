@@ -78,6 +78,8 @@ STITCH_DASH = "3 1.5"
 NOTCH_WIDTH_MM = 0.4
 LABEL_HEIGHT_MM = 5.0
 MARK_RADIUS_MM = 2.5
+# A label keeps this far from the overlap strips, so it prints whole on one tile.
+LABEL_CLEARANCE_MM = 2.0
 # Drawn lines keep within this of the computed outline (far finer than the pen).
 DRAW_TOLERANCE_MM = 0.05
 FONT_FAMILY = "DejaVu Sans"
@@ -554,9 +556,9 @@ def _label_centre(y: float, half: float, grid: TileGrid, low: float, high: float
     overlap strips and within ``low``-``high`` (the grainline); ``y`` itself when none is."""
     candidates = []
     for row in range(grid.rows):
-        top = row * grid.step_y_mm + (grid.overlap_mm if row else 0.0) + half
+        top = row * grid.step_y_mm + (grid.overlap_mm if row else 0.0) + half + LABEL_CLEARANCE_MM
         bottom = row * grid.step_y_mm + grid.printable_height_mm - (
-            grid.overlap_mm if row < grid.rows - 1 else 0.0) - half
+            grid.overlap_mm if row < grid.rows - 1 else 0.0) - half - LABEL_CLEARANCE_MM
         top, bottom = max(top, low + half), min(bottom, high - half)
         if top <= bottom:
             candidates.append(min(max(y, top), bottom))

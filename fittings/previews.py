@@ -3,17 +3,20 @@
 Geometry and drawing are the slow part of a recompute, so the allotment
 table never waits for them: the page asks for the preview and the seam
 checks in their own requests.  Both start from the same altered outlines,
-kept in a small in-process store under a hash of the inputs; the drawn SVG
-is kept in Django's cache, so the same plan is never drawn twice.
+kept in a small in-process store under a hash of the inputs (a second
+request for the same outlines waits for the first instead of working them
+out again).  The drawn SVG goes to the "previews" cache, a folder shared by
+all the server's processes, so the same plan is never drawn twice whichever
+process is asked.
 """
 
 import hashlib
 import json
 import threading
+import weakref
 from collections import OrderedDict
-from dataclasses import asdict
 
-from django.core.cache import cache
+from django.core.cache import caches
 
 from patterns.core.allot import Allotment, PlanOptions, allot
 from patterns.core.fitting import block_to_dict, body_from_measurements
@@ -22,20 +25,49 @@ from patterns.core.preview import markers_from_findings, preview_svg
 
 CACHE_SECONDS = 24 * 3600
 KEEP_PATTERNS = 64
+WAIT_FOR_OTHER_S = 30.0
+
+
+def _block_digest(block) -> str:
+    """The block's part of a key; worked out once per Block object (decoded blocks are kept and reused)."""
+    key = id(block)
+    found = _digests.get(key)
+    if found is not None and found[0]() is block:
+        return found[1]
+    digest = hashlib.sha256(json.dumps(block_to_dict(block), sort_keys=True, default=str).encode()).hexdigest()
+    if len(_digests) > 4 * KEEP_PATTERNS:
+        _digests.clear()
+    _digests[key] = (weakref.ref(block), digest)
+    return digest
+
+
+_digests: dict[int, tuple] = {}
 
 
 def inputs_key(block, result: Allotment, unit: str = "") -> str:
-    parts = (block_to_dict(block), [asdict(s) for s in result.shifts], [asdict(b) for b in result.bands],
-             result.centre_front_shift_mm, unit)
-    return hashlib.sha256(json.dumps(parts, sort_keys=True, default=str).encode()).hexdigest()
+    """A hash of everything a drawing depends on: block, shifts, bands, centre front, markers and unit."""
+    parts = (
+        _block_digest(block),
+        [(s.seam, s.level, s.panel, s.shift_mm) for s in result.shifts],
+        [(b.upper, b.lower, b.change_mm) for b in result.bands],
+        result.centre_front_shift_mm,
+        _markers(block, result) if unit else (),
+        unit,
+    )
+    return hashlib.sha256(json.dumps(parts, default=str).encode()).hexdigest()
 
 
 class _Recent:
-    """The last few altered patterns, for the preview and the checks of the same recompute."""
+    """The last few altered patterns, for the preview and the checks of the same recompute.
+
+    When two threads ask for the same key at once, the second waits for the
+    first one's answer instead of working it out again.
+    """
 
     def __init__(self, size):
         self.size = size
         self.items: OrderedDict[str, AlteredPattern] = OrderedDict()
+        self.pending: dict[str, threading.Event] = {}
         self.lock = threading.Lock()
 
     def get_or_make(self, key, make):
@@ -43,12 +75,25 @@ class _Recent:
             if key in self.items:
                 self.items.move_to_end(key)
                 return self.items[key]
-        value = make()
-        with self.lock:
-            self.items[key] = value
-            while len(self.items) > self.size:
-                self.items.popitem(last=False)
-        return value
+            waiting = self.pending.get(key)
+            if waiting is None:
+                self.pending[key] = threading.Event()
+        if waiting is not None:
+            waiting.wait(WAIT_FOR_OTHER_S)
+            with self.lock:
+                if key in self.items:
+                    return self.items[key]
+            return make()  # the other thread failed or took too long
+        try:
+            value = make()
+            with self.lock:
+                self.items[key] = value
+                while len(self.items) > self.size:
+                    self.items.popitem(last=False)
+            return value
+        finally:
+            with self.lock:
+                self.pending.pop(key).set()
 
 
 _patterns = _Recent(KEEP_PATTERNS)
@@ -58,15 +103,22 @@ def altered_for(block, result: Allotment) -> AlteredPattern:
     return _patterns.get_or_make(inputs_key(block, result), lambda: alter_pattern(block, result.alteration(block)))
 
 
-def preview_for_result(block, result: Allotment, unit: str) -> str:
+def preview_lookup(block, result: Allotment, unit: str) -> tuple[str, bool]:
+    """The preview SVG and whether it came from the cache (drawn earlier, by any process)."""
+    cache = caches["previews"]
     key = "preview:" + inputs_key(block, result, unit)
     svg = cache.get(key)
-    if svg is None:
-        pattern = altered_for(block, result)
-        markers = _markers(block, result) + markers_from_findings(pattern.findings)
-        svg = preview_svg(block, result.alteration(block), markers=markers, unit=unit, pattern=pattern)
-        cache.set(key, svg, CACHE_SECONDS)
-    return svg
+    if svg is not None:
+        return svg, True
+    pattern = altered_for(block, result)
+    markers = _markers(block, result) + markers_from_findings(pattern.findings)
+    svg = preview_svg(block, result.alteration(block), markers=markers, unit=unit, pattern=pattern)
+    cache.set(key, svg, CACHE_SECONDS)
+    return svg, False
+
+
+def preview_for_result(block, result: Allotment, unit: str) -> str:
+    return preview_lookup(block, result, unit)[0]
 
 
 def computed(block, values: dict, options: PlanOptions) -> Allotment:

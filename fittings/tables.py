@@ -7,8 +7,9 @@ errors from the template costs far more than building the strings once.
 
 from dataclasses import dataclass, field
 from functools import lru_cache
+from html import escape
 
-from django.forms.utils import flatatt
+from django.utils.safestring import mark_safe
 
 from fittings.forms import cell_name
 from patterns.core.allot import Allotment
@@ -75,13 +76,22 @@ def _input(form, name: str, placeholder: str, label: str) -> CellInput:
     value = bound.value()
     errors = form.errors.get(name) if form.is_bound else None
     return CellInput(
-        attrs=flatatt({
+        attrs=_attrs({
             "id": bound.auto_id, "name": bound.html_name, "value": "" if value is None else str(value),
             "placeholder": placeholder, "inputmode": "decimal", "autocomplete": "off", "class": "cell",
             "aria-label": label,
         }),
         error=errors[0] if errors else "",
     )
+
+
+def _attrs(attrs: dict) -> str:
+    """' name="value" ...', escaped as Django's escape() does (it calls html.escape), marked safe once.
+
+    Django's flatatt() gives the same text but goes through format_html()
+    per attribute, about forty times slower for the 400 attributes of a table.
+    """
+    return mark_safe("".join(f' {name}="{escape(str(value), quote=True)}"' for name, value in attrs.items()))
 
 
 def plan_table(block: Block, result: Allotment, form=None):

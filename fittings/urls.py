@@ -1,4 +1,4 @@
-from django.urls import path
+from django.urls import include, path
 
 from fittings import views, views_clients, views_plans
 
@@ -27,4 +27,5 @@ urlpatterns = [
     path("plans/<int:pk>/revisions/<int:number>/pins/", views_plans.revision_pins, name="revision_pins"),
     path("plans/<int:pk>/revisions/<int:number>/pins/apply/", views_plans.revision_apply_pins, name="revision_apply_pins"),
     path("photos/<int:pk>/", views.photo_file, name="photo_file"),
+    path("", include("fittings.urls_print")),
 ]

@@ -4,10 +4,11 @@ from django.contrib import messages
 from django.http import Http404, HttpResponse
 from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import reverse
+from django.utils.http import urlencode
 from django.views.decorators.http import require_GET, require_POST
 
 from atelier.roles import FITTER, OWNER, ROLES, role_required
-from fittings import previews
+from fittings import previews, selectors
 from fittings.forms import NewPlanForm, PinForm, PlanOptionsForm
 from fittings.models import MeasurementSession, Plan, PlanRevision
 from fittings.services import plans as plan_services
@@ -31,8 +32,18 @@ def _plan(pk):
     )
 
 
+def _plan_and_latest(pk):
+    """The plan and its newest revision in one query (the live screens ask at every keystroke)."""
+    found = selectors.plan_with_latest(pk)
+    if found is None:
+        raise Http404("No such plan.")
+    return found
+
+
 def _revision(plan, number):
-    return get_object_or_404(PlanRevision.objects.prefetch_related("pins"), plan=plan, number=number)
+    # Inputs and result stay in the database unless the decoded copy is missing (selectors.revision_inputs).
+    return get_object_or_404(PlanRevision.objects.defer("inputs", "result").prefetch_related("pins"),
+                             plan=plan, number=number)
 
 
 @role_required(*EDITORS)
@@ -76,9 +87,8 @@ def _int(value):
 @role_required(*ROLES)
 def plan_edit(request, pk):
     """The live plan: options on the left, the allotment table and preview on the right."""
-    plan = _plan(pk)
-    latest = plan_services.latest_revision(plan)
-    values, block, options = plan_services.revision_inputs(latest)
+    plan, latest = _plan_and_latest(pk)
+    values, block, options = selectors.revision_inputs(latest)
     unit = options.unit
     can_edit = _can_edit(request.user)
     if request.method == "POST":
@@ -100,16 +110,15 @@ def plan_edit(request, pk):
         return redirect("fittings:revision_detail", plan.pk, revision.number)
     form = PlanOptionsForm(initial={**PlanOptionsForm.initial_for(options, block), "version": plan.version},
                            block=block, unit=unit)
-    return _plan_page(request, plan, latest, form, block, values, plan_services.revision_result(latest))
+    return _plan_page(request, plan, latest, form, block, values, selectors.revision_result(latest))
 
 
 @require_POST
 @role_required(*EDITORS)
 def plan_recompute(request, pk):
     """Recompute from unsaved form values; htmx gets the table fragment, a plain post the whole page."""
-    plan = _plan(pk)
-    latest = plan_services.latest_revision(plan)
-    values, block, options = plan_services.revision_inputs(latest)
+    plan, latest = _plan_and_latest(pk)
+    values, block, options = selectors.revision_inputs(latest)
     form = PlanOptionsForm(request.POST, block=block, unit=options.unit)
     if not form.is_valid():
         if request.htmx:
@@ -127,19 +136,19 @@ def plan_recompute(request, pk):
 @role_required(*ROLES)
 def plan_preview(request, pk):
     """The panel preview for the values in the query string (the live form), as SVG; cached by input."""
-    plan = _plan(pk)
-    latest = plan_services.latest_revision(plan)
-    values, block, options = plan_services.revision_inputs(latest)
+    plan, latest = _plan_and_latest(pk)
+    values, block, options = selectors.revision_inputs(latest)
     form = PlanOptionsForm(request.GET, block=block, unit=options.unit)
     if form.is_valid():
         options = form.options()
-    svg = previews.preview_for(block, values, options)
-    return _svg_response(svg)
+    return _svg_response(*previews.preview_lookup(block, previews.computed(block, values, options), options.unit))
 
 
-def _svg_response(svg: str):
+def _svg_response(svg: str, cached: bool):
     response = HttpResponse(svg, content_type="image/svg+xml")
     response["Cache-Control"] = "private, max-age=3600"
+    # W3C Server Timing: lets the browser's tools (and bench/run_all.py) see whether it was drawn or reused.
+    response["Server-Timing"] = f"preview;desc={'hit' if cached else 'miss'}"
     return response
 
 
@@ -149,12 +158,9 @@ def _can_edit(user):
 
 
 def _result_context(request, plan, form, block, result, options):
-    query = form.data.copy() if form.is_bound else None
-    if query is not None:
-        query.pop("csrfmiddlewaretoken", None)
-        preview_query = query.urlencode()
-    else:
-        preview_query = ""
+    preview_query = urlencode(
+        [(k, v) for k, values in form.data.lists() if k != "csrfmiddlewaretoken" for v in values]
+    ) if form.is_bound else ""
     return {
         "plan": plan, "form": form, "block": block, "result": result,
         "table": plan_table(block, result, form=form),
@@ -169,9 +175,9 @@ def _plan_page(request, plan, latest, form, block, values, result, status=200, c
         result = plan_services.compute(block, values, form.options())
         options = form.options()
     if result is None:
-        result = plan_services.revision_result(latest)
+        result = selectors.revision_result(latest)
     if options is None:
-        options = plan_services.revision_inputs(latest)[2]
+        options = selectors.revision_inputs(latest)[2]
     context = _result_context(request, plan, form, block, result, options)
     if not form.is_bound:
         context["preview_url"] = reverse("fittings:revision_preview", args=[plan.pk, latest.number])
@@ -190,8 +196,8 @@ def revision_detail(request, pk, number):
     """One saved revision, read-only: what the workroom cuts from."""
     plan = _plan(pk)
     revision = _revision(plan, number)
-    values, block, options = plan_services.revision_inputs(revision)
-    result = plan_services.revision_result(revision)
+    values, block, options = selectors.revision_inputs(revision)
+    result = selectors.revision_result(revision)
     context = {
         "plan": plan, "client": plan.client, "revision": revision, "block": block, "result": result,
         "table": plan_table(block, result), "unit": options.unit, "options": options, "values": values,
@@ -209,8 +215,8 @@ def revision_detail(request, pk, number):
 def revision_preview(request, pk, number):
     plan = _plan(pk)
     revision = _revision(plan, number)
-    values, block, options = plan_services.revision_inputs(revision)
-    return _svg_response(previews.preview_for_result(block, plan_services.revision_result(revision), options.unit))
+    values, block, options = selectors.revision_inputs(revision)
+    return _svg_response(*previews.preview_lookup(block, selectors.revision_result(revision), options.unit))
 
 
 @require_POST
@@ -228,7 +234,7 @@ def revision_pins(request, pk, number):
     """Record what was pinned at a toile fitting of this revision, then make the next revision from it."""
     plan = _plan(pk)
     revision = _revision(plan, number)
-    values, block, options = plan_services.revision_inputs(revision)
+    values, block, options = selectors.revision_inputs(revision)
     status = 200
     if request.method == "POST":
         form = PinForm(request.POST, block=block, unit=options.unit)
@@ -339,8 +345,8 @@ def _checks_response(request, block, result, unit):
 @role_required(*ROLES)
 def plan_checks(request, pk):
     """Seam truing and outline checks for the live form's values (asked for after the table)."""
-    plan = _plan(pk)
-    values, block, options = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    plan, latest = _plan_and_latest(pk)
+    values, block, options = selectors.revision_inputs(latest)
     form = PlanOptionsForm(request.GET, block=block, unit=options.unit)
     if form.is_valid():
         options = form.options()
@@ -352,5 +358,5 @@ def plan_checks(request, pk):
 def revision_checks(request, pk, number):
     plan = _plan(pk)
     revision = _revision(plan, number)
-    values, block, options = plan_services.revision_inputs(revision)
-    return _checks_response(request, block, plan_services.revision_result(revision), options.unit)
+    values, block, options = selectors.revision_inputs(revision)
+    return _checks_response(request, block, selectors.revision_result(revision), options.unit)

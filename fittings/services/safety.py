@@ -7,7 +7,8 @@ Backup archive (``.tar.gz``)::
 
     manifest.json          what is inside, the database engine, migrations, a SHA-256 of every file
     database.sqlite3       SQLite: a consistent copy made with SQLite's online backup API
-    database.json          other databases (PostgreSQL): ``dumpdata`` read in one snapshot
+    database.json          PostgreSQL, or SQLite with ``--portable``: every row with its id, read in
+                           one snapshot; restores into either database (moving from SQLite to PostgreSQL)
     private/...            the private files (photos, printed documents)
 
 The database is copied first and the files second, so every photo the
@@ -25,15 +26,17 @@ import tarfile
 import tempfile
 import zipfile
 from dataclasses import dataclass, field
-from datetime import datetime
+from datetime import datetime, time
 from pathlib import Path, PurePosixPath
 
+from django.apps import apps
 from django.conf import settings
 from django.contrib.admin.models import LogEntry
+from django.core import serializers
 from django.contrib.contenttypes.models import ContentType
 from django.core.management import call_command
 from django.core.serializers.json import DjangoJSONEncoder
-from django.db import connection, models, transaction
+from django.db import connection, models, router, transaction
 from django.db.migrations.loader import MigrationLoader
 from django.db.migrations.recorder import MigrationRecorder
 from django.utils import timezone
@@ -52,8 +55,6 @@ FORMAT_VERSION = 1
 SQLITE_MEMBER = "database.sqlite3"
 JSON_MEMBER = "database.json"
 PRIVATE_PREFIX = "private/"
-# Rebuilt by `migrate` on the restoring side, so not carried in a JSON backup.
-JSON_EXCLUDE = ["contenttypes", "auth.permission"]
 
 
 class SafetyError(Exception):
@@ -130,24 +131,56 @@ def _copy_sqlite(dest: Path) -> None:
         target.close()
 
 
+class _ExactJSONEncoder(DjangoJSONEncoder):
+    """Django's encoder, but times keep their microseconds (``dumpdata`` cuts them to milliseconds)."""
+
+    def default(self, o):
+        if isinstance(o, (datetime, time)):
+            return o.isoformat()
+        return super().default(o)
+
+
+def _dumped_models():
+    """The models ``dumpdata`` would write, in an order ``loaddata`` can read back."""
+    app_list = [(config, None) for config in apps.get_app_configs()]
+    return [
+        model for model in serializers.sort_dependencies(app_list, allow_cycles=True)
+        if not model._meta.proxy and model._meta.managed and router.allow_migrate_model(connection.alias, model)
+    ]
+
+
 def _dump_json(dest: Path) -> None:
-    """Every table but the rebuilt ones, read in one snapshot so the tables agree with each other."""
-    with transaction.atomic():
+    """Every table but the rebuilt ones, read in one snapshot so the tables agree with each other.
+
+    The format of ``dumpdata`` (``loaddata`` reads it), with exact times, content types and
+    permissions included, so every id comes back as it was.
+    """
+    with transaction.atomic(), open(dest, "w", encoding="utf-8") as out:
         if connection.vendor == "postgresql":
             with connection.cursor() as cursor:
                 cursor.execute("SET TRANSACTION ISOLATION LEVEL REPEATABLE READ READ ONLY")
-        call_command("dumpdata", natural_foreign=True, exclude=JSON_EXCLUDE, output=str(dest), verbosity=0)
+        out.write("[")
+        first = True
+        for model in _dumped_models():
+            rows = model._base_manager.using(connection.alias).order_by(model._meta.pk.name)
+            for item in serializers.serialize("python", rows.iterator()):
+                out.write(("" if first else ",\n") + json.dumps(item, cls=_ExactJSONEncoder, ensure_ascii=False))
+                first = False
+        out.write("]\n")
 
 
-def backup(out) -> BackupReceipt:
-    """Write the database and the private files into one archive at ``out`` (a new file)."""
+def backup(out, portable: bool = False) -> BackupReceipt:
+    """Write the database and the private files into one archive at ``out`` (a new file).
+
+    ``portable`` writes the database as JSON even from SQLite, to restore into PostgreSQL.
+    """
     out = Path(out)
     tmp = _new_file(out)
     files = 0
     try:
         with tempfile.TemporaryDirectory(prefix="atelier-backup-") as work:
             work = Path(work)
-            if connection.vendor == "sqlite":
+            if connection.vendor == "sqlite" and not portable:
                 db_member, db_path = SQLITE_MEMBER, work / SQLITE_MEMBER
                 _copy_sqlite(db_path)
             else:
@@ -238,9 +271,18 @@ def _restore_sqlite(db_file: Path) -> None:
 
 
 def _restore_json(db_file: Path) -> None:
+    from django.contrib.auth.models import Permission
+
     call_command("migrate", interactive=False, verbosity=0)
     call_command("flush", interactive=False, verbosity=0)
-    call_command("loaddata", str(db_file), verbosity=0)
+    with transaction.atomic():
+        # flush makes content types and permissions afresh, numbered in another order; the backup's own go in.
+        Permission.objects.all().delete()
+        ContentType.objects.all().delete()
+        ContentType.objects.clear_cache()
+        call_command("loaddata", str(db_file), verbosity=0)
+    ContentType.objects.clear_cache()
+    call_command("migrate", interactive=False, verbosity=0)  # types and permissions of newer models, if any
 
 
 def _replace_private_files(unpacked: Path) -> None:

@@ -11,10 +11,12 @@ class Command(BaseCommand):
 
     def add_arguments(self, parser):
         parser.add_argument("out", help="The archive to write, e.g. /media/usb/atelier-2026-12-02.tar.gz (must not exist).")
+        parser.add_argument("--portable", action="store_true",
+                            help="Write the database as JSON even from SQLite, to restore it into PostgreSQL.")
 
-    def handle(self, *args, out, **options):
+    def handle(self, *args, out, portable, **options):
         try:
-            receipt = safety.backup(out)
+            receipt = safety.backup(out, portable=portable)
         except safety.SafetyError as exc:
             raise CommandError(str(exc)) from None
         self.stdout.write(self.style.SUCCESS(
