@@ -18,6 +18,8 @@ def started(monkeypatch, settings, tmp_path):
     calls = {}
     monkeypatch.setattr(start.Command, "exec_server", lambda self, argv, env: calls.update(argv=argv, env=env))
     monkeypatch.setattr(start, "warm_up", lambda: calls.setdefault("warmed", True))
+    monkeypatch.setattr(start.Command, "start_task_worker", lambda self, argv, env: calls.update(worker=argv))
+    monkeypatch.delenv("ATELIER_TASKS", raising=False)
     return calls
 
 
@@ -75,3 +77,14 @@ def test_it_collects_static_files_with_hashed_names(started, settings):
     call_command("start", "--no-demo")
     assert (settings.STATIC_ROOT / "staticfiles.json").exists()
     assert list((settings.STATIC_ROOT / "atelier").glob("site.*.css"))
+
+
+def test_it_renders_documents_in_a_worker_of_their_own(started):
+    call_command("start")
+    assert started["env"]["ATELIER_TASKS"] == "db"
+    assert started["worker"][-1] == "db_worker"
+
+
+def test_it_can_render_documents_in_the_web_workers(started):
+    call_command("start", "--inline-tasks")
+    assert "ATELIER_TASKS" not in started["env"] and "worker" not in started

@@ -1,7 +1,10 @@
 """Set the atelier up and serve it: the one command a fresh install needs."""
 
+import ctypes
 import os
+import signal
 import socket
+import subprocess
 import sys
 
 from django.conf import settings
@@ -68,8 +71,12 @@ class Command(BaseCommand):
         parser.add_argument("--workers", type=int, default=2, help="Worker processes (default 2).")
         parser.add_argument("--threads", type=int, default=4, help="Threads per worker (default 4).")
         parser.add_argument("--no-demo", action="store_true", help="Do not load the demo atelier into an empty database.")
+        parser.add_argument(
+            "--inline-tasks", action="store_true",
+            help="Render documents inside the web workers instead of a background worker process.",
+        )
 
-    def handle(self, *args, bind, workers, threads, no_demo, **options):
+    def handle(self, *args, bind, workers, threads, no_demo, inline_tasks=False, **options):
         if workers < 1 or threads < 1:
             raise CommandError("--workers and --threads must be at least 1.")
         host, port = split_bind(bind)
@@ -86,6 +93,11 @@ class Command(BaseCommand):
         env["ATELIER_BIND_HOSTS"] = ",".join(extra_hosts)
         env["ATELIER_WARM_UP"] = "1"
         env.setdefault("DJANGO_SETTINGS_MODULE", "atelier.settings")
+        if not inline_tasks and "ATELIER_TASKS" not in os.environ:
+            # Documents render in a worker of their own, so no web worker is held for a whole render.
+            env["ATELIER_TASKS"] = "db"
+        if env.get("ATELIER_TASKS") == "db":
+            self.start_task_worker([sys.executable, str(settings.BASE_DIR / "manage.py"), "db_worker"], env)
         argv = [
             sys.executable, "-m", "gunicorn", "atelier.wsgi:application",
             "--bind", bind,
@@ -110,6 +122,18 @@ class Command(BaseCommand):
         sys.stderr.flush()
         self.exec_server(argv, env)
 
+    def start_task_worker(self, argv, env):
+        """The background worker for queued tasks; it stops when the server (its parent) stops."""
+        subprocess.Popen(argv, env=env, cwd=settings.BASE_DIR, preexec_fn=_die_with_parent)
+
     def exec_server(self, argv, env):
         """Replace this process by gunicorn (a separate method so tests can stand in for it)."""
         os.execve(argv[0], argv, env)
+
+
+def _die_with_parent():
+    """Ask Linux to stop this child when its parent ends (PR_SET_PDEATHSIG); elsewhere do nothing."""
+    try:
+        ctypes.CDLL("libc.so.6", use_errno=True).prctl(1, signal.SIGTERM)
+    except OSError:
+        pass
