@@ -150,7 +150,7 @@ def _dumped_models():
 
 
 def _dump_json(dest: Path) -> None:
-    """Every table but the rebuilt ones, read in one snapshot so the tables agree with each other.
+    """Every table, read in one snapshot so the tables agree with each other.
 
     The format of ``dumpdata`` (``loaddata`` reads it), with exact times, content types and
     permissions included, so every id comes back as it was.
@@ -178,7 +178,8 @@ def backup(out, portable: bool = False) -> BackupReceipt:
     tmp = _new_file(out)
     files = 0
     try:
-        with tempfile.TemporaryDirectory(prefix="atelier-backup-") as work:
+        # Beside the archive, not in /tmp: the copy holds personal data and may be large.
+        with tempfile.TemporaryDirectory(prefix=".atelier-backup-", dir=out.parent) as work:
             work = Path(work)
             if connection.vendor == "sqlite" and not portable:
                 db_member, db_path = SQLITE_MEMBER, work / SQLITE_MEMBER

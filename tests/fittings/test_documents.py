@@ -559,7 +559,9 @@ def test_it_runs_a_job_once(plan, quick_render):
     assert job.cutting_sheet and not job.work_order and job.started_at and job.finished_at
 
 
-@pytest.mark.django_db
+# Committed for real: the worker closes "old" connections between tasks, which on PostgreSQL
+# would close the connection holding a test's open transaction.
+@pytest.mark.django_db(transaction=True)
 @pytest.mark.urls(__name__)
 def test_it_leaves_the_drawing_to_the_worker_when_tasks_are_queued(settings, fitter_client, plan, quick_render):
     from django.core.management import call_command

@@ -11,7 +11,6 @@ from django.urls import reverse
 from fittings import audit
 from fittings.models import AuditEntry, AuditLocked, Client, MeasurementSession, Plan
 from fittings.services import clients as client_services
-from fittings.services import plans as plan_services
 from tests.security.conftest import options_post
 
 pytestmark = pytest.mark.django_db

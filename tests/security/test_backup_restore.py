@@ -19,9 +19,8 @@ from fittings.services import safety
 from patterns.models import BasePattern
 from tests.security.conftest import jpeg_bytes, private_files, table_rows
 
-# Restoring replaces the whole database, so these tests commit for real and the
-# database is put back afterwards (with the data the migrations made).
-pytestmark = pytest.mark.django_db(transaction=True, serialized_rollback=True)
+# Restoring replaces the whole database, so these tests commit for real (the database is emptied afterwards).
+pytestmark = pytest.mark.django_db(transaction=True)
 
 
 def every_table():

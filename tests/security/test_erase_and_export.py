@@ -57,7 +57,7 @@ def test_it_refuses_a_reference_it_does_not_know(db):
 def test_it_erases_every_trace_of_the_client_and_nothing_else(her):
     kept_client = her.other_client
     kept_rows = {
-        "sessions": table_rows(MeasurementSession) and list(MeasurementSession.objects.filter(client=kept_client).values()),
+        "sessions": list(MeasurementSession.objects.filter(client=kept_client).values()),
         "plans": list(Plan.objects.filter(client=kept_client).values()),
         "revisions": list(PlanRevision.objects.filter(plan__client=kept_client).values()),
     }
@@ -97,7 +97,7 @@ def test_it_keeps_who_did_what_in_the_audit_trail_without_her_details(her):
     blanked = AuditEntry.objects.filter(pk__in=[pk for pk, *_ in mentions])
     assert list(blanked.values_list("pk", "action", "username", "at")) == mentions
     assert set(blanked.values_list("client_reference", "summary")) == {("", ERASED_SUMMARY)}
-    assert not blanked.exclude(before=None).exists() and not blanked.exclude(after=None).exists()
+    assert not blanked.filter(before__isnull=False).exists() and not blanked.filter(after__isnull=False).exists()
     erased = AuditEntry.objects.get(action="erase")
     assert erased.user is None and erased.username.startswith("manage.py erase_client")
     assert erased.object_id == str(her.client.pk) and "2 sessions" in erased.summary

@@ -40,7 +40,11 @@ def stored_bytes():
 
 
 def png_claiming(width, height) -> bytes:
-    """A tiny PNG whose header claims ``width`` × ``height`` pixels (the pixel data is never reached)."""
+    """A tiny PNG whose header claims ``width`` × ``height`` pixels (the pixel data is never reached).
+
+    IHDR layout (width, height after the type) and its CRC-32 over type and data: PNG specification
+    (ISO/IEC 15948), from memory; Pillow reading the claimed size back below confirms it.
+    """
     out = io.BytesIO()
     Image.new("L", (1, 1)).save(out, format="PNG")
     data = bytearray(out.getvalue())
@@ -88,6 +92,7 @@ def test_it_serves_no_photo_by_its_file_name(client, fitter_client, demo_atelier
 
 
 def test_it_stores_no_exif_and_no_location_at_all(fitter_client, demo_atelier):
+    # Tag numbers from the Exif standard (CIPA DC-008): 0x8825 GPS IFD, 0x010F make, 0x9003 date taken.
     exif = Image.Exif()
     exif[0x8825] = {1: "N", 2: (51.0, 30.0, 12.5), 3: "W", 4: (0.0, 7.0, 39.0)}  # GPS latitude and longitude
     exif[0x010F] = "Camera maker"
@@ -104,7 +109,7 @@ def test_it_stores_no_exif_and_no_location_at_all(fitter_client, demo_atelier):
 
 def test_it_turns_a_photo_upright_before_dropping_its_orientation_tag(fitter_client, demo_atelier):
     exif = Image.Exif()
-    exif[0x0112] = 6  # EXIF orientation: rotate 90° clockwise to view
+    exif[0x0112] = 6  # Exif (CIPA DC-008) orientation 6: rotate 90° clockwise to view
     assert post_photo(fitter_client, jpeg_bytes(size=(40, 30), exif=exif)).status_code == 302
     with Image.open(io.BytesIO(stored_bytes())) as image:
         assert image.size == (30, 40)
@@ -151,6 +156,11 @@ def test_it_refuses_a_real_gif_which_no_tablet_camera_sends(fitter_client, demo_
     Image.new("P", (10, 10)).save(out, format="GIF")
     response = post_photo(fitter_client, out.getvalue(), "front.gif")
     assert response.status_code == 400 and "JPEG, PNG or WebP" in response.text
+
+
+def test_it_builds_the_oversized_pictures_it_claims():
+    with Image.open(io.BytesIO(png_claiming(10_000, 6_000))) as image:
+        assert image.size == (10_000, 6_000) and image.format == "PNG"
 
 
 def test_it_sets_the_pixel_limit_below_pillows_own():

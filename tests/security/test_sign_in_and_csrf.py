@@ -150,8 +150,6 @@ def test_it_keeps_the_csrf_and_session_cookies_from_scripts(strict, fitter_user)
 
 def html_pages(world):
     """Every page the table in test_access_by_role says a fitter may open with GET."""
-    from fittings.models import PrintJob  # noqa: F401  (the world holds a print job)
-
     for name, rule in RULES.items():
         if rule.methods.get("GET", {}).get("fitter") != 200:
             continue
