@@ -6,6 +6,7 @@ the first fitter after a restart does not wait for imports, template
 compilation, font look-ups or the drawing library's first figure.
 """
 
+import gc
 import os
 from pathlib import Path
 
@@ -34,6 +35,12 @@ def warm_up():
     _compile_templates()
     _draw_a_preview()
     _printing_fonts()
+    # What is loaded now lives as long as the process: keep it out of the garbage collector's
+    # sweeps, which otherwise walk all of it (about 60 ms here, in the middle of some request)
+    # and write to the pages the forked workers share.  Python's documentation of gc.freeze()
+    # recommends this before a server forks its workers.
+    gc.collect()
+    gc.freeze()
 
 
 def _import_views():

@@ -12,6 +12,7 @@ from urllib.parse import urlencode
 
 LOOPBACK = "127.0.0.1"
 _SERVER_TIMING = re.compile(r"app;dur=([0-9.]+)")
+_SERVER_CPU = re.compile(r"cpu;dur=([0-9.]+)")
 
 
 @dataclass
@@ -21,6 +22,7 @@ class Reply:
     headers: dict
     ms: float  # round trip seen by the tablet
     server_ms: float | None  # time inside Django (Server-Timing from bench/middleware.py)
+    cpu_ms: float | None = None  # processor time of the request's thread inside Django
 
     @property
     def text(self):
@@ -76,9 +78,10 @@ class Tablet:
             ms = (time.perf_counter() - start) * 1000
             if response.getheader("Connection", "").lower() == "close":
                 self.close()
-            found = _SERVER_TIMING.search(response.getheader("Server-Timing", ""))
+            timing = response.getheader("Server-Timing", "")
+            found, cpu = _SERVER_TIMING.search(timing), _SERVER_CPU.search(timing)
             return Reply(response.status, payload, dict(response.getheaders()), ms,
-                         float(found.group(1)) if found else None)
+                         float(found.group(1)) if found else None, float(cpu.group(1)) if cpu else None)
         raise AssertionError("unreachable")
 
     def get(self, path: str, htmx: bool = False) -> Reply:

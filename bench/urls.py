@@ -25,7 +25,7 @@ class TenFields(forms.Form):
 
 
 def ten_field_form(request):
-    """Floor 2: a page from a template with a 10-field form (base layout, form renderer, CSRF token)."""
+    """Floor 2: a template with a 10-field form (the form renderer and a CSRF token), as a fragment."""
     form = TenFields(request.POST or None, initial={f"field_{i}": f"{i}.5" for i in range(10)})
     if form.is_bound:
         form.is_valid()

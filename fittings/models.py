@@ -18,6 +18,7 @@ from django.db.models import Q
 from django.utils import timezone
 
 from atelier.storage import private_storage
+from fittings.search import search_expressions
 from patterns.core.measures import LEVEL_CODES, MEASURE_BY_CODE, MEASURES
 from patterns.core.units import UNIT_LABELS, UNITS
 from patterns.models import LEVEL_CHOICES, BasePattern, mm_field
@@ -52,6 +53,13 @@ class Client(models.Model):
         # Unique checks and the admin must see deleted clients too.
         default_manager_name = "all_objects"
         base_manager_name = "all_objects"
+        indexes = [
+            # The client list in name order, and its count, without reading the table.  is_deleted
+            # comes last so that SQLite does not pick this index for searches (fittings/search.py).
+            models.Index(fields=["name", "reference", "is_deleted"], name="client_list_order"),
+            # The search: one index per start it matches (fittings/search.py, DEVELOPERS.md "Search").
+            *(models.Index(expression, name=f"client_{key}") for key, expression in search_expressions().items()),
+        ]
         constraints = [
             models.CheckConstraint(
                 condition=Q(is_deleted=False, deleted_at__isnull=True) | Q(is_deleted=True, deleted_at__isnull=False),
@@ -93,6 +101,7 @@ class MeasurementSession(models.Model):
     class Meta:
         ordering = ["-taken_on", "-id"]
         get_latest_by = ["taken_on", "id"]
+        indexes = [models.Index(fields=["client", "-taken_on", "-id"], name="session_by_client_date")]
         constraints = [
             models.CheckConstraint(condition=Q(kind__in=SessionKind.values), name="session_kind_known"),
             models.CheckConstraint(condition=Q(unit__in=UNITS), name="session_unit_known"),
@@ -152,6 +161,7 @@ class Photo(models.Model):
 
     class Meta:
         ordering = ["session", "taken_at"]
+        indexes = [models.Index(fields=["session", "taken_at"], name="photo_by_session")]
         constraints = [
             models.CheckConstraint(condition=Q(view__in=PhotoView.values), name="photo_view_known"),
         ]
@@ -177,6 +187,7 @@ class Plan(models.Model):
 
     class Meta:
         ordering = ["-created_at", "-id"]
+        indexes = [models.Index(fields=["client", "-created_at", "-id"], name="plan_by_client_date")]
         constraints = [
             models.CheckConstraint(condition=Q(version__gte=1), name="plan_version_from_one"),
         ]
@@ -311,6 +322,7 @@ class PinAdjustment(models.Model):
 
     class Meta:
         ordering = ["revision", "created_at", "id"]
+        indexes = [models.Index(fields=["revision", "created_at", "id"], name="pin_by_revision")]
         constraints = [
             models.CheckConstraint(condition=Q(level__in=LEVEL_CODES), name="pin_level_known"),
         ]
@@ -368,6 +380,7 @@ class PrintJob(models.Model):
 
     class Meta:
         ordering = ["-created_at", "-id"]
+        indexes = [models.Index(fields=["revision", "-created_at"], name="print_job_by_revision")]
         constraints = [
             models.CheckConstraint(condition=Q(paper__in=PrintPaper.values), name="print_paper_known"),
             models.CheckConstraint(condition=Q(kind__in=PrintKind.values), name="print_kind_known"),
@@ -439,6 +452,10 @@ class AuditEntry(models.Model):
     class Meta:
         ordering = ["-at", "-id"]
         verbose_name_plural = "audit entries"
+        indexes = [
+            models.Index(fields=["object_type", "object_id", "-at"], name="audit_by_object"),
+            models.Index(fields=["client_reference", "-at"], name="audit_by_client"),
+        ]
         constraints = [
             models.CheckConstraint(condition=Q(action__in=AuditAction.values), name="audit_action_known"),
         ]

@@ -4,21 +4,81 @@ import threading
 from collections import OrderedDict
 from dataclasses import dataclass
 
+from django.db import connection
 from django.db.models import Prefetch, Q
 
 from fittings.models import Client, MeasurementSession, Plan, PlanRevision
+from fittings.search import search_expressions
 from fittings.services import plans as plan_services
 
 
-def client_search(query: str = ""):
-    """Active clients whose reference, name or contact contains ``query``."""
-    clients = Client.objects.all()
+MATCH_LIMIT = 250
+_ASCII_LOWER = str.maketrans("ABCDEFGHIJKLMNOPQRSTUVWXYZ", "abcdefghijklmnopqrstuvwxyz")
+
+
+class ClientMatches:
+    """Active clients a search found, in name order, for a Paginator (``count()`` and slices).
+
+    ``more`` says that more than MATCH_LIMIT clients matched and that only
+    MATCH_LIMIT of them are listed.
+    """
+
+    def __init__(self, clients, total: int, more: bool = False, order: list[int] | None = None):
+        self.clients = clients  # a QuerySet in name order; or, with ``order``, one to pick from by id
+        self.total = total
+        self.more = more
+        self.order = order  # the listed ids in name order, when they were read at once
+
+    def count(self):
+        return self.total
+
+    def __getitem__(self, key):
+        if self.order is None:
+            return self.clients[key]
+        ids = self.order[key]
+        found = self.clients.in_bulk(ids)
+        return [found[pk] for pk in ids if pk in found]
+
+
+def client_search(query: str = "") -> ClientMatches:
+    """Active clients whose name, a later word of the name, reference, reference number or contact starts with ``query``.
+
+    Every start matched has an index (fittings/search.py), and on SQLite the
+    query asks for each as a range of that index, so a search reads about as
+    many index entries as it finds clients; and it stops reading after
+    MATCH_LIMIT + 1.  The ids, names and references found are put in name
+    order here, and a page of clients is then read by id.  A search that
+    finds more than MATCH_LIMIT lists MATCH_LIMIT of them and says so.
+    DEVELOPERS.md ("Search") says why.
+    """
+    clients = Client.objects.order_by("name", "reference")
     query = (query or "").strip()
-    if query:
-        clients = clients.filter(
-            Q(reference__icontains=query) | Q(name__icontains=query) | Q(contact__icontains=query)
-        )
-    return clients.order_by("name", "reference")
+    if not query:
+        return ClientMatches(clients, clients.count())
+    sqlite = connection.vendor == "sqlite"
+    # Lower-case the query as the database's LOWER() does: SQLite's changes A-Z only.
+    query = query.translate(_ASCII_LOWER) if sqlite else query.lower()
+    expressions = search_expressions()
+    # In SQLite's order (by code point), "starts with q" is exactly the range from q up to q with its
+    # last letter raised, which an index serves.  PostgreSQL may sort by the language's rules, where
+    # that is not so: it keeps the plain "starts with".
+    ranged = sqlite and ord(query[-1]) < 0x10FFFF
+    above = query[:-1] + chr(ord(query[-1]) + 1) if ranged else None
+    condition = Q()
+    for name in expressions:
+        if ranged:
+            condition |= Q(**{f"starts_{name}__gte": query, f"starts_{name}__lt": above})
+        else:
+            condition |= Q(**{f"starts_{name}__startswith": query})
+    rows = (
+        Client.objects.alias(**{f"starts_{name}": e for name, e in expressions.items()})
+        .filter(condition).values_list("name", "reference", "pk")
+    )
+    # SQLite orders text by code point, as Python does: sorting here spares it sorting every match.
+    rows = list((rows.order_by() if sqlite else rows.order_by("name", "reference"))[: MATCH_LIMIT + 1])
+    more = len(rows) > MATCH_LIMIT
+    rows = sorted(rows[:MATCH_LIMIT]) if sqlite else rows[:MATCH_LIMIT]
+    return ClientMatches(Client.objects.all(), len(rows), more=more, order=[pk for _, _, pk in rows])
 
 
 @dataclass(frozen=True)
@@ -100,14 +160,17 @@ def revision_result(revision: PlanRevision):
     return _decoded.get_or_make(_revision_key(revision, "result"), lambda: plan_services.revision_result(revision))
 
 
-def plan_with_latest(pk: int) -> tuple[Plan, PlanRevision] | None:
+def plan_with_latest(pk: int, page: bool = True) -> tuple[Plan, PlanRevision] | None:
     """A plan of an active client with its newest revision, in one query.
 
-    The revision's inputs and result are left in the database (deferred):
+    With ``page`` the plan's client, session and base pattern come too, for
+    a whole page; the live table and its pictures need only the plan.  The
+    revision's inputs and result are left in the database (deferred):
     ``revision_inputs`` and ``revision_result`` load them only the first time.
     """
+    related = ("plan__client", "plan__session", "plan__base_pattern") if page else ("plan",)
     latest = (
-        PlanRevision.objects.select_related("plan__client", "plan__session", "plan__base_pattern")
+        PlanRevision.objects.select_related(*related)
         .defer("inputs", "result")
         .filter(plan_id=pk, plan__client__is_deleted=False)
         .order_by("-number")

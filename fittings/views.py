@@ -15,10 +15,11 @@ CLIENTS_PER_PAGE = 25
 def client_list(request):
     # NUL cannot be stored or searched for in PostgreSQL text; it is never part of a name.
     query = request.GET.get("q", "").replace("\x00", "").strip()[:100]
-    page = Paginator(selectors.client_search(query), CLIENTS_PER_PAGE).get_page(request.GET.get("page"))
+    matches = selectors.client_search(query)
+    page = Paginator(matches, CLIENTS_PER_PAGE).get_page(request.GET.get("page"))
     partial = request.htmx and not request.htmx.history_restore_request
     template = "fittings/_client_rows.html" if partial else "fittings/client_list.html"
-    return render(request, template, {"page": page, "q": query})
+    return render(request, template, {"page": page, "q": query, "more": matches.more, "limit": selectors.MATCH_LIMIT})
 
 
 # Photos of clients' bodies are for the fitters and the owner; the workroom cuts from the work order.

@@ -32,9 +32,9 @@ def _plan(pk):
     )
 
 
-def _plan_and_latest(pk):
+def _plan_and_latest(pk, page=True):
     """The plan and its newest revision in one query (the live screens ask at every keystroke)."""
-    found = selectors.plan_with_latest(pk)
+    found = selectors.plan_with_latest(pk, page=page)
     if found is None:
         raise Http404("No such plan.")
     return found
@@ -117,7 +117,7 @@ def plan_edit(request, pk):
 @role_required(*EDITORS)
 def plan_recompute(request, pk):
     """Recompute from unsaved form values; htmx gets the table fragment, a plain post the whole page."""
-    plan, latest = _plan_and_latest(pk)
+    plan, latest = _plan_and_latest(pk, page=not request.htmx)
     values, block, options = selectors.revision_inputs(latest)
     form = PlanOptionsForm(request.POST, block=block, unit=options.unit)
     if not form.is_valid():
@@ -136,7 +136,7 @@ def plan_recompute(request, pk):
 @role_required(*ROLES)
 def plan_preview(request, pk):
     """The panel preview for the values in the query string (the live form), as SVG; cached by input."""
-    plan, latest = _plan_and_latest(pk)
+    plan, latest = _plan_and_latest(pk, page=False)
     values, block, options = selectors.revision_inputs(latest)
     form = PlanOptionsForm(request.GET, block=block, unit=options.unit)
     if form.is_valid():
@@ -345,7 +345,7 @@ def _checks_response(request, block, result, unit):
 @role_required(*ROLES)
 def plan_checks(request, pk):
     """Seam truing and outline checks for the live form's values (asked for after the table)."""
-    plan, latest = _plan_and_latest(pk)
+    plan, latest = _plan_and_latest(pk, page=False)
     values, block, options = selectors.revision_inputs(latest)
     form = PlanOptionsForm(request.GET, block=block, unit=options.unit)
     if form.is_valid():

@@ -175,6 +175,49 @@ def test_it_reads_the_client_list_in_the_same_queries_however_many_clients(fitte
         fitter_client.get(url)
 
 
+def test_it_searches_the_client_list_in_the_same_queries_however_many_clients_match(
+        fitter_client, demo_atelier, django_assert_num_queries):
+    from django.db import connection
+    from django.test.utils import CaptureQueriesContext
+
+    url = reverse("fittings:client_list") + "?q=thorn"
+    Client.objects.bulk_create([Client(reference=f"X-{i}", name=f"Ysolde Thornbury {i}") for i in range(3)])
+    with CaptureQueriesContext(connection) as few:
+        assert fitter_client.get(url, headers={"HX-Request": "true"}).text.count("Thornbury") == 3
+    Client.objects.bulk_create([Client(reference=f"Y-{i}", name=f"Ysolde Thornbury {i}") for i in range(60)])
+    with django_assert_num_queries(len(few)):
+        assert fitter_client.get(url, headers={"HX-Request": "true"}).text.count("Thornbury") == 25
+
+
+@pytest.mark.parametrize("query, found", [
+    ("ysolde", True), ("Marie", True), ("thornley", True),  # first name, middle name, surname after it
+    ("VALE", True), ("ashdown-v", True),  # the part after a hyphen; the whole double-barrelled name
+    ("ab-0042", True), ("0042", True), ("ysolde.t@", True),  # reference, its number, the contact from its start
+    ("ornley", False), ("042", False), ("example.org", False),  # the middle of a word is not a start
+])
+def test_it_finds_a_client_by_the_start_of_any_word_of_the_name_or_the_reference(fitter_client, query, found):
+    # Deliberate since the speed work: a search matches starts of words, which indexes serve; not any part.
+    Client.objects.create(reference="AB-0042", name="Ysolde Marie Thornley", contact="ysolde.t@example.org")
+    Client.objects.create(reference="AB-0043", name="Wenna Ashdown-Vale", contact="+44 20 7946 0043")
+    Client.objects.create(reference="AB-0044", name="Nobody Else", contact="")
+    html = fitter_client.get(reverse("fittings:client_list"), {"q": query}, headers={"HX-Request": "true"}).text
+    expected = "AB-0043" if query.lower() in ("vale", "ashdown-v") else "AB-0042"
+    assert (expected in html) is found
+    assert "AB-0044" not in html
+
+
+def test_it_lists_a_limited_number_of_matches_and_says_so(fitter_client, monkeypatch):
+    from fittings import selectors
+
+    monkeypatch.setattr(selectors, "MATCH_LIMIT", 4)
+    Client.objects.bulk_create([Client(reference=f"Z-{i}", name=f"Tamsin Kestrel {i}") for i in range(6)])
+    html = fitter_client.get(reverse("fittings:client_list"), {"q": "kest"}, headers={"HX-Request": "true"}).text
+    assert html.count("Tamsin Kestrel") == 4
+    assert "More than 4 clients match" in html
+    html = fitter_client.get(reverse("fittings:client_list"), {"q": "kestrel 5"}, headers={"HX-Request": "true"}).text
+    assert html.count("Tamsin Kestrel") == 1 and "More than" not in html
+
+
 def test_it_compares_two_sessions_and_marks_the_differences(fitter_client, demo_atelier):
     client = Client.objects.get(reference="WF-0102")
     first, toile = client.sessions.order_by("taken_on")
