@@ -55,7 +55,7 @@ def _launch(sync_playwright):
 def tablet(browser, request):
     context = browser.new_context(viewport=TABLET, has_touch=True, is_mobile=True, device_scale_factor=1)
     page = context.new_page()
-    page.set_default_timeout(15_000)
+    page.set_default_timeout(30_000)
     shots = ARTIFACTS / request.node.name
     shots.mkdir(parents=True, exist_ok=True)
     counter = iter(range(1, 100))

@@ -1,7 +1,7 @@
 """Twenty simulated tablets at once on 127.0.0.1: searching, reading clients and revisions, recomputing.
 
-Called by bench/run_all.py (``run_load``); the saves under load are the
-security engineer's bench/load_tablets.py.  Each tablet is a thread with its
+Called by tests/bench/run_all.py (``run_load``); the saves under load are the
+tests/bench/load_tablets.py.  Each tablet is a thread with its
 own session and keep-alive connection, and behaves like a fitter: it types a
 search a letter at a time (300 ms apart, htmx's delay on the search box),
 opens a client or a revision, or types into the plan form (400 ms apart, the
@@ -20,7 +20,7 @@ import time
 from collections import defaultdict
 from urllib.parse import quote, urlencode
 
-from bench.tablet import Tablet
+from tests.bench.tablet import Tablet
 
 MAX_REQUESTS_PER_TABLET = 5_000
 TYPING_PAUSE_S = {"search": 0.3, "recompute": 0.4}

@@ -1,4 +1,4 @@
-"""The app's URLs plus two floor pages, for the benchmark server only (see bench/settings.py).
+"""The app's URLs plus two floor pages, for the benchmark server only (see tests/bench/settings.py).
 
 The floors go through the same middleware and the same signed-in session as
 the app's pages, so a ratio against them measures the app's own work.

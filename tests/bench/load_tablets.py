@@ -1,6 +1,6 @@
 """Twenty tablets saving at once: does any save get lost or overwritten?
 
-    .venv/bin/python bench/load_tablets.py [--seconds 60] [--tablets 20] [--max-requests 20000]
+    .venv/bin/python tests/bench/load_tablets.py [--seconds 60] [--tablets 20] [--max-requests 20000]
                                            [--think 0.2] [--shared-rounds 5] [--keep]
 
 Makes a fresh data folder in /tmp with the demo atelier, a fitter login,
@@ -45,10 +45,10 @@ from collections import Counter, defaultdict
 from pathlib import Path
 from urllib.parse import urlencode
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 sys.path.insert(0, str(ROOT))
 
-from bench.tablet import LOOPBACK, Tablet, form_fields  # noqa: E402
+from tests.bench.tablet import LOOPBACK, Tablet, form_fields  # noqa: E402
 
 PASSWORD = "load-tablets-pass-7"  # every login made in the throwaway data folder
 # Girths in cm a tablet types, each drawn from a range a body can measure.

@@ -1,6 +1,6 @@
 """Fill a data folder with an invented atelier at scale, for the benchmarks (not for real use).
 
-    ATELIER_DATA_DIR=/tmp/x DJANGO_SETTINGS_MODULE=bench.settings .venv/bin/python -m bench.seed [--scale small]
+    ATELIER_DATA_DIR=/tmp/x DJANGO_SETTINGS_MODULE=tests.bench.settings .venv/bin/python -m tests.bench.seed [--scale small]
 
 Full scale: 100,000 clients (1 % of them deleted), 300,000 sessions of five
 girths each (1.5 million readings) and plans for a few dozen clients, on top
@@ -20,8 +20,8 @@ import time
 from datetime import date, timedelta
 from pathlib import Path
 
-sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
-os.environ.setdefault("DJANGO_SETTINGS_MODULE", "bench.settings")
+sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
+os.environ.setdefault("DJANGO_SETTINGS_MODULE", "tests.bench.settings")
 
 SCALES = {
     # clients, sessions per client, plans for bench clients

@@ -1,6 +1,6 @@
 """Time the allotment engine for a 12-panel, 9-level block (a script, not a test).
 
-    .venv/bin/python bench/bench_engine.py [--runs 500]
+    .venv/bin/python tests/bench/bench_engine.py [--runs 500]
 
 Prints the median and p95 per plan, beside the floor of building the same
 block's girth table in plain Python (the least any engine must do).
@@ -13,7 +13,7 @@ import sys
 import time
 from pathlib import Path
 
-sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
 from patterns.core.allot import SIDES_FIRST, Body, PlanOptions, allot  # noqa: E402
 from patterns.core.block import BACK, FRONT, Block, Level, Panel, Point, Seam  # noqa: E402

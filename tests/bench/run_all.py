@@ -1,24 +1,24 @@
 """Every speed figure of the app in one run, each beside a floor measured in the same run.
 
-    .venv/bin/python bench/run_all.py [--scale small] [--data DIR] [--quick] [--skip pdf,load]
-    .venv/bin/python -m bench  (the same)
+    .venv/bin/python tests/bench/run_all.py [--scale small] [--data DIR] [--quick] [--skip pdf,load]
+    .venv/bin/python -m tests.bench  (the same)
 
-Seeds an invented atelier at scale (bench/seed.py) into a temporary data
+Seeds an invented atelier at scale (tests/bench/seed.py) into a temporary data
 folder, serves it with ``manage.py start`` (gunicorn, the same workers,
 threads and warm-up as production) on 127.0.0.1 only, and measures:
 
 - the live recompute (htmx POST -> the allotment table) against an empty
   Django view and a template with a 10-field form, over HTTP (with every
-  middleware) and called directly (bench/inprocess.py);
+  middleware) and called directly (tests/bench/inprocess.py);
 - the panel preview, drawn (a cache miss) and again (a hit), against a bare
   matplotlib Figure with the same artists written as SVG in this process;
 - the client list search and the client and revision pages at scale;
-- the work order + cutting sheet (bench/bench_pdf.py, in its own process);
-- 20 simulated tablets for 60 s (bench/load_mixed.py);
+- the work order + cutting sheet (tests/bench/bench_pdf.py, in its own process);
+- 20 simulated tablets for 60 s (tests/bench/load_mixed.py);
 - the first request after a fresh start against the warm median.
 
 Prints a table (median, p95, floor, ratio, target) and writes it with the
-machine's details to bench/results/latest.json.  Every loop is bounded in
+machine's details to tests/bench/results/latest.json.  Every loop is bounded in
 requests and in time; nothing leaves the machine.
 """
 
@@ -38,13 +38,13 @@ import time
 from datetime import datetime, timezone
 from pathlib import Path
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 sys.path.insert(0, str(ROOT))
 
-from bench.tablet import LOOPBACK, Tablet  # noqa: E402
+from tests.bench.tablet import LOOPBACK, Tablet  # noqa: E402
 
 PYTHON = sys.executable
-RESULTS = ROOT / "bench" / "results"
+RESULTS = ROOT / "tests" / "bench" / "results"
 
 # --- small helpers ----------------------------------------------------------------------
 
@@ -356,7 +356,7 @@ def measure_pages(tablet, fixtures, rounds, limit):
 
 
 def measure_pdf(env, quick):
-    script = ROOT / "bench" / "bench_pdf.py"
+    script = ROOT / "tests" / "bench" / "bench_pdf.py"
     if not script.exists():
         return {"skipped": "bench/bench_pdf.py does not exist yet"}
     runs = "3" if quick else "7"
@@ -497,7 +497,7 @@ def main(argv=None):
     data_dir = Path(args.data or tempfile.mkdtemp(prefix="atelier-bench-")).resolve()
     data_dir.mkdir(parents=True, exist_ok=True)
     env = {
-        **os.environ, "ATELIER_DATA_DIR": str(data_dir), "DJANGO_SETTINGS_MODULE": "bench.settings",
+        **os.environ, "ATELIER_DATA_DIR": str(data_dir), "DJANGO_SETTINGS_MODULE": "tests.bench.settings",
         "ATELIER_STATIC_ROOT": str(data_dir / "static"), "ATELIER_LOG_LEVEL": "WARNING", "PYTHONPATH": str(ROOT),
     }
     env.pop("ATELIER_DEBUG", None)
@@ -508,14 +508,14 @@ def main(argv=None):
         if not (data_dir / "seeded.json").exists():
             print(f"seeding ({args.scale})...", flush=True)
             started = time.perf_counter()
-            done = subprocess.run([PYTHON, "-m", "bench.seed", "--scale", args.scale], env=env, cwd=ROOT,
+            done = subprocess.run([PYTHON, "-m", "tests.bench.seed", "--scale", args.scale], env=env, cwd=ROOT,
                                   capture_output=True, text=True, timeout=3600)
             if done.returncode != 0:
                 raise RuntimeError(done.stdout + done.stderr)
             (data_dir / "seeded.json").write_text(done.stdout.strip().splitlines()[-1])
             print(f"  seeded in {time.perf_counter() - started:.0f} s", flush=True)
         results["data"] = json.loads((data_dir / "seeded.json").read_text())
-        fixtures = run_json([PYTHON, "-m", "bench.seed", "--fixtures", "30"], env, timeout=600)
+        fixtures = run_json([PYTHON, "-m", "tests.bench.seed", "--fixtures", "30"], env, timeout=600)
         sessions = fixtures["sessions"]
         plans = fixtures["plans"]
         demo_plans = [p for p in plans if p["garment"] in ("Daily-wear corset", "Summer wedding corset")]
@@ -532,7 +532,7 @@ def main(argv=None):
         if "recompute" not in skip:
             print("recompute in-process, no middleware...", flush=True)
             results["recompute_in_process"] = run_json(
-                [PYTHON, "-m", "bench.inprocess", "--rounds", "60" if args.quick else "300"], env, timeout=900)
+                [PYTHON, "-m", "tests.bench.inprocess", "--rounds", "60" if args.quick else "300"], env, timeout=900)
 
         server = Server(env, port, log).start()
         try:
@@ -551,7 +551,7 @@ def main(argv=None):
                 results["pages"] = measure_pages(tablet, fixtures, 10 if args.quick else 40, 300)
             tablet.close()
             if "load" not in skip:
-                from bench.load_mixed import run_load
+                from tests.bench.load_mixed import run_load
 
                 print("20 tablets...", flush=True)
                 results["load"] = run_load(port, sessions[7:27], fixtures, seconds=20 if args.quick else 60)
@@ -561,7 +561,7 @@ def main(argv=None):
         finally:
             server.stop()
         if "pdf" not in skip:
-            print("printing (bench/bench_pdf.py)...", flush=True)
+            print("printing (tests/bench/bench_pdf.py)...", flush=True)
             results["pdf"] = measure_pdf(env, args.quick)
     finally:
         if temporary:

@@ -1,8 +1,8 @@
 """The live recompute view called directly, without HTTP or middleware, beside the same two floors.
 
-    ATELIER_DATA_DIR=<seeded folder> .venv/bin/python -m bench.inprocess [--rounds 300]
+    ATELIER_DATA_DIR=<seeded folder> .venv/bin/python -m tests.bench.inprocess [--rounds 300]
 
-Prints JSON (bench/run_all.py reads it).  The HTTP figures in run_all.py
+Prints JSON (tests/bench/run_all.py reads it).  The HTTP figures in run_all.py
 include the middleware (session, sign-in, CSRF, security headers), which
 every page pays; these show the views' own work.  Each round calls the empty
 view, the 10-field form page and the recompute once, in turn.
@@ -16,8 +16,8 @@ import time
 from pathlib import Path
 from urllib.parse import urlencode
 
-sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
-os.environ.setdefault("DJANGO_SETTINGS_MODULE", "bench.settings")
+sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
+os.environ.setdefault("DJANGO_SETTINGS_MODULE", "tests.bench.settings")
 
 
 def main(argv=None):
@@ -33,8 +33,8 @@ def main(argv=None):
     from django_htmx.middleware import HtmxDetails
 
     from bench import urls as floors
-    from bench.run_all import recompute_data, summary
-    from bench.seed import plan_form_data
+    from tests.bench.run_all import recompute_data, summary
+    from tests.bench.seed import plan_form_data
     from fittings import views_plans
     from fittings.models import Plan
 

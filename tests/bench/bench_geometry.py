@@ -1,6 +1,6 @@
 """Time altered outlines + preview SVG for a 6-panel and a 12-panel block (a script, not a test).
 
-    .venv/bin/python bench/bench_geometry.py [--runs 30]
+    .venv/bin/python tests/bench/bench_geometry.py [--runs 30]
 
 Beside each figure it prints the floor measured in the same run: a bare
 matplotlib Figure with the same number of lines, points and labels, written
@@ -14,7 +14,7 @@ import sys
 import time
 from pathlib import Path
 
-sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
 import matplotlib  # noqa: E402
 import numpy as np  # noqa: E402

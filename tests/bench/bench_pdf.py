@@ -1,6 +1,6 @@
 """Time the printed documents: work order + cutting sheet (a script, not a test).
 
-    .venv/bin/python bench/bench_pdf.py [--runs 7] [--paper a4] [--json]
+    .venv/bin/python tests/bench/bench_pdf.py [--runs 7] [--paper a4] [--json]
 
 Renders from plain data (fittings.documents.render_*), so no database is
 needed; Django is set up only for its templates.  For the demo's six-panel
@@ -27,7 +27,7 @@ import tracemalloc
 from datetime import date
 from pathlib import Path
 
-sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 os.environ.setdefault("DJANGO_SETTINGS_MODULE", "atelier.settings")
 
 import django  # noqa: E402

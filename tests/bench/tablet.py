@@ -21,7 +21,7 @@ class Reply:
     body: bytes
     headers: dict
     ms: float  # round trip seen by the tablet
-    server_ms: float | None  # time inside Django (Server-Timing from bench/middleware.py)
+    server_ms: float | None  # time inside Django (Server-Timing from tests/bench/middleware.py)
     cpu_ms: float | None = None  # processor time of the request's thread inside Django
 
     @property
