@@ -12,11 +12,11 @@ process is asked.
 
 import hashlib
 import json
-import threading
 import weakref
-from collections import OrderedDict
 
 from django.core.cache import caches
+
+from atelier.memo import Recent
 
 from patterns.core.allot import Allotment, PlanOptions, allot
 from patterns.core.fitting import block_to_dict, body_from_measurements
@@ -25,7 +25,6 @@ from patterns.core.preview import markers_from_findings, preview_svg
 
 CACHE_SECONDS = 24 * 3600
 KEEP_PATTERNS = 64
-WAIT_FOR_OTHER_S = 30.0
 
 
 def _block_digest(block) -> str:
@@ -57,46 +56,7 @@ def inputs_key(block, result: Allotment, unit: str = "") -> str:
     return hashlib.sha256(json.dumps(parts, default=str).encode()).hexdigest()
 
 
-class _Recent:
-    """The last few altered patterns, for the preview and the checks of the same recompute.
-
-    When two threads ask for the same key at once, the second waits for the
-    first one's answer instead of working it out again.
-    """
-
-    def __init__(self, size):
-        self.size = size
-        self.items: OrderedDict[str, AlteredPattern] = OrderedDict()
-        self.pending: dict[str, threading.Event] = {}
-        self.lock = threading.Lock()
-
-    def get_or_make(self, key, make):
-        with self.lock:
-            if key in self.items:
-                self.items.move_to_end(key)
-                return self.items[key]
-            waiting = self.pending.get(key)
-            if waiting is None:
-                self.pending[key] = threading.Event()
-        if waiting is not None:
-            waiting.wait(WAIT_FOR_OTHER_S)
-            with self.lock:
-                if key in self.items:
-                    return self.items[key]
-            return make()  # the other thread failed or took too long
-        try:
-            value = make()
-            with self.lock:
-                self.items[key] = value
-                while len(self.items) > self.size:
-                    self.items.popitem(last=False)
-            return value
-        finally:
-            with self.lock:
-                self.pending.pop(key).set()
-
-
-_patterns = _Recent(KEEP_PATTERNS)
+_patterns = Recent(KEEP_PATTERNS)
 
 
 def altered_for(block, result: Allotment) -> AlteredPattern:

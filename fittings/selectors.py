@@ -1,12 +1,11 @@
 """Reads for clients and their fittings."""
 
-import threading
-from collections import OrderedDict
 from dataclasses import dataclass
 
 from django.db import connection
 from django.db.models import Prefetch, Q
 
+from atelier.memo import Recent
 from fittings.models import Client, MeasurementSession, Plan, PlanRevision
 from fittings.search import search_expressions
 from fittings.services import plans as plan_services
@@ -115,32 +114,10 @@ def client_history(client: Client) -> ClientHistory:
 KEEP_DECODED = 256
 
 
-class _Decoded:
-    """Revisions' inputs and results as the engine's dataclasses, the most recently used kept.
-
-    A saved revision never changes (PlanRevision refuses it), so what was
-    decoded once stays right.  The key holds the creation time as well as
-    the id, so a row id reused by another database (tests roll back) is a
-    different key.
-    """
-
-    def __init__(self, size):
-        self.size, self.items, self.lock = size, OrderedDict(), threading.Lock()
-
-    def get_or_make(self, key, make):
-        with self.lock:
-            if key in self.items:
-                self.items.move_to_end(key)
-                return self.items[key]
-        value = make()
-        with self.lock:
-            self.items[key] = value
-            while len(self.items) > self.size:
-                self.items.popitem(last=False)
-        return value
-
-
-_decoded = _Decoded(KEEP_DECODED)
+# A saved revision never changes (PlanRevision refuses it), so what was decoded
+# once stays right.  The key holds the creation time as well as the id, so a row
+# id reused by another database (tests roll back) is a different key.
+_decoded = Recent(KEEP_DECODED)
 
 
 def _revision_key(revision: PlanRevision, part: str):
