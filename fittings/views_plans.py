@@ -136,12 +136,18 @@ def plan_recompute(request, pk):
 @role_required(*ROLES)
 def plan_preview(request, pk):
     """The panel preview for the values in the query string (the live form), as SVG; cached by input."""
+    block, result = _live_result(request, pk)
+    return _svg_response(*previews.preview_lookup(block, result, result.unit))
+
+
+def _live_result(request, pk):
+    """The allotment for the live form's values in the query string (the saved choices where they do not read)."""
     plan, latest = _plan_and_latest(pk, page=False)
     values, block, options = selectors.revision_inputs(latest)
     form = PlanOptionsForm(request.GET, block=block, unit=options.unit)
     if form.is_valid():
         options = form.options()
-    return _svg_response(*previews.preview_lookup(block, previews.computed(block, values, options), options.unit))
+    return block, previews.computed(block, values, options)
 
 
 def _svg_response(svg: str, cached: bool):
@@ -345,12 +351,8 @@ def _checks_response(request, block, result, unit):
 @role_required(*ROLES)
 def plan_checks(request, pk):
     """Seam truing and outline checks for the live form's values (asked for after the table)."""
-    plan, latest = _plan_and_latest(pk, page=False)
-    values, block, options = selectors.revision_inputs(latest)
-    form = PlanOptionsForm(request.GET, block=block, unit=options.unit)
-    if form.is_valid():
-        options = form.options()
-    return _checks_response(request, block, previews.computed(block, values, options), options.unit)
+    block, result = _live_result(request, pk)
+    return _checks_response(request, block, result, result.unit)
 
 
 @require_GET
