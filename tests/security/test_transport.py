@@ -14,6 +14,7 @@ import django
 django.setup()
 from django.core.management import call_command
 call_command("migrate", verbosity=0)
+call_command("collectstatic", interactive=False, verbosity=0)  # pages name hashed static files, as under `start`
 from django.contrib.auth.models import Group, User
 from django.test import Client
 user = User.objects.create_user("fitter", password="a-long-test-password")
@@ -40,7 +41,8 @@ def run(env, tmp_path):
     base = {k: v for k, v in os.environ.items() if not k.startswith("ATELIER_") and k not in ("DATABASE_URL", "DJANGO_SETTINGS_MODULE")}
     result = subprocess.run(
         [sys.executable, "-c", CHECK], cwd=settings.BASE_DIR, capture_output=True, text=True, timeout=120,
-        env={**base, "ATELIER_DATA_DIR": str(tmp_path), "ATELIER_ALLOWED_HOSTS": "atelier.example.org", **env},
+        env={**base, "ATELIER_DATA_DIR": str(tmp_path), "ATELIER_STATIC_ROOT": str(tmp_path / "static"),
+             "ATELIER_ALLOWED_HOSTS": "atelier.example.org", **env},
     )
     assert result.returncode == 0, result.stderr
     return json.loads(result.stdout.strip().splitlines()[-1])
