@@ -9,6 +9,19 @@ from fittings.models import (
 )
 
 
+class ReadOnlyAdmin(admin.ModelAdmin):
+    """For records the app writes and keeps for good: shown, never added, changed or deleted here."""
+
+    def has_add_permission(self, request):
+        return False
+
+    def has_change_permission(self, request, obj=None):
+        return False
+
+    def has_delete_permission(self, request, obj=None):
+        return False
+
+
 @admin.register(Client)
 class ClientAdmin(admin.ModelAdmin):
     list_display = ["reference", "name", "contact", "consent_given_on", "session_count", "is_deleted", "created_at"]
@@ -117,7 +130,7 @@ class PlanAdmin(admin.ModelAdmin):
 
 
 @admin.register(PlanRevision)
-class PlanRevisionAdmin(admin.ModelAdmin):
+class PlanRevisionAdmin(ReadOnlyAdmin):
     """Read only: revisions are made and issued by the app, never edited."""
 
     list_display = ["plan", "number", "status", "author", "created_at", "issued_at"]
@@ -125,14 +138,6 @@ class PlanRevisionAdmin(admin.ModelAdmin):
     search_fields = ["plan__garment", "plan__client__reference", "plan__client__name"]
     list_select_related = ["plan", "plan__client", "author"]
 
-    def has_add_permission(self, request):
-        return False
-
-    def has_change_permission(self, request, obj=None):
-        return False
-
-    def has_delete_permission(self, request, obj=None):
-        return False
 
 
 @admin.register(PinAdjustment)
@@ -183,7 +188,7 @@ from fittings.models import AuditEntry  # noqa: E402
 
 
 @admin.register(AuditEntry)
-class AuditEntryAdmin(admin.ModelAdmin):
+class AuditEntryAdmin(ReadOnlyAdmin):
     """Read only: entries are written by the app's services and kept as written."""
 
     list_display = ["at", "username", "action", "object_type", "object_id", "client_reference", "summary"]
@@ -194,11 +199,3 @@ class AuditEntryAdmin(admin.ModelAdmin):
               "before", "after"]
     readonly_fields = fields
 
-    def has_add_permission(self, request):
-        return False
-
-    def has_change_permission(self, request, obj=None):
-        return False
-
-    def has_delete_permission(self, request, obj=None):
-        return False
