@@ -219,10 +219,14 @@ def revision_detail(request, pk, number):
 @require_GET
 @role_required(*ROLES)
 def revision_preview(request, pk, number):
-    plan = _plan(pk)
-    revision = _revision(plan, number)
-    values, block, options = selectors.revision_inputs(revision)
-    return _svg_response(*previews.preview_lookup(block, selectors.revision_result(revision), options.unit))
+    block, result = _saved_result(pk, number)
+    return _svg_response(*previews.preview_lookup(block, result, result.unit))
+
+
+def _saved_result(pk, number):
+    """A saved revision's block and stored allotment (never recomputed)."""
+    revision = _revision(_plan(pk), number)
+    return selectors.revision_inputs(revision)[1], selectors.revision_result(revision)
 
 
 @require_POST
@@ -358,7 +362,5 @@ def plan_checks(request, pk):
 @require_GET
 @role_required(*ROLES)
 def revision_checks(request, pk, number):
-    plan = _plan(pk)
-    revision = _revision(plan, number)
-    values, block, options = selectors.revision_inputs(revision)
-    return _checks_response(request, block, selectors.revision_result(revision), options.unit)
+    block, result = _saved_result(pk, number)
+    return _checks_response(request, block, result, result.unit)
