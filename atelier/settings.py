@@ -97,6 +97,9 @@ CSRF_TRUSTED_ORIGINS = env_list("ATELIER_CSRF_TRUSTED_ORIGINS")
 ATELIER_NAME = os.environ.get("ATELIER_NAME") or demo.ATELIER_NAME
 # Printed work orders name the client by reference only, unless the atelier chooses otherwise.
 ATELIER_PRINT_CLIENT_NAME = os.environ.get("ATELIER_PRINT_CLIENT_NAME", "0") == "1"
+# Processes one print may use: with 2, the worker draws the cutting sheet in a
+# forked copy of itself while it draws the work order.
+ATELIER_PRINT_PROCESSES = env_int("ATELIER_PRINT_PROCESSES", 2)
 
 INSTALLED_APPS = [
     "django.contrib.admin",

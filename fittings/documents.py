@@ -28,7 +28,10 @@ import base64
 import functools
 import io
 import math
+import os
+import pickle
 import re
+import threading
 from dataclasses import dataclass
 from datetime import date, datetime
 from xml.etree import ElementTree as ET
@@ -40,22 +43,18 @@ from django.urls import NoReverseMatch, reverse
 from django.utils import timezone
 from shapely.geometry import Polygon
 
+from fittings.previews import altered_for, preview_markers
 from patterns.core.allot import Allotment, PlanOptions
 from patterns.core.block import Block
 from patterns.core.export import notch_segments, sheet_layout
 from patterns.core.findings import CAUTION, ERROR, WARNING
 from patterns.core.measures import LEVEL_LABELS, MEASURES
-from patterns.core.outline import AlteredPattern, PanelOutline, alter_pattern
-from patterns.core.preview import markers_from_findings, preview_png
+from patterns.core.outline import AlteredPattern, PanelOutline
+from patterns.core.preview import markers_from_findings, preview_svg
 from patterns.core.report import direction
 from patterns.core.tiling import PAGE_MARGIN_MM, TileGrid, paper_size, row_label, tile_grid, tile_label
 from patterns.core.units import UNIT_LABELS, format_length, format_with_unit
 
-# The picture of the altered pattern in the work order: the figure is at
-# least 10 in wide, printed about 7 in wide, so 90 dpi gives some 130 pixels
-# to the printed inch: plenty for a picture that is not to scale, and far
-# quicker to embed than the screen's 150 dpi.
-PREVIEW_DPI = 90
 # Panels on the cutting sheet: this far apart, and this far in from the
 # sheet's edge (mm).
 PANEL_GAP_MM = 10.0
@@ -212,8 +211,8 @@ def document_data(revision, base_url: str = "") -> DocumentData:
 
 
 def altered_pattern(data: DocumentData) -> AlteredPattern:
-    """The outlines the stored result gives for the stored block."""
-    return alter_pattern(data.block, data.result.alteration(data.block))
+    """The outlines the stored result gives for the stored block (shared with the plan page's preview)."""
+    return altered_for(data.block, data.result)
 
 
 def work_order_pdf(revision, paper: str, base_url: str) -> bytes:
@@ -387,9 +386,11 @@ def cut_rows(data: DocumentData) -> tuple[tuple[str, ...], list[dict]]:
 
 
 def _preview_data_uri(data: DocumentData, pattern: AlteredPattern) -> str:
-    return png_data_uri(preview_png(data.block, data.result.alteration(data.block),
-                                    markers_from_findings(pattern.findings), unit=data.unit, pattern=pattern,
-                                    dpi=PREVIEW_DPI))
+    """The plan page's picture in vectors, less its amounts: the tables list them, and each label
+    on the picture would cost WeasyPrint as much as a table cell."""
+    markers = preview_markers(data.block, data.result) + markers_from_findings(pattern.findings)
+    return svg_data_uri(preview_svg(data.block, data.result.alteration(data.block), markers=markers,
+                                    unit=data.unit, pattern=pattern, amounts=False))
 
 
 def png_data_uri(png: bytes) -> str:
@@ -758,6 +759,72 @@ def cutting_sheet_html(data: DocumentData, paper: str, pattern: AlteredPattern |
 
 def render_cutting_sheet(data: DocumentData, paper: str, pattern: AlteredPattern | None = None) -> bytes:
     return html_to_pdf(cutting_sheet_html(data, paper, pattern))
+
+
+# --- both documents of one print -------------------------------------------------------
+
+
+def render_documents(data: DocumentData, paper: str, *, work_order: bool = True,
+                     cutting_sheet: bool = True) -> dict[str, bytes]:
+    """The documents of one print job, by name.
+
+    Both documents are drawn from the same outlines.  When both are wanted,
+    the cutting sheet is drawn in a forked copy of this process while this
+    one draws the work order, so a two-core machine answers in the time of
+    the longer document instead of the sum.  Forking is only safe in a
+    process with a single thread (the task worker); elsewhere, and with
+    ATELIER_PRINT_PROCESSES=1, the two are drawn one after the other.
+    """
+    pattern = altered_pattern(data)
+    files: dict[str, bytes] = {}
+    pending = None
+    if work_order and cutting_sheet and _may_fork():
+        pending = _in_forked_process(lambda: render_cutting_sheet(data, paper, pattern))
+    elif cutting_sheet:
+        files["cutting_sheet"] = render_cutting_sheet(data, paper, pattern)
+    try:
+        if work_order:
+            files["work_order"] = render_work_order(data, paper, pattern)
+    finally:
+        if pending is not None:
+            files["cutting_sheet"] = pending()
+    return files
+
+
+def _may_fork() -> bool:
+    return settings.ATELIER_PRINT_PROCESSES > 1 and hasattr(os, "fork") and threading.active_count() == 1
+
+
+def _in_forked_process(make):
+    """Start ``make`` in a child process; returns a function that waits for its bytes (or raises)."""
+    read_end, write_end = os.pipe()
+    pid = os.fork()
+    if pid == 0:  # the child: draw, send the bytes or the reason, and leave without any clean-up
+        code = 0
+        try:
+            os.close(read_end)
+            try:
+                answer = pickle.dumps((True, make()))
+            except BaseException as exc:  # noqa: BLE001  (reported to the parent in words)
+                answer, code = pickle.dumps((False, f"{type(exc).__name__}: {exc}")), 1
+            with os.fdopen(write_end, "wb") as pipe:
+                pipe.write(answer)
+        finally:
+            os._exit(code)
+    os.close(write_end)
+
+    def wait() -> bytes:
+        with os.fdopen(read_end, "rb") as pipe:
+            answer = pipe.read()
+        _, status = os.waitpid(pid, 0)
+        if not answer:
+            raise RuntimeError(f"The process drawing the cutting sheet stopped (status {status}).")
+        ok, value = pickle.loads(answer)
+        if not ok:
+            raise RuntimeError(f"The cutting sheet could not be drawn ({value}).")
+        return value
+
+    return wait
 
 
 def check_printable(data: DocumentData) -> None:

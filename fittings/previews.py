@@ -50,7 +50,7 @@ def inputs_key(block, result: Allotment, unit: str = "") -> str:
         [(s.seam, s.level, s.panel, s.shift_mm) for s in result.shifts],
         [(b.upper, b.lower, b.change_mm) for b in result.bands],
         result.centre_front_shift_mm,
-        _markers(block, result) if unit else (),
+        preview_markers(block, result) if unit else (),
         unit,
     )
     return hashlib.sha256(json.dumps(parts, default=str).encode()).hexdigest()
@@ -71,7 +71,7 @@ def preview_lookup(block, result: Allotment, unit: str) -> tuple[str, bool]:
     if svg is not None:
         return svg, True
     pattern = altered_for(block, result)
-    markers = _markers(block, result) + markers_from_findings(pattern.findings)
+    markers = preview_markers(block, result) + markers_from_findings(pattern.findings)
     svg = preview_svg(block, result.alteration(block), markers=markers, unit=unit, pattern=pattern)
     cache.set(key, svg, CACHE_SECONDS)
     return svg, False
@@ -89,7 +89,7 @@ def preview_for(block, values: dict, options: PlanOptions) -> str:
     return preview_for_result(block, computed(block, values, options), options.unit)
 
 
-def _markers(block, result: Allotment):
+def preview_markers(block, result: Allotment):
     """Engine findings that belong to a place on a panel, as (panel, level, short text)."""
     markers = []
     for finding in result.findings:

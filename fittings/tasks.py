@@ -15,9 +15,7 @@ from django.tasks import task
 from django.utils import timezone
 
 from atelier.roles import FITTER, OWNER, role_of
-from fittings.documents import (
-    DocumentError, altered_pattern, check_printable, document_data, render_cutting_sheet, render_work_order,
-)
+from fittings.documents import DocumentError, check_printable, document_data, render_documents
 from fittings.models import PrintJob, PrintKind, PrintPaper, PrintStatus, RevisionStatus
 from fittings.services.plans import issue_revision
 
@@ -86,14 +84,11 @@ def run_print_job(job_id: int) -> str:
     ).get(pk=job_id)
     try:
         data = document_data(job.revision, job.site_url)
-        pattern = altered_pattern(data)
-        files = {}
-        if job.wants_work_order:
-            _step(job_id, "Drawing the work order")
-            files["work_order"] = render_work_order(data, job.paper, pattern)
-        if job.wants_cutting_sheet:
-            _step(job_id, "Drawing the cutting sheet")
-            files["cutting_sheet"] = render_cutting_sheet(data, job.paper, pattern)
+        _step(job_id, "Drawing " + " and ".join(
+            name for name, wanted in (("the work order", job.wants_work_order),
+                                      ("the cutting sheet", job.wants_cutting_sheet)) if wanted))
+        files = render_documents(data, job.paper, work_order=job.wants_work_order,
+                                 cutting_sheet=job.wants_cutting_sheet)
         _step(job_id, "Saving the files")
         for field, content in files.items():
             getattr(job, field).save(f"{field}.pdf", ContentFile(content), save=False)

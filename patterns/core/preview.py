@@ -16,7 +16,6 @@ from collections.abc import Callable, Iterable, Sequence
 
 import matplotlib
 import numpy as np
-from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.backends.backend_svg import FigureCanvasSVG
 from matplotlib.collections import LineCollection
 from matplotlib.figure import Figure
@@ -53,7 +52,6 @@ MARGIN_MM = 12.0
 LEGEND_ROOM_MM = 50.0
 # Width of an average character of DejaVu Sans, in ems (for room beside the level names).
 _EM = 0.62
-PNG_DPI = 150
 
 MINUS = "\u2212"
 # Shifts smaller than this are not written on the picture.
@@ -124,8 +122,13 @@ def _segments(outlines) -> list[np.ndarray]:
 
 
 def build_figure(block: Block, alteration: Alteration, markers: Sequence[Marker] = (), unit: str = "cm",
-                 formatter: Callable[[float], str] | None = None, pattern: AlteredPattern | None = None) -> Figure:
-    """The figure itself; ``pattern`` saves recomputing the outlines when the caller has them."""
+                 formatter: Callable[[float], str] | None = None, pattern: AlteredPattern | None = None,
+                 amounts: bool = True) -> Figure:
+    """The figure itself; ``pattern`` saves recomputing the outlines when the caller has them.
+
+    Without ``amounts`` the shifts and level moves are left off the picture
+    (a printed work order lists them in its tables; every label costs time
+    to draw)."""
     pattern = pattern or alter_pattern(block, alteration)
     fmt = formatter or shift_formatter(unit)
     base, altered = _segments(pattern.base), _segments(pattern.altered)
@@ -154,14 +157,15 @@ def build_figure(block: Block, alteration: Alteration, markers: Sequence[Marker]
     ax.add_collection(LineCollection(altered + [legend_altered], colors=ALTERED_COLOUR, linewidths=1.8))
     ax.text(x0 + 26, row, "altered", va="center", fontsize=LABEL_FONT_PT, color=TEXT_COLOUR)
     ax.text(x0 + 26, row + 12, "base pattern", va="center", fontsize=LABEL_FONT_PT, color=TEXT_COLOUR)
-    ax.text(x0 + 110, row, f"Shifts in {unit}: + widens the panel at that edge, or lowers a level.",
+    ax.text(x0 + 110, row, (f"Shifts in {unit}: + widens the panel at that edge, or lowers a level." if amounts
+                            else "The amounts are in the tables."),
             va="center", fontsize=LABEL_FONT_PT, color=TEXT_COLOUR)
 
     level_lines = [np.array([[x0 + 2, y], [x1 - 2, y]]) for y in pattern.level_y.values()]
     ax.add_collection(LineCollection(level_lines, colors=LEVEL_COLOUR, linewidths=0.8, linestyles=(0, (1, 2))))
     for name, y in pattern.level_y.items():
         ax.text(x0 + 3, y - 1.5, level_names[name], fontsize=LABEL_FONT_PT, va="bottom", ha="left", color=TEXT_COLOUR)
-        moved = _label_text(fmt, y - pattern.base_level_y[name])
+        moved = _label_text(fmt, y - pattern.base_level_y[name]) if amounts else ""
         if moved:
             ax.text(x0 + 3, y + 1.5, f"moved {moved}", fontsize=SHIFT_FONT_PT, va="top", ha="left", color=TEXT_COLOUR)
 
@@ -170,6 +174,8 @@ def build_figure(block: Block, alteration: Alteration, markers: Sequence[Marker]
         centre = 0.5 * (outline.left_line[0][0] + outline.right_line[0][0])
         ax.text(centre, top - 6, outline.name, fontsize=LABEL_FONT_PT, ha="center", va="bottom",
                 color=TEXT_COLOUR, fontweight="bold")
+        if not amounts:
+            continue
         left, right = dict(_points_at_levels(outline, LEFT)), dict(_points_at_levels(outline, RIGHT))
         for level in outline.level_y:
             shift = alteration.shift(outline.name, level)
@@ -230,21 +236,12 @@ def _draw_markers(ax, pattern: AlteredPattern, markers: Sequence[Marker]) -> Non
 
 
 def preview_svg(block: Block, alteration: Alteration, markers: Sequence[Marker] = (), unit: str = "cm",
-                formatter: Callable[[float], str] | None = None, pattern: AlteredPattern | None = None) -> str:
+                formatter: Callable[[float], str] | None = None, pattern: AlteredPattern | None = None,
+                amounts: bool = True) -> str:
     """The preview as SVG text; the same input gives the same bytes."""
     buf = io.BytesIO()
     with _RC_LOCK, matplotlib.rc_context(_RC):
-        fig = build_figure(block, alteration, markers, unit, formatter, pattern)
+        fig = build_figure(block, alteration, markers, unit, formatter, pattern, amounts)
         FigureCanvasSVG(fig).print_svg(buf, metadata={"Date": None})
     return buf.getvalue().decode("utf-8")
 
-
-def preview_png(block: Block, alteration: Alteration, markers: Sequence[Marker] = (), unit: str = "cm",
-                formatter: Callable[[float], str] | None = None, pattern: AlteredPattern | None = None,
-                dpi: int = PNG_DPI) -> bytes:
-    buf = io.BytesIO()
-    with _RC_LOCK, matplotlib.rc_context(_RC):
-        fig = build_figure(block, alteration, markers, unit, formatter, pattern)
-        fig.set_dpi(dpi)
-        FigureCanvasAgg(fig).print_png(buf, metadata={"Software": None})
-    return buf.getvalue()

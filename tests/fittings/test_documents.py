@@ -9,7 +9,9 @@ Outside references used here:
 
 import io
 import math
+import os
 import re
+import signal
 from datetime import date
 from pathlib import Path
 
@@ -367,6 +369,60 @@ def test_it_renders_the_same_pages_every_time(pdfs, strong):
         assert first == again  # and, with this WeasyPrint, the very same bytes
 
 
+@pytest.fixture
+def forks(monkeypatch):
+    """Counts the child processes a print starts."""
+    started = []
+    real = documents._in_forked_process
+
+    def counting(make):
+        started.append(make)
+        return real(make)
+
+    monkeypatch.setattr(documents, "_in_forked_process", counting)
+    return started
+
+
+def test_it_draws_the_cutting_sheet_in_a_second_process_with_the_same_bytes(pdfs, strong, forks, settings):
+    settings.ATELIER_PRINT_PROCESSES = 2
+    files = documents.render_documents(strong, "a4")
+    assert len(forks) == 1
+    assert files == {"work_order": pdfs("work_order", "strong", "a4"),
+                     "cutting_sheet": pdfs("cutting_sheet", "strong", "a4")}
+
+
+def test_it_draws_one_after_the_other_when_told_or_when_threads_run(strong, forks, settings, monkeypatch):
+    monkeypatch.setattr(documents, "render_work_order", lambda data, paper, pattern=None: b"WO")
+    monkeypatch.setattr(documents, "render_cutting_sheet", lambda data, paper, pattern=None: b"CS")
+    settings.ATELIER_PRINT_PROCESSES = 1
+    assert documents.render_documents(strong, "a4") == {"work_order": b"WO", "cutting_sheet": b"CS"}
+    settings.ATELIER_PRINT_PROCESSES = 2
+    monkeypatch.setattr(documents.threading, "active_count", lambda: 3)  # as in a threaded web server
+    assert documents.render_documents(strong, "a4") == {"work_order": b"WO", "cutting_sheet": b"CS"}
+    assert documents.render_documents(strong, "a4", work_order=False) == {"cutting_sheet": b"CS"}
+    assert forks == []
+
+
+def test_it_reports_a_failed_or_vanished_second_process_in_words(strong, forks, settings, monkeypatch):
+    settings.ATELIER_PRINT_PROCESSES = 2
+    monkeypatch.setattr(documents, "render_work_order", lambda data, paper, pattern=None: b"WO")
+
+    def broken(data, paper, pattern=None):
+        raise ValueError("no paper left")
+
+    monkeypatch.setattr(documents, "render_cutting_sheet", broken)
+    with pytest.raises(RuntimeError, match=r"could not be drawn \(ValueError: no paper left\)"):
+        documents.render_documents(strong, "a4")
+
+    def killed(data, paper, pattern=None):
+        os.kill(os.getpid(), signal.SIGKILL)
+
+    monkeypatch.setattr(documents, "render_cutting_sheet", killed)
+    with pytest.raises(RuntimeError, match="stopped"):
+        documents.render_documents(strong, "a4")
+    assert len(forks) == 2
+
+
 def test_it_marks_a_draft_as_not_for_cutting():
     text = flat(text_of(render_work_order(example_data("hester-quayle-first-corset", status="draft"), "a4")))
     assert "Do not cut from this copy" in text
@@ -380,8 +436,8 @@ PDF_STUB = b"%PDF-1.7\n% test stand-in\n"
 @pytest.fixture
 def quick_render(monkeypatch):
     """Stand-ins for WeasyPrint where a test is about the job, not the pages."""
-    monkeypatch.setattr("fittings.tasks.render_work_order", lambda data, paper, pattern=None: PDF_STUB + b"WO")
-    monkeypatch.setattr("fittings.tasks.render_cutting_sheet", lambda data, paper, pattern=None: PDF_STUB + b"CS")
+    monkeypatch.setattr("fittings.documents.render_work_order", lambda data, paper, pattern=None: PDF_STUB + b"WO")
+    monkeypatch.setattr("fittings.documents.render_cutting_sheet", lambda data, paper, pattern=None: PDF_STUB + b"CS")
 
 
 def start_url(revision):
@@ -523,7 +579,7 @@ def test_it_records_a_failed_drawing_in_words(fitter_client, plan, monkeypatch):
     def broken(data, paper, pattern=None):
         raise RuntimeError("the pen ran dry")
 
-    monkeypatch.setattr("fittings.tasks.render_work_order", broken)
+    monkeypatch.setattr("fittings.documents.render_work_order", broken)
     revision = plan_services.latest_revision(plan)
     response = fitter_client.post(start_url(revision), {"paper": "a4", "kind": "both"})
     job = PrintJob.objects.get()
