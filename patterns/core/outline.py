@@ -15,6 +15,8 @@ from __future__ import annotations
 
 import math
 import re
+import threading
+import weakref
 from dataclasses import dataclass
 
 import numpy as np
@@ -423,6 +425,27 @@ def _build(block: Block, alteration: Alteration, seam_allowance_mm: float | None
     return tuple(b[0] for b in built), [b[1] for b in built], to_altered, [b[2] for b in built]
 
 
+_BASES_KEPT = 32
+_bases: dict[tuple, tuple] = {}
+_bases_lock = threading.Lock()
+
+
+def _base(block: Block, seam_allowance_mm: float | None, step_mm: float):
+    """The unaltered outlines, the same for every plan on the block: built once per Block object
+    (the app keeps decoded blocks and reuses them), held only while the block lives."""
+    key = (id(block), seam_allowance_mm, step_mm)
+    with _bases_lock:
+        found = _bases.get(key)
+    if found is not None and found[0]() is block:
+        return found[1]
+    built = _build(block, Alteration(shifts={}), seam_allowance_mm, step_mm)
+    with _bases_lock:
+        while len(_bases) >= _BASES_KEPT:
+            _bases.pop(next(iter(_bases)))
+        _bases[key] = (weakref.ref(block), built)
+    return built
+
+
 def alter_block(block: Block, alteration: Alteration, *, seam_allowance_mm: float | None = None,
                 step_mm: float = SAMPLE_STEP_MM) -> tuple[PanelOutline, ...]:
     """The altered outline of every panel, centre front to centre back."""
@@ -628,7 +651,7 @@ def alter_pattern(block: Block, alteration: Alteration, *, seam_allowance_mm: fl
                   tolerance_mm: float = TRUING_TOLERANCE_MM, min_width_mm: float = MIN_PANEL_WIDTH_MM,
                   max_turn_degrees: float = MAX_TURN_DEGREES, step_mm: float = SAMPLE_STEP_MM) -> AlteredPattern:
     """Base and altered outlines, seam truing and every check, in one pass."""
-    base, base_edges, _, _ = _build(block, Alteration(shifts={}), seam_allowance_mm, step_mm)
+    base, base_edges, _, _ = _base(block, seam_allowance_mm, step_mm)
     altered, after_edges, to_altered, polygons = _build(block, alteration, seam_allowance_mm, step_mm)
     seams = _truings(block, base_edges, after_edges, tolerance_mm)
     findings: list[GeometryFinding] = _bands(block, alteration)

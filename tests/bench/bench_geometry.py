@@ -69,11 +69,11 @@ def waist_alteration(block: Block, amount: float = -4.0) -> Alteration:
 def figure_counts(block: Block, alteration: Alteration) -> tuple[list[int], int]:
     """Points per drawn line and the number of labels in the preview figure."""
     with matplotlib.rc_context(_RC):
-        fig = build_figure(block, alteration)
+        fig, labels = build_figure(block, alteration)
     ax = fig.axes[0]
     lines = [len(seg) for coll in ax.collections for seg in coll.get_segments()]
     lines += [len(line.get_xydata()) for line in ax.lines]
-    return lines, len(ax.texts)
+    return lines, len(ax.texts) + len(labels)
 
 
 def bare_svg(points_per_line: list[int], labels: int) -> str:

@@ -4,6 +4,7 @@ Widths and distances are measured on the polygons with shapely, not read
 back from the inputs.
 """
 
+import dataclasses
 import math
 
 import numpy as np
@@ -93,6 +94,19 @@ def test_base_width_at_levels_is_the_drafted_width():
     for outline, panel in zip(base_outlines(block), block.panels):
         for level in levels_on_both_edges(block, outline):
             assert width_at(outline, outline.level_y[level]) == pytest.approx(panel.width(level), abs=0.01)
+
+
+def test_the_base_outlines_are_built_once_per_block_and_equal_a_fresh_build():
+    block = corset_block("10")
+    first = alter_pattern(block, _at_waist(block, -4.0))
+    second = alter_pattern(block, _at_waist(block, 3.0))
+    assert second.base is first.base
+    assert first.altered != second.altered
+    copy = dataclasses.replace(block)  # equal, but another object: built again
+    fresh = alter_pattern(copy, _at_waist(copy, -4.0))
+    assert fresh.base is not first.base
+    assert fresh.base == first.base == base_outlines(block)
+    assert fresh.seams == first.seams and fresh.findings == first.findings
 
 
 shift_value = st.floats(-15.0, 15.0, allow_nan=False).map(lambda v: round(v, 1))

@@ -112,7 +112,7 @@ def test_drawing_keeps_true_proportion():
     block = bodice_block()
     with warnings.catch_warnings():
         warnings.simplefilter("error")
-        fig = build_figure(block, Alteration(shifts={}))
+        fig, _ = build_figure(block, Alteration(shifts={}))
     FigureCanvasSVG(fig).print_svg(io.BytesIO())
     ax = fig.axes[0]
     # The figure is sized to the drawing, so equal aspect needs no shrinking of the axes.
