@@ -7,6 +7,7 @@ development and tests), so no web worker waits for WeasyPrint.
 """
 
 import logging
+from datetime import timedelta
 
 from django.core.exceptions import PermissionDenied
 from django.core.files.base import ContentFile
@@ -24,6 +25,12 @@ logger = logging.getLogger(__name__)
 # Issuing locks a revision for the workroom: only those who may issue plans
 # may print a draft.  Anyone on the staff may print an issued revision.
 ISSUING_ROLES = (OWNER, FITTER)
+
+# A print takes seconds.  A job still running after this long lost its worker
+# (stopped or restarted half-way) and will never finish; one still queued
+# after this long has no worker taking jobs.
+WORKER_GONE_AFTER = timedelta(minutes=10)
+NO_WORKER_AFTER = timedelta(minutes=2)
 
 
 class PrintRefused(Exception):
@@ -64,6 +71,22 @@ def _fail(job_id: int, message: str) -> None:
     PrintJob.objects.filter(pk=job_id).update(
         status=PrintStatus.FAILED, step="", error=message, finished_at=timezone.now(),
     )
+
+
+def settle_abandoned(job: PrintJob) -> PrintJob:
+    """Fail a job its worker left half-drawn, so the page stops waiting and offers to print again."""
+    if job.status == PrintStatus.RUNNING and job.started_at and timezone.now() - job.started_at > WORKER_GONE_AFTER:
+        PrintJob.objects.filter(pk=job.pk, status=PrintStatus.RUNNING, started_at=job.started_at).update(
+            status=PrintStatus.FAILED, step="", finished_at=timezone.now(),
+            error="The worker stopped while drawing (the app was probably restarted). Print again.",
+        )
+        job.refresh_from_db()
+    return job
+
+
+def waiting_for_a_worker(job: PrintJob) -> bool:
+    """Queued for longer than any worker would leave it: nothing is taking jobs."""
+    return job.status == PrintStatus.QUEUED and timezone.now() - job.created_at > NO_WORKER_AFTER
 
 
 def _step(job_id: int, text: str) -> None:

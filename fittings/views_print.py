@@ -8,7 +8,7 @@ from django.views.decorators.http import require_http_methods
 
 from atelier.roles import ROLES, role_of, role_required
 from fittings.models import PlanRevision, PrintJob, PrintKind, PrintPaper, PrintStatus
-from fittings.tasks import ISSUING_ROLES, PrintRefused, start_print
+from fittings.tasks import ISSUING_ROLES, PrintRefused, settle_abandoned, start_print, waiting_for_a_worker
 
 # The file a download link names, and the job's field that holds it.
 DOCUMENTS = {"work-order": "work_order", "cutting-sheet": "cutting_sheet"}
@@ -66,10 +66,11 @@ def print_start(request, plan_id, number):
 @role_required(*ROLES)
 @require_http_methods(["GET"])
 def print_status(request, job_id):
-    job = _job(job_id)
+    job = settle_abandoned(_job(job_id))
     partial = request.htmx and not request.htmx.history_restore_request
     template = "fittings/print/_status.html" if partial else "fittings/print/status.html"
-    return render(request, template, {"job": job, "revision": job.revision})
+    context = {"job": job, "revision": job.revision, "no_worker": waiting_for_a_worker(job)}
+    return render(request, template, context)
 
 
 def download_name(job, document: str) -> str:

@@ -445,6 +445,15 @@ def table_rows(results):
             {"median": six["cpu_median_s"] * 1000}, minimal["wall_median_s"] * 1000, "minimal",
             "median <= 1500 ms, <= 3x", max_ratio=3.0)
         rows[-1] = (*rows[-1][:7], "yes" if six["wall_median_s"] <= 1.5 and rows[-1][7] == "yes" else "NO")
+        plain = pdf.get("minimal_page_default_call")
+        if plain:
+            add("floor: minimal one-page PDF, WeasyPrint's plain call (ms)",
+                {"median": plain["wall_median_s"] * 1000, "p95": plain["wall_p95_s"] * 1000},
+                {"median": plain["cpu_median_s"] * 1000})
+            add("work order + cutting sheet, 6 panels, against the plain call (ms)",
+                {"median": six["wall_median_s"] * 1000, "p95": six["wall_p95_s"] * 1000},
+                {"median": six["cpu_median_s"] * 1000}, plain["wall_median_s"] * 1000, "plain call",
+                "<= 3x", max_ratio=3.0)
     for key, label in (("load", "20 tablets"), ("load_with_previews", "20 tablets + previews")):
         load = results.get(key, {})
         if "all" not in load:

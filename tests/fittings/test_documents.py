@@ -12,18 +12,19 @@ import math
 import os
 import re
 import signal
-from datetime import date
+from datetime import date, timedelta
 from pathlib import Path
 
 import pdfplumber
 import pypdf
 import pytest
 from django.urls import include, path, reverse
+from django.utils import timezone
 
 import atelier.urls
 import fittings.urls
 import fittings.urls_print
-from fittings import documents
+from fittings import documents, tasks
 from fittings.documents import (
     PANEL_GAP_MM, SHEET_MARGIN_MM, WAIST_REDUCTION_CAUTION, DocumentData, altered_pattern, client_label,
     document_data, render_cutting_sheet, render_work_order, work_order_pdf,
@@ -487,6 +488,39 @@ def test_it_shows_progress_as_an_htmx_fragment_that_polls_until_done(fitter_clie
     assert run_print_job(waiting.pk) == "done"
     done = fitter_client.get(url, headers={"HX-Request": "true"}).content.decode()
     assert "hx-trigger" not in done and "Download the cutting sheet" in done
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_gives_up_on_a_job_its_worker_left_and_offers_to_print_again(fitter_client, plan):
+    revision = plan_services.issue_revision(revision=plan_services.latest_revision(plan), user=None)
+    now = timezone.now()
+    left = PrintJob.objects.create(revision=revision, paper="a4", status="running", step="Drawing",
+                                   started_at=now - tasks.WORKER_GONE_AFTER - timedelta(seconds=1))
+    busy = PrintJob.objects.create(revision=revision, paper="a4", status="running", step="Drawing",
+                                   started_at=now - tasks.WORKER_GONE_AFTER + timedelta(seconds=30))
+    html = fitter_client.get(reverse("fittings:print_status", args=[left.pk]), headers={"HX-Request": "true"})
+    left.refresh_from_db()
+    assert left.status == "failed" and left.finished_at is not None and "worker stopped" in left.error
+    assert "hx-trigger" not in html.content.decode() and "Try again" in html.content.decode()
+    html = fitter_client.get(reverse("fittings:print_status", args=[busy.pk]), headers={"HX-Request": "true"})
+    busy.refresh_from_db()
+    assert busy.status == "running" and 'hx-trigger="every 1s"' in html.content.decode()
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_says_when_no_worker_takes_the_job(fitter_client, plan):
+    revision = plan_services.issue_revision(revision=plan_services.latest_revision(plan), user=None)
+    fresh = PrintJob.objects.create(revision=revision, paper="a4")
+    stuck = PrintJob.objects.create(revision=revision, paper="a4",
+                                    created_at=timezone.now() - tasks.NO_WORKER_AFTER - timedelta(seconds=1))
+    page = {job: fitter_client.get(reverse("fittings:print_status", args=[job.pk])).content.decode()
+            for job in (fresh, stuck)}
+    assert "No document worker" not in page[fresh] and "No document worker" in page[stuck]
+    assert 'hx-trigger="every 1s"' in page[stuck]  # it still waits: a worker may start
+    stuck.refresh_from_db()
+    assert stuck.status == "queued"
 
 
 @pytest.mark.django_db
