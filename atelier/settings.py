@@ -100,6 +100,8 @@ ATELIER_PRINT_CLIENT_NAME = os.environ.get("ATELIER_PRINT_CLIENT_NAME", "0") == 
 # Processes one print may use: with 2, the worker draws the cutting sheet in a
 # forked copy of itself while it draws the work order.
 ATELIER_PRINT_PROCESSES = env_int("ATELIER_PRINT_PROCESSES", 2)
+# Printed PDFs are kept this many days (the jobs stay on record; a reprint draws the same pages).
+ATELIER_KEEP_PRINTS_DAYS = env_int("ATELIER_KEEP_PRINTS_DAYS", 30)
 
 INSTALLED_APPS = [
     "django.contrib.admin",

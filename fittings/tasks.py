@@ -89,6 +89,25 @@ def waiting_for_a_worker(job: PrintJob) -> bool:
     return job.status == PrintStatus.QUEUED and timezone.now() - job.created_at > NO_WORKER_AFTER
 
 
+def clear_old_files(*, older_than: timedelta) -> int:
+    """Delete the PDFs of prints finished longer ago than ``older_than``; the jobs stay on record.
+
+    An issued revision prints the same pages again, so old files only take
+    room (and hold a client's measurements).  Returns how many jobs lost files.
+    """
+    cutoff = timezone.now() - older_than
+    cleared = 0
+    old = PrintJob.objects.filter(finished_at__lt=cutoff).exclude(work_order="", cutting_sheet="")
+    for job in old.iterator():
+        for field in ("work_order", "cutting_sheet"):
+            file = getattr(job, field)
+            if file:
+                file.storage.delete(file.name)
+        PrintJob.objects.filter(pk=job.pk).update(work_order="", cutting_sheet="")
+        cleared += 1
+    return cleared
+
+
 def _step(job_id: int, text: str) -> None:
     PrintJob.objects.filter(pk=job_id).update(step=text)
 

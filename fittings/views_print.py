@@ -1,6 +1,7 @@
 """Printing a revision: ask for it, watch it being drawn, download the PDFs."""
 
 from django import forms
+from django.conf import settings
 from django.http import FileResponse, Http404
 from django.shortcuts import get_object_or_404, redirect, render
 from django.utils.text import slugify
@@ -69,7 +70,8 @@ def print_status(request, job_id):
     job = settle_abandoned(_job(job_id))
     partial = request.htmx and not request.htmx.history_restore_request
     template = "fittings/print/_status.html" if partial else "fittings/print/status.html"
-    context = {"job": job, "revision": job.revision, "no_worker": waiting_for_a_worker(job)}
+    context = {"job": job, "revision": job.revision, "no_worker": waiting_for_a_worker(job),
+               "keep_days": settings.ATELIER_KEEP_PRINTS_DAYS}
     return render(request, template, context)
 
 

@@ -38,6 +38,7 @@ def test_it_sets_up_and_hands_over_to_gunicorn(started, settings, capsys):
     out = capsys.readouterr().out
     assert "Demo login: user 'demo'" in out
     assert "Open http://127.0.0.1:8123/" in out
+    assert "Cleared the files of 0 prints older than 30 days" in out  # old PDFs go at every start
 
 
 def test_it_serves_on_the_local_machine_by_default(started):

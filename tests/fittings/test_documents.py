@@ -18,6 +18,7 @@ from pathlib import Path
 import pdfplumber
 import pypdf
 import pytest
+from django.core.management import CommandError, call_command
 from django.urls import include, path, reverse
 from django.utils import timezone
 
@@ -521,6 +522,35 @@ def test_it_says_when_no_worker_takes_the_job(fitter_client, plan):
     assert 'hx-trigger="every 1s"' in page[stuck]  # it still waits: a worker may start
     stuck.refresh_from_db()
     assert stuck.status == "queued"
+
+
+@pytest.mark.django_db
+@pytest.mark.urls(__name__)
+def test_it_clears_old_files_but_keeps_the_jobs_and_offers_a_reprint(fitter_client, plan, quick_render, settings):
+    revision = plan_services.issue_revision(revision=plan_services.latest_revision(plan), user=None)
+    old, recent = (PrintJob.objects.create(revision=revision, paper="a4") for _ in range(2))
+    for job in (old, recent):
+        assert run_print_job(job.pk) == "done"
+    old.refresh_from_db()
+    old_files = [old.work_order.path, old.cutting_sheet.path]
+    PrintJob.objects.filter(pk=old.pk).update(finished_at=timezone.now() - timedelta(days=31))
+    PrintJob.objects.filter(pk=recent.pk).update(finished_at=timezone.now() - timedelta(days=29))
+    out = io.StringIO()
+    call_command("clear_old_prints", stdout=out)  # the default: 30 days
+    assert "Cleared the files of 1 print older than 30 days" in out.getvalue()
+    old.refresh_from_db()
+    recent.refresh_from_db()
+    assert old.status == "done" and not old.work_order and not old.cutting_sheet
+    assert not any(Path(p).exists() for p in old_files)
+    assert Path(recent.work_order.path).read_bytes() == PDF_STUB + b"WO"
+    page = fitter_client.get(reverse("fittings:print_status", args=[old.pk])).content.decode()
+    assert "cleared after 30 days" in page and "Print again" in page
+    assert fitter_client.get(reverse("fittings:print_download", args=[old.pk, "work-order"])).status_code == 404
+    call_command("clear_old_prints", "--days", "1", stdout=out)
+    recent.refresh_from_db()
+    assert not recent.work_order
+    with pytest.raises(CommandError, match="at least 1"):
+        call_command("clear_old_prints", "--days", "0")
 
 
 @pytest.mark.django_db

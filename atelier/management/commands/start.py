@@ -85,6 +85,7 @@ class Command(BaseCommand):
         if not no_demo and atelier_is_empty():
             report_demo(self.stdout, self.style, load_demo_atelier())
         call_command("collectstatic", interactive=False, verbosity=0)
+        call_command("clear_old_prints")
         self.stdout.write("Warming up (the first start builds a font cache and takes longer)...")
         warm_up()
 
