@@ -177,6 +177,7 @@ def main(argv=None):
             rows[name][f"ratio_{key}_median_default_call"] = (
                 rows[name][f"{key}_median_s"] / rows["minimal_page_default_call"][f"{key}_median_s"])
     rows["max_rss_mib"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+    rows["max_rss_children_mib"] = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss / 1024
     rows["load_average"] = os.getloadavg()[0]
 
     if args.json:
@@ -195,7 +196,8 @@ def main(argv=None):
         peak = f"{r['peak_python_mib']:.1f}" if "peak_python_mib" in r else ""
         print(f"{label:<36}{r.get('pages', 1):>6}{r['wall_median_s']:>10.3f}{r['wall_p95_s']:>10.3f}"
               f"{r['cpu_median_s']:>10.3f}{r['cpu_p95_s']:>10.3f}{ratio:>11}{plain:>9}{peak:>10}")
-    print(f"peak resident size of the process: {rows['max_rss_mib']:.0f} MiB")
+    print(f"peak resident size of the process: {rows['max_rss_mib']:.0f} MiB; of the largest child drawing a "
+          f"cutting sheet: {rows['max_rss_children_mib']:.0f} MiB (mostly pages shared with the parent)")
     six = rows["six_panel"]
     print(f"targets: 6-panel <= 1.5 s (median wall {six['wall_median_s']:.2f} s, cpu {six['cpu_median_s']:.2f} s); "
           f"<= 3x the minimal document ({six['ratio_wall_median']:.0f}x; {six['ratio_wall_median_default_call']:.0f}x "

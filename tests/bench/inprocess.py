@@ -32,7 +32,7 @@ def main(argv=None):
     from django.test import RequestFactory
     from django_htmx.middleware import HtmxDetails
 
-    from bench import urls as floors
+    from tests.bench import urls as floors
     from tests.bench.run_all import recompute_data, summary
     from tests.bench.seed import plan_form_data
     from fittings import views_plans
