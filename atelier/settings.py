@@ -173,6 +173,9 @@ else:
             },
         },
     }
+if DATABASES["default"]["ENGINE"].endswith("postgresql"):
+    # Its operator classes in index expressions (fittings migration 0005).
+    INSTALLED_APPS.append("django.contrib.postgres")
 DEFAULT_AUTO_FIELD = "django.db.models.BigAutoField"
 
 # Caches.  "previews" holds drawn panel previews in the data folder, shared by
