@@ -195,7 +195,7 @@ CACHES = {
 }
 
 # Background work (rendering work orders): run at once unless ATELIER_TASKS=db,
-# which queues tasks in the database for `manage.py db_worker`.
+# which queues tasks in the database for `manage.py task_worker` (db_worker after a warm-up).
 _TASKS = os.environ.get("ATELIER_TASKS", "immediate").strip().lower() or "immediate"
 if _TASKS == "immediate":
     TASKS = {"default": {"BACKEND": "django.tasks.backends.immediate.ImmediateBackend"}}
@@ -284,6 +284,7 @@ LOGGING = {
     "handlers": {"console": {"class": "logging.StreamHandler"}},
     "root": {"handlers": ["console"], "level": "WARNING"},
     "loggers": {
-        "django": {"handlers": ["console"], "level": os.environ.get("ATELIER_LOG_LEVEL", "INFO"), "propagate": False},
+        name: {"handlers": ["console"], "level": os.environ.get("ATELIER_LOG_LEVEL", "INFO"), "propagate": False}
+        for name in ("django", "atelier", "fittings", "patterns")
     },
 }

@@ -34,7 +34,7 @@ def warm_up():
     _import_views()
     _compile_templates()
     _draw_a_preview()
-    _printing_fonts()
+    _printing()
     # What is loaded now lives as long as the process: keep it out of the garbage collector's
     # sweeps, which otherwise walk all of it (about 60 ms here, in the middle of some request)
     # and write to the pages the forked workers share.  Python's documentation of gc.freeze()
@@ -86,12 +86,9 @@ def _draw_a_preview():
     preview_svg(block, alteration, pattern=alter_pattern(block, alteration))
 
 
-def _printing_fonts():
-    """WeasyPrint's font configuration, if the printing module offers one to share (built once per process)."""
-    try:
-        from fittings import documents
-    except ImportError:
-        return
-    font_config = getattr(documents, "font_config", None)
-    if callable(font_config):
-        font_config()
+def _printing():
+    """WeasyPrint's font configuration (built once per process) and its first, slowest document."""
+    from fittings import documents
+
+    documents.font_config()
+    documents.html_to_pdf("<!doctype html><title>warm-up</title><p>One line.</p>")

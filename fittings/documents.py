@@ -31,6 +31,7 @@ import math
 import os
 import pickle
 import re
+import logging
 import threading
 from dataclasses import dataclass
 from datetime import date, datetime
@@ -54,6 +55,8 @@ from patterns.core.preview import markers_from_findings, preview_svg
 from patterns.core.report import direction
 from patterns.core.tiling import PAGE_MARGIN_MM, TileGrid, paper_size, row_label, tile_grid, tile_label
 from patterns.core.units import UNIT_LABELS, format_length, format_with_unit
+
+logger = logging.getLogger(__name__)
 
 # Panels on the cutting sheet: this far apart, and this far in from the
 # sheet's edge (mm).
@@ -778,8 +781,9 @@ def render_documents(data: DocumentData, paper: str, *, work_order: bool = True,
     pattern = altered_pattern(data)
     files: dict[str, bytes] = {}
     pending = None
-    if work_order and cutting_sheet and _may_fork():
+    if work_order and cutting_sheet and may_fork():
         pending = _in_forked_process(lambda: render_cutting_sheet(data, paper, pattern))
+        logger.info("Drawing the cutting sheet in a second process beside the work order.")
     elif cutting_sheet:
         files["cutting_sheet"] = render_cutting_sheet(data, paper, pattern)
     try:
@@ -791,7 +795,8 @@ def render_documents(data: DocumentData, paper: str, *, work_order: bool = True,
     return files
 
 
-def _may_fork() -> bool:
+def may_fork() -> bool:
+    """Whether a print may draw its cutting sheet in a forked copy of this process."""
     return settings.ATELIER_PRINT_PROCESSES > 1 and hasattr(os, "fork") and threading.active_count() == 1
 
 

@@ -2,11 +2,12 @@
 
 ``start_print`` (a write: it issues a draft revision and queues a job) is
 called by the view; ``render_print_job`` runs in a worker (``manage.py
-db_worker`` with ATELIER_TASKS=db) or at once (ImmediateBackend, in
+task_worker`` with ATELIER_TASKS=db) or at once (ImmediateBackend, in
 development and tests), so no web worker waits for WeasyPrint.
 """
 
 import logging
+import time
 from datetime import timedelta
 
 from django.core.exceptions import PermissionDenied
@@ -129,8 +130,10 @@ def run_print_job(job_id: int) -> str:
         _step(job_id, "Drawing " + " and ".join(
             name for name, wanted in (("the work order", job.wants_work_order),
                                       ("the cutting sheet", job.wants_cutting_sheet)) if wanted))
+        started = time.perf_counter()
         files = render_documents(data, job.paper, work_order=job.wants_work_order,
                                  cutting_sheet=job.wants_cutting_sheet)
+        logger.info("Print job %s: %s drawn in %.2f s", job_id, " and ".join(files), time.perf_counter() - started)
         _step(job_id, "Saving the files")
         for field, content in files.items():
             getattr(job, field).save(f"{field}.pdf", ContentFile(content), save=False)

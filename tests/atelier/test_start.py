@@ -83,9 +83,20 @@ def test_it_collects_static_files_with_hashed_names(started, settings):
 def test_it_renders_documents_in_a_worker_of_their_own(started):
     call_command("start")
     assert started["env"]["ATELIER_TASKS"] == "db"
-    assert started["worker"][-1] == "db_worker"
+    assert started["worker"][-1] == "task_worker"
 
 
 def test_it_can_render_documents_in_the_web_workers(started):
     call_command("start", "--inline-tasks")
     assert "ATELIER_TASKS" not in started["env"] and "worker" not in started
+
+
+def test_it_warms_the_task_worker_up_before_it_takes_jobs(monkeypatch):
+    from atelier.management.commands import task_worker
+
+    done = []
+    monkeypatch.setattr(task_worker, "warm_up", lambda: done.append("warm-up"))
+    monkeypatch.setattr(task_worker, "call_command",
+                        lambda name, **options: done.append((name, options["interval"], options["startup_delay"])))
+    call_command("task_worker")
+    assert done == ["warm-up", ("db_worker", 0.25, False)]

@@ -98,7 +98,7 @@ class Command(BaseCommand):
             # Documents render in a worker of their own, so no web worker is held for a whole render.
             env["ATELIER_TASKS"] = "db"
         if env.get("ATELIER_TASKS") == "db":
-            self.start_task_worker([sys.executable, str(settings.BASE_DIR / "manage.py"), "db_worker"], env)
+            self.start_task_worker([sys.executable, str(settings.BASE_DIR / "manage.py"), "task_worker"], env)
         argv = [
             sys.executable, "-m", "gunicorn", "atelier.wsgi:application",
             "--bind", bind,
