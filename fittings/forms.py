@@ -182,6 +182,21 @@ class SessionForm(UnitFormMixin, forms.Form):
     def values_mm(self):
         return {m.code: self.cleaned_data[m.code] for m in MEASURES if self.cleaned_data.get(m.code) is not None}
 
+    @staticmethod
+    def readings_in_unit(data, from_unit: str, to_unit: str) -> dict:
+        """The readings typed in ``from_unit`` written in ``to_unit`` (to 1 mm in cm, to 1/16 in in inches),
+        so switching the tape unit keeps what was measured.  What cannot be read is left as typed."""
+        converted = {}
+        for m in MEASURES:
+            text = (data.get(m.code) or "").strip()
+            if not text:
+                continue
+            try:
+                converted[m.code] = format_length(parse_length(text, from_unit), to_unit)
+            except LengthError:
+                converted[m.code] = text
+        return converted
+
     @classmethod
     def initial_for(cls, session: MeasurementSession):
         initial = {

@@ -11,6 +11,7 @@ urlpatterns = [
     path("clients/<int:pk>/delete/", views_clients.client_delete, name="client_delete"),
     path("clients/<int:client_pk>/sessions/new/", views_clients.session_new, name="session_new"),
     path("clients/<int:client_pk>/sessions/check/", views_clients.session_check, name="session_check"),
+    path("clients/<int:client_pk>/sessions/convert/", views_clients.session_convert, name="session_convert"),
     path("clients/<int:client_pk>/compare/", views_clients.compare, name="compare"),
     path("clients/<int:client_pk>/import/", views_plans.fitting_import, name="fitting_import"),
     path("sessions/<int:pk>/", views_clients.session_edit, name="session_edit"),

@@ -1,6 +1,7 @@
 """Clients, their measurement sessions and the comparison of two fittings."""
 
 from django.contrib import messages
+from django.http import HttpResponseBadRequest
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_POST
 
@@ -10,6 +11,7 @@ from fittings.forms import ClientForm, SessionForm
 from fittings.models import Client, MeasurementSession
 from fittings.services import clients as client_services
 from patterns.core.measures import MEASURES, plausibility_notes
+from patterns.core.units import UNITS
 
 EDITORS = (OWNER, FITTER)
 
@@ -126,6 +128,21 @@ def session_check(request, client_pk):
     form = SessionForm(request.POST)
     return render(request, "fittings/session_form.html#session-notes",
                   {"notes": _notes(form, previous), "form": form, "client": client})
+
+
+@require_POST
+@role_required(*EDITORS)
+def session_convert(request, client_pk):
+    """htmx: the readings rewritten in the tape unit just chosen (``typed_unit`` says the one they were typed in)."""
+    client = _client(client_pk)
+    from_unit, to_unit = request.POST.get("typed_unit", ""), request.POST.get("unit", "")
+    if from_unit not in UNITS or to_unit not in UNITS:
+        return HttpResponseBadRequest(f"Choose a tape unit: {' or '.join(UNITS)}.")
+    data = request.POST.copy()
+    if from_unit != to_unit:
+        for code, text in SessionForm.readings_in_unit(request.POST, from_unit, to_unit).items():
+            data[code] = text
+    return render(request, "fittings/session_form.html#session-measures", {"form": SessionForm(data), "client": client})
 
 
 @role_required(*ROLES)

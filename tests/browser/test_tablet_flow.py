@@ -31,7 +31,10 @@ def test_it_takes_a_new_client_from_tape_to_an_issued_plan(tablet, live_server, 
     page.snap("client")
 
     page.tap("text=Take measurements")
+    page.fill("#id_bust_girth", "95")  # read in centimetres, then the fitter remembers the tape is in inches
     page.check("input[name=unit][value=in]")
+    # 95 cm = 37.40 in, 37 3/8 to the nearest 1/16 (1 in = 25.4 mm exactly).
+    page.wait_for_selector("#id_bust_girth[value='37 3/8']")
     readings = {"bust_girth": "37 3/8", "underbust_girth": "31 1/8", "waist_girth": "29 1/4",
                 "abdomen_girth": "35 5/8", "hip_girth": "39 3/4", "bust_span": "7 1/4"}
     for code, text in readings.items():

@@ -78,6 +78,36 @@ def test_it_advises_while_typing(fitter_client, demo_atelier):
     assert "since the last session" in html  # waist 110 cm against 74.2 cm last time
 
 
+def test_it_rewrites_the_typed_readings_when_the_tape_unit_is_switched(fitter_client, demo_atelier):
+    # 1 in = 25.4 mm exactly (international yard and pound agreement, 1959): 90 cm = 35.433 in, nearest
+    # 1/16 in 35 7/16; 27 3/8 in = 695.325 mm, 69.5 cm to the millimetre.
+    client = Client.objects.get(reference="WF-0101")
+    url = reverse("fittings:session_convert", args=[client.pk])
+    to_inches = fitter_client.post(url, session_post(unit="in", typed_unit="cm", bust_girth="90",
+                                                     waist_girth="70,5", hip_girth="lots"),
+                                   headers={"HX-Request": "true"})
+    html = to_inches.content.decode()
+    assert to_inches.status_code == 200 and html.lstrip().startswith('<fieldset class="card" id="session-measures"')
+    assert 'name="bust_girth" value="35 7/16"' in html
+    assert 'name="waist_girth" value="27 3/4"' in html  # 70.5 cm = 27.756 in
+    assert 'name="hip_girth" value="lots"' in html  # not a length: left for the fitter to see
+    assert 'name="typed_unit" value="in"' in html
+    back = fitter_client.post(url, session_post(unit="cm", typed_unit="in", bust_girth="27 3/8"),
+                              headers={"HX-Request": "true"}).content.decode()
+    assert 'name="bust_girth" value="69.5"' in back and 'name="typed_unit" value="cm"' in back
+    same = fitter_client.post(url, session_post(unit="cm", typed_unit="cm", bust_girth="90")).content.decode()
+    assert 'name="bust_girth" value="90"' in same
+    page = fitter_client.get(reverse("fittings:session_new", args=[client.pk])).content.decode()
+    assert f'hx-post="{url}"' in page and 'name="typed_unit" value="cm"' in page
+
+
+def test_it_refuses_an_unknown_tape_unit_when_switching(fitter_client, demo_atelier):
+    client = Client.objects.get(reference="WF-0101")
+    response = fitter_client.post(reverse("fittings:session_convert", args=[client.pk]),
+                                  session_post(unit="furlong", typed_unit="cm", bust_girth="90"))
+    assert response.status_code == 400 and "Choose a tape unit" in response.content.decode()
+
+
 def test_it_refuses_the_second_of_two_edits_of_one_session(client, make_user, demo_atelier):
     session = MeasurementSession.objects.get(client__reference="WF-0101")
     url = reverse("fittings:session_edit", args=[session.pk])

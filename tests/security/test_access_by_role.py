@@ -68,6 +68,7 @@ RULES = {
     "fittings:client_delete": Rule(C, {**POST_ONLY, "POST": {WORKROOM: 403, FITTER: 403, OWNER: 302}}),
     "fittings:session_new": Rule(CP, EDIT_PAGE),
     "fittings:session_check": Rule(CP, {**POST_ONLY, "POST": editors(200)}),
+    "fittings:session_convert": Rule(CP, {**POST_ONLY, "POST": editors(400)}),
     "fittings:compare": Rule(CP, READ),
     "fittings:fitting_import": Rule(CP, EDIT_PAGE),
     "fittings:session_edit": Rule(lambda w: {"pk": w.session.pk}, EDIT_PAGE),

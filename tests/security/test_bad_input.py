@@ -130,6 +130,8 @@ CASES = [
     Case("reading-zero", "post", u("fittings:session_new", CLIENT), session(bust_girth="0"), words="Must be between"),
     Case("reading-absurd", "post", u("fittings:session_new", CLIENT), session(bust_girth="9000"), words="Must be between"),
     Case("reading-exponent", "post", u("fittings:session_new", CLIENT), session(bust_girth="1e3"), words="not a length"),
+    Case("unit-switch-unknown-unit", "post", u("fittings:session_convert", CLIENT), session(unit="furlong", typed_unit="cm"), words="Choose a tape unit"),
+    Case("unit-switch-no-typed-unit", "post", u("fittings:session_convert", CLIENT), session(unit="in"), words="Choose a tape unit"),
     Case("reading-fraction-in-cm", "post", u("fittings:session_new", CLIENT), session(bust_girth="27 3/8"), words="Fractions are for inches"),
     Case("reading-fraction-over-zero", "post", u("fittings:session_new", CLIENT), session(unit="in", bust_girth="37 3/0"), words="0 below the line"),
     Case("reading-fraction-over-one", "post", u("fittings:session_new", CLIENT), session(unit="in", bust_girth="37 9/8"), words="less than 1"),
