@@ -783,7 +783,7 @@ def render_documents(data: DocumentData, paper: str, *, work_order: bool = True,
     pending = None
     if work_order and cutting_sheet and may_fork():
         pending = _in_forked_process(lambda: render_cutting_sheet(data, paper, pattern))
-        logger.info("Drawing the cutting sheet in a second process beside the work order.")
+        logger.debug("Drawing the cutting sheet in a second process beside the work order.")
     elif cutting_sheet:
         files["cutting_sheet"] = render_cutting_sheet(data, paper, pattern)
     try:
