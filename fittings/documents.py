@@ -10,9 +10,9 @@ Two layers:
   plain data (:class:`DocumentData`);
 - ``render_work_order(data, paper)`` and ``render_cutting_sheet(data, paper)``
   draw from that plain data alone, with no database (the benchmark uses
-  them directly).
+  them directly); ``render_documents`` draws both for one print job.
 
-``work_order_pdf`` and ``cutting_sheet_pdf`` join the two for a revision.
+``work_order_pdf`` joins the two for a revision.
 
 Scale: each tile of the cutting sheet is an SVG image sized in CSS
 millimetres, which are absolute units (W3C CSS Values and Units Level 3,
@@ -220,10 +220,6 @@ def altered_pattern(data: DocumentData) -> AlteredPattern:
 
 def work_order_pdf(revision, paper: str, base_url: str) -> bytes:
     return render_work_order(document_data(revision, base_url), paper)
-
-
-def cutting_sheet_pdf(revision, paper: str) -> bytes:
-    return render_cutting_sheet(document_data(revision), paper)
 
 
 # --- shared pieces ------------------------------------------------------------------

@@ -77,16 +77,8 @@ def preview_lookup(block, result: Allotment, unit: str) -> tuple[str, bool]:
     return svg, False
 
 
-def preview_for_result(block, result: Allotment, unit: str) -> str:
-    return preview_lookup(block, result, unit)[0]
-
-
 def computed(block, values: dict, options: PlanOptions) -> Allotment:
     return allot(block, body_from_measurements(values), options)
-
-
-def preview_for(block, values: dict, options: PlanOptions) -> str:
-    return preview_for_result(block, computed(block, values, options), options.unit)
 
 
 def preview_markers(block, result: Allotment):

@@ -19,20 +19,18 @@ def pattern_indexes():
             for key, expression in search_expressions().items()]
 
 
-def create(apps, schema_editor):
-    if schema_editor.connection.vendor != "postgresql":
-        return
-    client = apps.get_model("fittings", "Client")
-    for index in pattern_indexes():
-        schema_editor.add_index(client, index)
+def on_postgresql(action):
+    """A migration step that applies ``action(schema_editor, Client, index)`` to each index, on PostgreSQL only."""
+    def step(apps, schema_editor):
+        if schema_editor.connection.vendor == "postgresql":
+            client = apps.get_model("fittings", "Client")
+            for index in pattern_indexes():
+                action(schema_editor, client, index)
+    return step
 
 
-def drop(apps, schema_editor):
-    if schema_editor.connection.vendor != "postgresql":
-        return
-    client = apps.get_model("fittings", "Client")
-    for index in pattern_indexes():
-        schema_editor.remove_index(client, index)
+create = on_postgresql(lambda editor, model, index: editor.add_index(model, index))
+drop = on_postgresql(lambda editor, model, index: editor.remove_index(model, index))
 
 
 class Migration(migrations.Migration):

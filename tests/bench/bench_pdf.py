@@ -41,8 +41,6 @@ django.setup()
 from fittings.documents import (  # noqa: E402
     DocumentData, html_to_pdf, render_documents,
 )
-from django.core.cache import caches  # noqa: E402
-
 from fittings import previews  # noqa: E402
 from fittings.services.plans import default_options  # noqa: E402
 from patterns import demo  # noqa: E402
@@ -104,17 +102,10 @@ def data_for(block: Block) -> DocumentData:
     )
 
 
-def forget_drawings(data: DocumentData) -> None:
-    """Drop this plan's outlines and preview from the stores the plan page fills."""
+def print_both(data: DocumentData, paper: str) -> tuple[bytes, bytes]:
+    """What one print job does, for a plan no screen has worked out yet: the outlines (dropped from
+    the store the plan page fills, where an earlier run left them), then both documents."""
     previews._patterns.items.pop(previews.inputs_key(data.block, data.result), None)
-    caches["previews"].delete("preview:" + previews.inputs_key(data.block, data.result, data.unit))
-
-
-def print_both(data: DocumentData, paper: str, cold: bool = True) -> tuple[bytes, bytes]:
-    """What one print job does: outlines once, then both documents.  ``cold``: for a plan no
-    screen has drawn yet (outlines and preview worked out here)."""
-    if cold:
-        forget_drawings(data)
     files = render_documents(data, paper)
     return files["work_order"], files["cutting_sheet"]
 
