@@ -26,6 +26,7 @@ from __future__ import annotations
 
 import base64
 import functools
+import importlib
 import io
 import math
 import os
@@ -33,6 +34,7 @@ import pickle
 import re
 import logging
 import threading
+import warnings
 from dataclasses import dataclass
 from datetime import date, datetime
 from xml.etree import ElementTree as ET
@@ -137,27 +139,54 @@ class DocumentData:
 
 # --- fonts ------------------------------------------------------------------------
 
+# The date written into the embedded font subsets.  Where Debian's HarfBuzz-Subset
+# library is missing (a bare Debian 12), WeasyPrint subsets fonts with fontTools,
+# which stamps each subset with the time of the print unless SOURCE_DATE_EPOCH
+# (the reproducible-builds convention) says otherwise, so two prints of one
+# revision a second apart would differ in their bytes.  A fixed date keeps a
+# reprint the very same file on every machine.
+FONT_SUBSET_DATE = "1704067200"  # 2024-01-01T00:00:00Z
+
+# What WeasyPrint says about subsetting with fontTools instead of HarfBuzz-Subset:
+# advice for whoever installs the machine (README, "System packages"), not for
+# the fitter's console on every print.
+_FONTTOOLS_NOTES = ("HarfBuzz-Subset will be required", "Using fontTools instead of HarfBuzz-Subset")
+
+
+class _FontToolsNote(logging.Filter):
+    def filter(self, record: logging.LogRecord) -> bool:
+        if isinstance(record.msg, str) and record.msg.startswith(_FONTTOOLS_NOTES[1]):
+            logger.debug("Fonts are subset with fontTools: libharfbuzz-subset0 is not installed.")
+            return False
+        return True
+
+
+@functools.cache
+def weasyprint():
+    """WeasyPrint, imported once with fixed font dates and without its notes on the font library."""
+    os.environ.setdefault("SOURCE_DATE_EPOCH", FONT_SUBSET_DATE)
+    with warnings.catch_warnings():
+        warnings.filterwarnings("ignore", message=_FONTTOOLS_NOTES[0], category=DeprecationWarning)
+        module = importlib.import_module("weasyprint")
+        importlib.import_module("weasyprint.text.fonts")  # loads the font libraries
+    logging.getLogger("weasyprint").addFilter(_FontToolsNote())
+    return module
+
 
 @functools.cache
 def font_config():
     """WeasyPrint's font configuration, built once per process (it reads the machine's fonts)."""
-    from weasyprint.text.fonts import FontConfiguration
-
-    return FontConfiguration()
+    return weasyprint().text.fonts.FontConfiguration()
 
 
 @functools.cache
 def url_fetcher():
     """Fetches data: addresses only, never the network or the file system; built once (it sets up TLS)."""
-    from weasyprint.urls import URLFetcher
-
-    return URLFetcher(allowed_protocols=("data",))
+    return weasyprint().urls.URLFetcher(allowed_protocols=("data",))
 
 
 def html_to_pdf(html: str) -> bytes:
-    from weasyprint import HTML
-
-    return HTML(string=html, url_fetcher=url_fetcher()).write_pdf(font_config=font_config())
+    return weasyprint().HTML(string=html, url_fetcher=url_fetcher()).write_pdf(font_config=font_config())
 
 
 # --- reading a revision ---------------------------------------------------------------

@@ -8,6 +8,7 @@ Outside references used here:
 """
 
 import io
+import logging
 import math
 import os
 import re
@@ -721,3 +722,74 @@ def test_it_shows_print_jobs_read_only_in_the_admin(admin_client, plan, quick_re
     assert page.status_code == 200
     assert reverse("fittings:print_download", args=[job.pk, "cutting-sheet"]) in html
     assert admin_client.get(reverse("admin:fittings_printjob_add")).status_code == 403
+
+
+# --- the same file on every machine -------------------------------------------------------------
+# Debian 12 ships HarfBuzz 6 and, unless libharfbuzz-subset0 is installed, WeasyPrint subsets the
+# embedded fonts with fontTools, which dates each subset with the clock; Debian 13 subsets with
+# HarfBuzz.  Both ways a reprint must be the very same file.
+
+
+@pytest.fixture
+def fonttools_subsetting(monkeypatch):
+    """WeasyPrint as on a machine without HarfBuzz-Subset, and a clock that moves a minute a read."""
+    import weasyprint.pdf.fonts as weasy_fonts
+    from fontTools.misc import timeTools
+
+    documents.weasyprint()
+    calls = []
+    real = weasy_fonts.Font._fonttools_subset
+
+    def counted(font, *args):
+        calls.append(font.family)
+        return real(font, *args)
+
+    clock = iter(range(1_800_000_000, 1_900_000_000, 60))
+    monkeypatch.setattr(weasy_fonts, "harfbuzz_subset", None)
+    monkeypatch.setattr(weasy_fonts.Font, "_fonttools_subset", counted)
+    monkeypatch.setattr(timeTools.time, "time", lambda: float(next(clock)))
+    return calls
+
+
+def test_it_prints_the_same_bytes_when_fonts_are_subset_with_fonttools(fonttools_subsetting, strong):
+    first = render_work_order(strong, "a4")
+    again = render_work_order(strong, "a4")
+    assert fonttools_subsetting  # the fontTools path really ran
+    assert first == again
+
+
+def test_it_keeps_the_font_library_notes_off_the_console(fonttools_subsetting, caplog):
+    with caplog.at_level("INFO"):
+        documents.html_to_pdf("<!doctype html><p>One line.</p>")
+    assert fonttools_subsetting
+    assert [r.getMessage() for r in caplog.records if r.levelno >= logging.WARNING] == []
+
+
+def test_it_imports_weasyprint_without_its_deprecation_warning_where_harfbuzz_subset_is_missing(tmp_path):
+    """A fresh process on a machine without libharfbuzz-subset0 (the library made unloadable), with
+    every warning shown and the app's logging: a print says nothing on the console."""
+    import subprocess
+    import sys
+
+    script = (
+        "import cffi, os, warnings\n"
+        "warnings.simplefilter('default')\n"
+        "real = cffi.FFI.dlopen\n"
+        "def dlopen(self, name, *a, **k):\n"
+        "    if 'subset' in str(name): raise OSError('not installed')\n"
+        "    return real(self, name, *a, **k)\n"
+        "cffi.FFI.dlopen = dlopen\n"
+        "import django; django.setup()\n"
+        "from fittings import documents\n"
+        "pdf = documents.html_to_pdf('<!doctype html><p>One line.</p>')\n"
+        "import weasyprint.text.ffi as ffi\n"
+        "print('subset library:', ffi.harfbuzz_subset, len(pdf) > 500)\n"
+    )
+    env = {**os.environ, "DJANGO_SETTINGS_MODULE": "atelier.settings", "ATELIER_DATA_DIR": str(tmp_path),
+           "PYTHONWARNINGS": "default"}
+    env.pop("SOURCE_DATE_EPOCH", None)
+    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, env=env,
+                          cwd=Path(__file__).resolve().parents[2], timeout=120)
+    assert done.returncode == 0, done.stderr
+    assert done.stdout.strip() == "subset library: None True"
+    assert "HarfBuzz" not in done.stderr and "fontTools" not in done.stderr, done.stderr
