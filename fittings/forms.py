@@ -13,7 +13,7 @@ from patterns.core.allot import POLICIES, Override, PlanOptions
 from patterns.core.block import Block
 from patterns.core.measures import LEVEL_LABELS, MEASURES
 from patterns.core.units import (
-    DEFAULT_STEP_MM, UNIT_LABELS, UNITS, LengthError, format_length, parse_length, parse_signed_length,
+    DEFAULT_STEP_MM, UNIT_LABELS, UNITS, LengthError, format_exact, format_length, parse_length, parse_signed_length,
 )
 
 UNIT_CHOICES = [(u, UNIT_LABELS[u]) for u in UNITS]
@@ -204,7 +204,7 @@ class SessionForm(UnitFormMixin, forms.Form):
             "posture_notes": session.posture_notes, "notes": session.notes, "version": session.version,
         }
         for m in session.measurements.all():
-            initial[m.code] = format_length(m.value_mm, session.unit)
+            initial[m.code] = format_exact(m.value_mm, session.unit)
         return initial
 
 
@@ -279,19 +279,19 @@ class PlanOptionsForm(UnitFormMixin, forms.Form):
         unit = options.unit
         initial = {
             "policy": options.policy,
-            "lacing_gap": format_length(options.lacing_gap_mm, unit),
+            "lacing_gap": format_exact(options.lacing_gap_mm, unit),
             "centre_front_width": (
-                "" if options.centre_front_width_mm is None else format_length(options.centre_front_width_mm, unit)
+                "" if options.centre_front_width_mm is None else format_exact(options.centre_front_width_mm, unit)
             ),
             "step": step_key(options.step_mm),
         }
         for level in block.level_names:
-            initial[f"ease_{level}"] = format_length(options.ease.get(level, 0.0), unit, signed=True)
+            initial[f"ease_{level}"] = format_exact(options.ease.get(level, 0.0), unit, signed=True)
         seams = {s.name: i for i, s in enumerate(block.seams)}
         for o in options.overrides:
             seam = block.seams[seams[o.seam]]
             edge = 0 if o.panel == seam.front_panel else 1
-            initial[cell_name(seams[o.seam], o.level, edge)] = format_length(o.shift_mm, unit, signed=True)
+            initial[cell_name(seams[o.seam], o.level, edge)] = format_exact(o.shift_mm, unit, signed=True)
         return initial
 
 

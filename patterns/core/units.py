@@ -135,6 +135,35 @@ def format_length(mm, unit: str, signed: bool = False) -> str:
     return format_cm(mm, signed=signed)
 
 
+def format_exact(mm, unit: str, signed: bool = False) -> str:
+    """A stored length written back into a form field exactly as it is kept, so reading it again
+    gives the same millimetres: '-0.75' cm, '27 3/8' or '0.3' in.  Unlike ``format_length`` it
+    never rounds to the tape's step (that is for reading, not for editing)."""
+    if mm is None:
+        return ""
+    value = quantize_mm(mm)
+    sign = "-" if value < 0 else ("+" if signed and value > 0 else "")
+    value = abs(value)
+    if unit == "in":
+        inches = Fraction(value) / Fraction(MM_PER_INCH)
+        if inches.denominator & (inches.denominator - 1) == 0 and inches.denominator <= 64:
+            whole, rest = divmod(inches, 1)
+            if rest == 0:
+                return f"{sign}{int(whole)}"
+            fraction = f"{rest.numerator}/{rest.denominator}"
+            return f"{sign}{int(whole)} {fraction}" if whole else f"{sign}{fraction}"
+        # Six places of an inch are within 0.00003 mm, less than half the stored precision.
+        text = _plain(value / MM_PER_INCH, Decimal("0.000001"))
+    else:
+        text = _plain(value / MM_PER_CM, STORE_PLACES / MM_PER_CM)
+    return f"{sign}{text}" if text != "0" else "0"
+
+
+def _plain(value: Decimal, places: Decimal) -> str:
+    text = f"{value.quantize(places, rounding=ROUND_HALF_EVEN):f}"
+    return text.rstrip("0").rstrip(".") if "." in text else text
+
+
 def format_with_unit(mm, unit: str, signed: bool = False) -> str:
     if mm is None:
         return ""

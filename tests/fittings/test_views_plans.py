@@ -248,3 +248,37 @@ def test_it_refuses_to_start_from_another_clients_revision(fitter_client, plan):
     session = plan.client.sessions.first()
     response = fitter_client.get(reverse("fittings:plan_new", args=[session.pk]) + f"?from={other.pk}")
     assert response.status_code == 404
+
+
+@pytest.fixture
+def cm_plan(demo_atelier, corset_12, fitter_user):
+    from fittings.models import Client
+
+    client = Client.objects.get(reference="WF-0101")  # read in centimetres
+    session = client.sessions.order_by("-taken_on").first()
+    return plan_services.start_plan(client=client, session=session, pattern=corset_12, garment="First corset",
+                                    user=fitter_user)
+
+
+def _field_value(html: str, name: str) -> str:
+    tag = re.search(rf'<input[^>]*name="{re.escape(name)}"[^>]*>', html).group(0)
+    return re.search(r'value="([^"]*)"', tag).group(1)
+
+
+@pytest.mark.parametrize("which, typed, mm", [("cm_plan", "-0.75", -7.5), ("cm_plan", "1.25", 12.5),
+                                              ("plan", "-0.3", -7.62), ("plan", "-1 5/16", -33.3375)])
+def test_it_gives_back_a_hand_fixed_cell_exactly_as_typed(fitter_client, request, which, typed, mm):
+    plan = request.getfixturevalue(which)
+    _, block, _ = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    side = next(i for i, s in enumerate(block.seams) if s.kind == "side")
+    cell, seam = cell_name(side, "waist", 0), block.seams[side]
+    assert fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]), options_post(plan, **{cell: typed})).status_code == 302
+    page = fitter_client.get(reverse("fittings:plan_edit", args=[plan.pk])).content.decode()
+    shown = _field_value(page, cell)
+    assert shown.lstrip("+") == typed  # before, "-0.75" came back as "-0.8" and "-0.3" in as "-5/16"
+    # Saving the reopened page unchanged keeps the very same cell.
+    plan.refresh_from_db()
+    assert fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]), {**options_post(plan), cell: shown}).status_code == 302
+    fixed = [o for o in plan_services.revision_inputs(plan_services.latest_revision(plan))[2].overrides
+             if (o.seam, o.level, o.panel) == (seam.name, "waist", seam.front_panel)]
+    assert [round(o.shift_mm, 4) for o in fixed] == [round(mm, 4)]

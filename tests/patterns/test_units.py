@@ -70,3 +70,24 @@ def test_it_refuses_a_double_sign():
     from patterns.core.units import parse_signed_length
     with pytest.raises(LengthError):
         parse_signed_length("--5", "cm")
+
+
+# --- writing a stored value back into a form -------------------------------------------------
+
+
+@given(st.integers(min_value=-2_000_000, max_value=2_000_000), st.sampled_from(["cm", "in"]), st.booleans())
+def test_it_writes_any_stored_length_back_so_it_reads_as_the_same_millimetres(ten_thousandths, unit, signed):
+    from patterns.core.units import format_exact, parse_signed_length, quantize_mm
+
+    mm = quantize_mm(Decimal(ten_thousandths) / 10_000)
+    assert parse_signed_length(format_exact(mm, unit, signed=signed), unit) == mm
+
+
+@pytest.mark.parametrize("mm, unit, text", [
+    (-7.5, "cm", "-0.75"), (682.5, "cm", "68.25"), (-60, "cm", "-6"), (0, "cm", "0"),
+    (695.325, "in", "27 3/8"), (7.62, "in", "0.3"), (-1.5875, "in", "-1/16"), (15.875, "in", "5/8"),  # 1 in = 25.4 mm
+])
+def test_it_writes_what_the_fitter_typed(mm, unit, text):
+    from patterns.core.units import format_exact
+
+    assert format_exact(mm, unit) == text
