@@ -17,7 +17,8 @@ from dataclasses import asdict, dataclass, field, replace
 from patterns.core.block import BACK, CB_LACED, FRONT, Alteration, Block, PanelShift
 from patterns.core.findings import CAUTION, ERROR, WARNING, Finding
 from patterns.core.measures import LENGTH_MEASURES, LEVEL_LABELS
-from patterns.core.rounding import EPS, round_to_step
+from patterns.core.rounding import EPS, round_to_step, steps_of
+from patterns.core.units import format_with_unit
 
 EVEN, SIDES_FIRST, BY_WIDTH = "even", "sides_first", "by_width"
 POLICIES = {
@@ -286,7 +287,8 @@ def _allot_level(block, body, options, level, gap, cf_shift, fixed, panels):
     else:
         groups.append((None, target, pattern, 2 * cf_shift))
 
-    parts = {}
+    # First what each part (the whole level, or its front and its back) needs from its free edges.
+    work = []
     for side, part_target, part_pattern, cf_change in groups:
         part_edges = [(s, p) for s, p in edges if side is None or panels[p].side == side]
         part_fixed = {k: v for k, v in fixed_here.items() if side is None or panels[k[2]].side == side}
@@ -295,25 +297,25 @@ def _allot_level(block, body, options, level, gap, cf_shift, fixed, panels):
         fixed_change = 2 * sum(part_fixed.values())
         to_spread = part_difference - cf_change - fixed_change
         where = f"{label} ({side})" if side else label
+        need = part_difference - cf_change
+        if _overshoots(fixed_change, need, step):
+            findings.append(_overshoot_finding(where, level, fixed_change, need, options.unit))
+        exact = _spread(level, to_spread / 2, free, options.policy, panels) if free and abs(to_spread) > EPS else {}
+        work.append((side, part_target, part_pattern, cf_change, part_edges, free, part_difference, fixed_change,
+                     to_spread, where, exact))
 
-        if part_fixed and (
-            (fixed_change * (part_difference - cf_change) < 0 and abs(fixed_change) >= step)
-            or abs(fixed_change) > abs(part_difference - cf_change) + step
-        ):
-            findings.append(Finding(
-                "override_exceeds_difference", WARNING,
-                f"{where}: the cells fixed by hand change the girth by {fixed_change:+.1f} mm, more than "
-                f"(or against) the {part_difference - cf_change:+.1f} mm needed; the free edges make up the rest.",
-                level=level,
-            ))
+    # The level is rounded once, then shared between front and back, so the level's residual is at
+    # most one step however the girth is split.
+    steps = _part_steps([sum(w[10].values()) if w[10] else None for w in work], step)
 
-        half = to_spread / 2
+    parts = {}
+    for (side, part_target, part_pattern, cf_change, part_edges, free, part_difference, fixed_change,
+         to_spread, where, exact), part_steps in zip(work, steps):
         spread: dict[tuple[str, str, str], float] = {}
-        if free and abs(half) > EPS:
-            exact = _spread(level, half, free, options.policy, panels)
+        if exact:
             caps = {(seam.name, level, p): seam.cap_mm for seam, p in free}
             keys = list(exact)
-            rounded = round_to_step([exact[k] for k in keys], step, [caps[k] for k in keys])
+            rounded = round_to_step([exact[k] for k in keys], step, [caps[k] for k in keys], steps=part_steps)
             spread = dict(zip(keys, rounded))
             for key in keys:
                 seam_name, _, panel = key
@@ -334,28 +336,67 @@ def _allot_level(block, body, options, level, gap, cf_shift, fixed, panels):
         out.update(spread)
         allotted = fixed_change + 2 * sum(spread.values())
         residual = part_difference - cf_change - allotted
-        if abs(residual) > step + EPS and part_edges:
-            findings.append(Finding(
-                "residual_over_step", WARNING,
-                f"{where}: {residual:+.1f} mm of girth is left over after the seams, more than one step "
-                f"({step:g} mm).",
-                level=level,
-            ))
         parts[side] = PartResult(
             target=part_target, pattern=part_pattern, difference=part_difference,
             allotted=allotted + cf_change, residual=residual,
         )
+    level_residual = sum(p.residual for p in parts.values())
+    if abs(level_residual) > step + EPS and edges:
+        findings.append(Finding(
+            "residual_over_step", WARNING,
+            f"{label}: {level_residual:+.1f} mm of girth is left over after the seams, more than one step "
+            f"({step:g} mm).",
+            level=level,
+        ))
 
     if FRONT in parts:
         front, back = parts[FRONT], parts[BACK]
     seam_change = sum(p.allotted for p in parts.values()) - 2 * cf_shift
-    residual = sum(p.residual for p in parts.values())
     result = LevelResult(
         level=level, body=girth, ease=ease, lacing_gap=gap, target=target, pattern=pattern,
         difference=difference, centre_front=_clean(2 * cf_shift), allotted=_clean(seam_change),
-        residual=_clean(residual), front=front, back=back,
+        residual=_clean(level_residual), front=front, back=back,
     )
     return result, out, findings
+
+
+def _part_steps(halves: list[float | None], step: float) -> list[int]:
+    """Whole steps for each part's half so that together they are the level's half rounded once.
+
+    A part alone (or beside a part with no free edge, ``None``) keeps its own rounding.  With a
+    front and a back, the front takes the rounding of its own half (down or up) that leaves
+    neither part further off, and the back the rest.
+    """
+    if len(halves) == 1 or None in halves:
+        return [0 if h is None else steps_of(h, step) for h in halves]
+    total = steps_of(sum(halves), step)
+    front = halves[0] / step
+    choices = sorted({math.floor(front), math.ceil(front)}, key=lambda f: (
+        max(abs(front - f), abs(halves[1] / step - (total - f))), f != steps_of(halves[0], step)))
+    return [choices[0], total - choices[0]]
+
+
+def _overshoots(fixed_change: float, need: float, step: float) -> bool:
+    """Cells fixed by hand that already change the girth more than the level needs, the same way.
+
+    Fixing some edges one way and letting the free ones go the other (the side seams let out
+    by hand, the princess seams taken in) is ordinary work and says nothing.
+    """
+    return fixed_change * need > 0 and abs(fixed_change) > abs(need) + step + EPS
+
+
+def _overshoot_finding(where: str, level: str, fixed_change: float, need: float, unit: str) -> Finding:
+    verb = "let out" if need > 0 else "take in"
+    opposite = "take in" if need > 0 else "let out"
+    extra = abs(fixed_change) - abs(need)
+    return Finding(
+        "override_exceeds_difference", WARNING,
+        f"{where}: the edges you set by hand {verb} {format_with_unit(abs(fixed_change), unit)} of girth, "
+        f"{format_with_unit(extra, unit)} more than this level needs ({format_with_unit(abs(need), unit)}). "
+        f"The edges left free {opposite} {format_with_unit(extra, unit)} to make up for it; clear a hand-set "
+        f"cell if that is not what you meant.",
+        level=level,
+    )
 
 
 def _spread(level, half, free, policy, panels) -> dict[tuple[str, str, str], float]:

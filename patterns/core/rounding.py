@@ -17,8 +17,10 @@ def steps_of(value: float, step: float) -> int:
     return int(math.copysign(math.floor(scaled + 0.5 + EPS), value)) if scaled else 0
 
 
-def round_to_step(values: list[float], step: float, caps: list[float | None] | None = None) -> list[float]:
-    """Round ``values`` (all of one sign) to multiples of ``step``, summing to the rounded total.
+def round_to_step(values: list[float], step: float, caps: list[float | None] | None = None,
+                  steps: int | None = None) -> list[float]:
+    """Round ``values`` (all of one sign) to multiples of ``step``, summing to the rounded total
+    (or to ``steps`` whole steps, the total's own rounding down or up, when the caller rounded it).
 
     A value may only take an extra step if that keeps it within its cap;
     values at their cap give way to the others, and take the step only when
@@ -31,7 +33,7 @@ def round_to_step(values: list[float], step: float, caps: list[float | None] | N
     total = sum(values)
     sign = -1.0 if total < 0 else 1.0
     magnitudes = [max(sign * v, 0.0) / step for v in values]
-    target = abs(steps_of(total, step))
+    target = abs(steps_of(total, step) if steps is None else steps)
     counts = [math.floor(m + EPS) for m in magnitudes]
     missing = target - sum(counts)
     caps = caps or [None] * len(values)

@@ -215,3 +215,40 @@ def test_it_flags_a_panel_taken_in_too_narrow():
     body = Body(girths={"bust": 650, "waist": 650, "hip": 650})
     options = PlanOptions(overrides=(Override("Princess seam", "waist", "Front", -85.0),))
     assert "panel_too_narrow" in codes(allot(block, body, options))
+
+
+def test_it_rounds_a_level_split_front_and_back_once():
+    # Waist 562, front arc 341, no ease, lacing gap 50, 1 mm step.  Front: 341 against the front
+    # panels' 400 -> -59, one half -29.5; back: 562 - 341 - 50 = 171 against 200 -> -29, half -14.5.
+    # Rounded apart (-30 and -15) the level would be 2 mm off; rounded once, the half is -44
+    # exactly: front -30 (girth -60, 1 mm left), back -14 (girth -28, 1 mm over), level 0.
+    block = three_panel_block()
+    body = Body(girths={"bust": 650, "waist": 562, "hip": 650}, front_arcs={"waist": 341})
+    waist = allot(block, body, PlanOptions()).level("waist")
+    assert waist.residual == 0.0
+    assert (waist.front.allotted, waist.back.allotted) == (-60.0, -28.0)
+    assert (waist.front.residual, waist.back.residual) == (1.0, -1.0)
+
+
+def test_it_says_nothing_when_the_side_seams_are_let_out_by_hand_and_the_princess_seams_take_in():
+    # Waist -90 needed; the fitter lets both side-seam edges out 5 mm (girth +20): the free
+    # princess edges take in the rest (-110).  Ordinary work, no finding.
+    block = three_panel_block()
+    body = Body(girths={"bust": 650, "waist": 600, "hip": 700})
+    options = PlanOptions(ease={"waist": -40}, overrides=(
+        Override("Side seam", "waist", "Side", 5.0), Override("Side seam", "waist", "Back", 5.0)))
+    result = allot(block, body, options)
+    assert "override_exceeds_difference" not in codes(result)
+    assert result.level("waist").residual == 0.0
+
+
+def test_it_says_in_words_when_hand_set_cells_take_in_more_than_the_level_needs():
+    # Waist -10 needed; the fitter takes the side seam's back edge in 20 mm (girth -40): 30 mm too
+    # much, which the free edges let out again.
+    block = three_panel_block()
+    body = Body(girths={"bust": 650, "waist": 640, "hip": 650})
+    options = PlanOptions(overrides=(Override("Side seam", "waist", "Back", -20.0),))
+    finding = next(f for f in allot(block, body, options).findings if f.code == "override_exceeds_difference")
+    assert finding.message == (
+        "Waist: the edges you set by hand take in 4.0 cm of girth, 3.0 cm more than this level needs (1.0 cm). "
+        "The edges left free let out 3.0 cm to make up for it; clear a hand-set cell if that is not what you meant.")

@@ -140,3 +140,28 @@ def test_it_treats_both_body_halves_alike(plan):
     for lv in result.levels:
         seam_sum = sum(s.shift_mm for s in result.shifts if s.level == lv.level)
         assert abs(lv.allotted - 2 * seam_sum) < 1e-6
+
+
+@st.composite
+def split_plans(draw):
+    """Plans with front arcs measured at some levels, so those levels are worked front and back."""
+    block, body, options = draw(plans())
+    split = draw(st.lists(st.sampled_from(block.level_names), unique=True, min_size=1))
+    arcs = {lv: body.girths[lv] * draw(st.floats(0.3, 0.7)) for lv in split}
+    return block, replace(body, front_arcs=arcs), options
+
+
+@settings(max_examples=400, deadline=None)
+@given(split_plans())
+def test_it_rounds_a_split_level_once_so_it_is_off_by_at_most_one_step(plan):
+    """The documented rule: round the level's total once, then share it between front and back."""
+    block, body, options = plan
+    result = allot(block, body, options)
+    panels = {p.name: p for p in block.panels}
+    for lv in result.levels:
+        sides = {panels[p].side for s in block.seams if lv.level in s.alterable_at for p in (s.front_panel, s.back_panel)}
+        if lv.front is None or sides != {FRONT, BACK}:
+            continue
+        assert abs(lv.residual) <= options.step_mm + 1e-6
+        assert abs(lv.front.residual + lv.back.residual - lv.residual) < 1e-6
+        assert abs(altered_girth(block, result, lv.level) - (lv.target - lv.residual)) < 1e-6
