@@ -121,7 +121,8 @@ def corset_block(size: str) -> Block:
     hip_y = ys["hip"]
     # Top edge: highest at centre front over the bust, dipping under the arm.
     top = [0.0, 5.0, 30.0, 45.0, 35.0, 20.0, 20.0]
-    bottom = [hip_y + 20, hip_y + 10, hip_y - 5, hip_y - 5, hip_y + 5, hip_y + 20, hip_y + 20]
+    # Bottom edge: every panel reaches below the hip line, a little higher over the hip bone.
+    bottom = [hip_y + 20, hip_y + 15, hip_y + 10, hip_y + 10, hip_y + 15, hip_y + 20, hip_y + 20]
     panels = _panels(widths, levels, cf_fold=False, top=top, bottom=bottom, names=_CORSET_PANELS)
     seams = tuple(
         Seam(name=name, kind=kind, front_panel=a.name, back_panel=b.name, alterable_at=at, cap_mm=15.0)

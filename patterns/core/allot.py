@@ -458,6 +458,19 @@ def _input_findings(block, body, options, gap) -> list[Finding]:
         arc = body.front_arcs.get(level)
         if arc is not None and girth is not None and not (0 < arc < girth):
             findings.append(Finding("impossible_front_arc", ERROR, f"The {label.lower()} front arc must be shorter than the whole girth.", level=level))
+    for level in block.levels:
+        label = LEVEL_LABELS.get(level.name, level.name)
+        above = [p.name for p in block.panels if max(p.top_left.y, p.top_right.y) > level.y]
+        below = [p.name for p in block.panels if min(p.bottom_left.y, p.bottom_right.y) < level.y]
+        for names, where in ((above, "above the top of"), (below, "below the bottom of")):
+            if names:
+                findings.append(Finding(
+                    "level_beyond_panel", WARNING,
+                    f"{label}: the {label.lower()} line lies {where} {_panel_list(names)}, so what is worked out "
+                    f"there for {'it' if len(names) == 1 else 'them'} is not cut. Check the pattern's levels, "
+                    "and check this level on the toile.",
+                    level=level.name,
+                ))
     bust, underbust = body.girths.get("bust"), body.girths.get("underbust")
     if bust and underbust and underbust - bust > ABSURD_UNDERBUST_EXCESS_MM:
         findings.append(Finding(
@@ -496,6 +509,11 @@ def _input_findings(block, body, options, gap) -> list[Finding]:
             level="waist",
         ))
     return findings
+
+
+def _panel_list(names: list[str]) -> str:
+    words = names[0] if len(names) == 1 else ", ".join(names[:-1]) + " and " + names[-1]
+    return f"the {words} panel{'s' if len(names) > 1 else ''}"
 
 
 def _shape_findings(block, edge_shifts, cf_shift) -> list[Finding]:

@@ -150,6 +150,10 @@ def block_errors(block: Block) -> list[str]:
                 errors.append(f"Panel {p.name} has no width at {lv}.")
         if p.side not in (FRONT, BACK):
             errors.append(f"Panel {p.name} must be front or back of the side seam.")
+        for edge, top, bottom in ((LEFT, p.top_left, p.bottom_left), (RIGHT, p.top_right, p.bottom_right)):
+            if bottom.y <= top.y:
+                errors.append(f"Panel {p.name}: the bottom of its {edge} stitch line lies above its top "
+                              "(y grows downwards from the top of the block).")
     if len(block.seams) != max(len(block.panels) - 1, 0):
         errors.append("There must be one seam between each pair of neighbouring panels.")
     for seam, (a, b) in zip(block.seams, zip(block.panels, block.panels[1:])):

@@ -24,13 +24,27 @@ FORMAT = "atelier-fitting"
 VERSION = 1
 
 
+# Error messages quote what the file holds; a file of megabytes must not come back as one.
+MESSAGE_LIMIT = 200
+# No length in millimetres needs more digits than this; Python refuses to read more than 4,300.
+MAX_NUMBER_DIGITS = 15
+
+
+def shorten(text: str, limit: int = MESSAGE_LIMIT) -> str:
+    """``text`` cut to about ``limit`` characters, saying how much was left out."""
+    text = str(text)
+    if len(text) <= limit:
+        return text
+    return f"{text[:limit]}… ({len(text) - limit:,} more characters)"
+
+
 class FittingFileError(ValueError):
-    """A fitting file that cannot be used, with the field at fault."""
+    """A fitting file that cannot be used, with the field at fault (both kept to a readable length)."""
 
     def __init__(self, field: str, message: str):
-        self.field = field
-        self.message = message
-        super().__init__(f"{field}: {message}" if field else message)
+        self.field = shorten(field, 80)
+        self.message = shorten(message)
+        super().__init__(f"{self.field}: {self.message}" if self.field else self.message)
 
 
 @cache
@@ -145,8 +159,14 @@ def read_fitting(data) -> tuple[dict[str, float], Block, PlanOptions]:
     unit = data.get("unit", "cm")
     options = options_from_dict(data.get("plan", {}), unit)
     seams = {s.name: s for s in block.seams}
+    first_fixed: dict[tuple[str, str, str], int] = {}
     for i, o in enumerate(options.overrides):
         where = f"plan/overrides/{i}"
+        cell = (o.seam, o.level, o.panel)
+        if cell in first_fixed:
+            raise FittingFileError(where, f"The {o.panel} edge of the {o.seam} at {o.level} is already fixed by "
+                                          f"plan/overrides/{first_fixed[cell]}; a cell is fixed once.")
+        first_fixed[cell] = i
         if o.seam not in seams:
             raise FittingFileError(f"{where}/seam", f"There is no seam called {o.seam!r} in the pattern.")
         if o.level not in block.level_names:
@@ -167,7 +187,8 @@ def read_fitting(data) -> tuple[dict[str, float], Block, PlanOptions]:
 
 def load_fitting_text(text: str) -> tuple[dict[str, float], Block, PlanOptions]:
     try:
-        data = json.loads(text, parse_constant=_refuse_constant)
+        data = json.loads(text, parse_constant=_refuse_constant, parse_int=_integer, parse_float=_finite,
+                          object_pairs_hook=_object)
     except FittingFileError:
         raise
     except (json.JSONDecodeError, RecursionError) as exc:
@@ -177,6 +198,29 @@ def load_fitting_text(text: str) -> tuple[dict[str, float], Block, PlanOptions]:
 
 def _refuse_constant(name):
     raise FittingFileError("(file)", f"{name} is not a length; use a finite number.")
+
+
+def _integer(text: str) -> int:
+    digits = len(text.lstrip("-"))
+    if digits > MAX_NUMBER_DIGITS:
+        raise FittingFileError("(file)", f"A number of {digits:,} digits is not a length in millimetres.")
+    return int(text)
+
+
+def _finite(text: str) -> float:
+    value = float(text)
+    if not math.isfinite(value):
+        raise FittingFileError("(file)", f"The number {shorten(text, 40)} is far too large to be a length in millimetres.")
+    return value
+
+
+def _object(pairs: list) -> dict:
+    data = {}
+    for key, value in pairs:
+        if key in data:
+            raise FittingFileError("(file)", f"The name {key!r} appears twice in one object; keep one.")
+        data[key] = value
+    return data
 
 
 def result_to_json(result: Allotment) -> dict:

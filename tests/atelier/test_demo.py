@@ -12,6 +12,8 @@ from fittings.services.demo import load_demo_atelier
 from patterns import demo
 from patterns.models import BasePattern, SizeRun
 from patterns.services import save_block
+from patterns.core.allot import Body, PlanOptions, allot
+from patterns.demo import CORSET_SIZES, bodice_block, corset_run
 from tests.conftest import DEMO_PASSWORD
 
 pytestmark = pytest.mark.django_db
@@ -77,3 +79,14 @@ def test_it_prints_the_demo_password_once(capsys):
     out = capsys.readouterr().out
     assert "not loaded" in out
     assert "printed-once-77" not in out
+
+
+@pytest.mark.parametrize("block", [*corset_run(), bodice_block()], ids=lambda b: f"{b.garment} {b.size}")
+def test_it_draws_every_demo_panel_down_past_every_level(block):
+    """Each level of a demo block crosses every panel, at both stitch lines."""
+    for level in block.levels:
+        for p in block.panels:
+            assert max(p.top_left.y, p.top_right.y) <= level.y <= min(p.bottom_left.y, p.bottom_right.y), (
+                level.name, p.name)
+    result = allot(block, Body(girths=dict(CORSET_SIZES["12"])), PlanOptions())
+    assert "level_beyond_panel" not in [f.code for f in result.findings]

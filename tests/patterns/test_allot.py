@@ -252,3 +252,19 @@ def test_it_says_in_words_when_hand_set_cells_take_in_more_than_the_level_needs(
     assert finding.message == (
         "Waist: the edges you set by hand take in 4.0 cm of girth, 3.0 cm more than this level needs (1.0 cm). "
         "The edges left free let out 3.0 cm to make up for it; clear a hand-set cell if that is not what you meant.")
+
+
+def test_it_says_when_a_level_lies_below_the_bottom_of_a_panel():
+    # The Side panel ends 20 mm above the hip line (y 400): the girth there cannot be cut on it.
+    from dataclasses import replace
+
+    from patterns.core.block import Point
+
+    block = three_panel_block()
+    side = replace(block.panels[1], bottom_left=Point(150.0, 380.0), bottom_right=Point(250.0, 380.0))
+    block = replace(block, panels=(block.panels[0], side, block.panels[2]))
+    result = allot(block, Body(girths={"bust": 650, "waist": 650, "hip": 650}), PlanOptions())
+    found = [f for f in result.findings if f.code == "level_beyond_panel"]
+    assert [(f.level, f.severity) for f in found] == [("hip", "warning")]
+    assert found[0].message.startswith("Hip: the hip line lies below the bottom of the Side panel")
+    assert "level_beyond_panel" not in codes(allot(three_panel_block(), Body(girths={"bust": 650, "waist": 650, "hip": 650}), PlanOptions()))

@@ -18,6 +18,10 @@ def example():
     return json.loads(EXAMPLES[0].read_text())
 
 
+def example_text() -> str:
+    return EXAMPLES[0].read_text()  # hester-quayle-first-corset: waist 742.0 mm
+
+
 def test_it_ships_examples_of_the_demo_scenario():
     assert len(EXAMPLES) >= 3
 
@@ -90,3 +94,68 @@ def test_it_reads_a_stored_result_back_unchanged(path):
     assert again.levels == result.levels
     assert again.findings == result.findings
     assert again.alteration(block) == result.alteration(block)
+
+
+# --- files no fitter would write, answered in one readable line ---------------------------------
+
+
+def _text_with(change):
+    data = example()
+    change(data)
+    return json.dumps(data)
+
+
+def test_it_refuses_an_integer_of_thousands_of_digits_in_words():
+    # Python refuses to read integers of more than 4,300 digits (a ValueError of its own).
+    text = example_text().replace('"waist_girth": 742.0', '"waist_girth": ' + "9" * 4301, 1)
+    with pytest.raises(FittingFileError) as caught:
+        load_fitting_text(text)
+    assert caught.value.message == "A number of 4,301 digits is not a length in millimetres."
+
+
+def test_it_refuses_a_number_too_large_for_a_float():
+    with pytest.raises(FittingFileError, match="1e400 is far too large"):
+        load_fitting_text(example_text().replace('"waist_girth": 742.0', '"waist_girth": 1e400', 1))
+
+
+def test_it_keeps_an_error_message_short_whatever_the_file_holds():
+    text = _text_with(lambda d: d["measurements"].__setitem__("waist_girth", "x" * 1_000_000))
+    with pytest.raises(FittingFileError) as caught:
+        load_fitting_text(text)
+    assert len(str(caught.value)) < 320
+    assert "more characters" in caught.value.message
+
+
+def test_it_refuses_a_cell_fixed_twice():
+    def twice(data):
+        cell = {"seam": "Side seam", "level": "waist", "panel": "Side front", "shift_mm": 3.0}
+        data["plan"]["overrides"] = [cell, {**cell, "shift_mm": -2.0}]
+
+    with pytest.raises(FittingFileError) as caught:
+        load_fitting_text(_text_with(twice))
+    assert caught.value.field == "plan/overrides/1"
+    assert "already fixed by plan/overrides/0" in caught.value.message
+
+
+def test_it_refuses_a_name_given_twice_in_one_object():
+    text = example_text().replace('"measurements": {', '"measurements": {"waist_girth": 700.0, ', 1)
+    with pytest.raises(FittingFileError, match="'waist_girth' appears twice"):
+        load_fitting_text(text)
+
+
+def test_it_refuses_a_panel_whose_bottom_lies_above_its_top():
+    def upside_down(data):
+        panel = data["pattern"]["panels"][2]
+        panel["top_right"], panel["bottom_right"] = panel["bottom_right"], panel["top_right"]
+
+    with pytest.raises(FittingFileError) as caught:
+        load_fitting_text(_text_with(upside_down))
+    assert caught.value.field == "pattern"
+    assert caught.value.message.startswith("Panel Side front: the bottom of its right stitch line lies above its top")
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=lambda p: p.name)
+def test_it_ships_examples_whose_blocks_are_the_demo_atelier_s(path):
+    _, block, _ = load_fitting_text(path.read_text())
+    demo = {(b.garment, b.size): b for b in [*corset_run(), bodice_block()]}
+    assert block == demo[(block.garment, block.size)]

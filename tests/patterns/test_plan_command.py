@@ -60,3 +60,20 @@ def test_it_names_the_field_of_a_bad_file_and_fails(text, field):
 def test_it_says_when_the_file_is_missing():
     done = run("no-such-file.json")
     assert done.returncode != 0 and "Cannot read" in done.stderr and "Traceback" not in done.stderr
+
+
+def test_it_answers_an_integer_of_thousands_of_digits_in_one_line():
+    text = EXAMPLES[0].read_text().replace('"waist_girth": 742.0', '"waist_girth": ' + "9" * 4400, 1)
+    done = run("-", stdin=text)
+    assert done.returncode != 0
+    assert "Traceback" not in done.stderr
+    assert done.stderr.strip().splitlines() == ["CommandError: -: (file): A number of 4,400 digits is not a length in millimetres."]
+
+
+def test_it_does_not_print_a_huge_value_back():
+    data = json.loads(EXAMPLES[0].read_text())
+    data["measurements"]["waist_girth"] = "7" * 20_000_000  # a 20 MB line
+    done = run("-", stdin=json.dumps(data))
+    assert done.returncode != 0 and "Traceback" not in done.stderr
+    assert "measurements/waist_girth" in done.stderr
+    assert len(done.stderr) < 400

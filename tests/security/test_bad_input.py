@@ -7,6 +7,7 @@ page is shown, and leaves every table of the fittings and patterns apps
 
 import copy
 import json
+import re
 from dataclasses import dataclass, field
 
 import pytest
@@ -96,6 +97,35 @@ def setitem(path, value):
         target[path[-1]] = value
 
     return change
+
+
+def fitting_text(edit):
+    """A fitting file whose JSON text is edited (for what json.dumps cannot write)."""
+
+    def build(w):
+        content = edit(json.dumps(w.issued.inputs)).encode()
+        return {"file": SimpleUploadedFile("fitting.json", content, content_type="application/json")}
+
+    return build
+
+
+def huge_waist(text):
+    return re.sub(r'"waist_girth": [0-9.]+', '"waist_girth": ' + "7" * 4400, text, count=1)
+
+
+def measurements_twice(text):
+    return text.replace('"measurements": {', '"measurements": {"waist_girth": 700, ', 1)
+
+
+def fixed_twice(data):
+    seam = data["pattern"]["seams"][2]
+    cell = {"seam": seam["name"], "level": "waist", "panel": seam["front_panel"], "shift_mm": 3.0}
+    data["plan"]["overrides"] = [cell, {**cell, "shift_mm": -3.0}]
+
+
+def upside_down_panel(data):
+    panel = data["pattern"]["panels"][1]
+    panel["top_left"], panel["bottom_left"] = panel["bottom_left"], panel["top_left"]
 
 
 def without_level(data):
@@ -205,6 +235,10 @@ CASES = [
     Case("import-pattern-not-kept", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["pattern", "name"], "Someone else's block")), words="has no base pattern"),
     Case("import-unit-unknown", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["unit"], "yd")), words="unit"),
     Case("import-wrong-format", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["format"], "other-program")), words="format"),
+    Case("import-integer-of-4400-digits", "post", u("fittings:fitting_import", CLIENT), fitting_text(huge_waist), words="A number of 4,400 digits is not a length"),
+    Case("import-name-twice", "post", u("fittings:fitting_import", CLIENT), fitting_text(measurements_twice), words="appears twice"),
+    Case("import-cell-fixed-twice", "post", u("fittings:fitting_import", CLIENT), fitting(fixed_twice), words="a cell is fixed once"),
+    Case("import-panel-upside-down", "post", u("fittings:fitting_import", CLIENT), fitting(upside_down_panel), words="lies above its top"),
     Case("import-deeply-nested", "post", u("fittings:fitting_import", CLIENT), fitting(raw=b"[" * 100_000 + b"]" * 100_000), words="Not valid JSON"),
     Case("import-file-too-large", "post", u("fittings:fitting_import", CLIENT), fitting(raw=b" " * (600 * 1024) + b"{}"), words="larger than 512 KB"),
     Case("import-garment-too-long", "post", u("fittings:fitting_import", CLIENT), lambda w: {**fitting(setitem(["unit"], "in"))(w), "garment": "g" * 201}, words="too long"),
