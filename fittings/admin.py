@@ -1,9 +1,9 @@
 from django.contrib import admin, messages
 from django.db.models import Count
 from django.urls import reverse
-from django.utils import timezone
 from django.utils.html import format_html
 
+from fittings.services import clients as client_services
 from fittings.models import (
     Client, Measurement, MeasurementSession, Photo, PinAdjustment, Plan, PlanRevision,
 )
@@ -23,11 +23,14 @@ class ReadOnlyAdmin(admin.ModelAdmin):
 
 
 @admin.register(Client)
-class ClientAdmin(admin.ModelAdmin):
+class ClientAdmin(ReadOnlyAdmin):
+    """Clients are added and changed in the app, where every change is audited and version-checked;
+    here the owner finds them, removed ones included, and removes or restores them through the same
+    services.  Erasing a client for good is ``manage.py erase_client``."""
+
     list_display = ["reference", "name", "contact", "consent_given_on", "session_count", "is_deleted", "created_at"]
     list_filter = ["is_deleted", "consent_given_on"]
     search_fields = ["reference", "name", "contact", "notes"]
-    readonly_fields = ["is_deleted", "deleted_at", "created_at", "updated_at", "created_by"]
     actions = ["mark_deleted", "restore"]
     date_hierarchy = "created_at"
 
@@ -35,37 +38,42 @@ class ClientAdmin(admin.ModelAdmin):
         # Deleted clients stay visible here so the owner can restore them.
         return Client.all_objects.annotate(session_count=Count("sessions"))
 
+    def has_manage_permission(self, request):
+        return request.user.is_superuser
+
     @admin.display(description="Sessions", ordering="session_count")
     def session_count(self, client):
         return client.session_count
 
-    def has_delete_permission(self, request, obj=None):
-        # Erasing a client for good is for superusers; others mark clients deleted.
-        return request.user.is_superuser
-
-    def save_model(self, request, obj, form, change):
-        if not change and obj.created_by_id is None:
-            obj.created_by = request.user
-        super().save_model(request, obj, form, change)
-
-    @admin.action(description="Mark the selected clients as deleted")
+    @admin.action(description="Mark the selected clients as deleted", permissions=["manage"])
     def mark_deleted(self, request, queryset):
-        count = queryset.filter(is_deleted=False).update(is_deleted=True, deleted_at=timezone.now())
-        self.message_user(request, f"{count} client(s) marked as deleted.", messages.SUCCESS)
+        clients = list(queryset.filter(is_deleted=False))
+        for client in clients:
+            client_services.soft_delete_client(client=client, user=request.user)
+        self.message_user(request, f"{len(clients)} client(s) marked as deleted.", messages.SUCCESS)
 
-    @admin.action(description="Restore the selected clients")
+    @admin.action(description="Restore the selected clients", permissions=["manage"])
     def restore(self, request, queryset):
-        count = queryset.filter(is_deleted=True).update(is_deleted=False, deleted_at=None)
-        self.message_user(request, f"{count} client(s) restored.", messages.SUCCESS)
+        clients = list(queryset.filter(is_deleted=True))
+        for client in clients:
+            client_services.restore_client(client=client, user=request.user)
+        self.message_user(request, f"{len(clients)} client(s) restored.", messages.SUCCESS)
 
 
 class MeasurementInline(admin.TabularInline):
     model = Measurement
     extra = 0
+    can_delete = False
+
+    def has_add_permission(self, request, obj=None):
+        return False
+
+    def has_change_permission(self, request, obj=None):
+        return False
 
 
 @admin.register(MeasurementSession)
-class MeasurementSessionAdmin(admin.ModelAdmin):
+class MeasurementSessionAdmin(ReadOnlyAdmin):
     list_display = ["client", "taken_on", "kind", "unit", "measured_by", "version"]
     list_filter = ["kind", "unit", "taken_on"]
     search_fields = ["client__reference", "client__name", "notes", "posture_notes"]
@@ -77,7 +85,7 @@ class MeasurementSessionAdmin(admin.ModelAdmin):
 
 
 @admin.register(Measurement)
-class MeasurementAdmin(admin.ModelAdmin):
+class MeasurementAdmin(ReadOnlyAdmin):
     list_display = ["session", "code", "value_mm"]
     list_filter = ["code"]
     search_fields = ["session__client__reference", "session__client__name"]
@@ -85,7 +93,7 @@ class MeasurementAdmin(admin.ModelAdmin):
 
 
 @admin.register(Photo)
-class PhotoAdmin(admin.ModelAdmin):
+class PhotoAdmin(ReadOnlyAdmin):
     list_display = ["session", "view", "taken_at"]
     list_filter = ["view"]
     search_fields = ["session__client__reference", "session__client__name"]
@@ -119,7 +127,7 @@ class PlanRevisionInline(admin.TabularInline):
 
 
 @admin.register(Plan)
-class PlanAdmin(admin.ModelAdmin):
+class PlanAdmin(ReadOnlyAdmin):
     list_display = ["garment", "client", "base_pattern", "session", "created_by", "created_at", "version"]
     list_filter = ["base_pattern__garment", "created_at"]
     search_fields = ["garment", "client__reference", "client__name"]
@@ -141,7 +149,7 @@ class PlanRevisionAdmin(ReadOnlyAdmin):
 
 
 @admin.register(PinAdjustment)
-class PinAdjustmentAdmin(admin.ModelAdmin):
+class PinAdjustmentAdmin(ReadOnlyAdmin):
     list_display = ["revision", "seam", "level", "amount_mm", "created_by", "created_at"]
     list_filter = ["level", "created_at"]
     search_fields = ["seam", "note", "revision__plan__client__reference", "revision__plan__client__name"]
@@ -154,7 +162,7 @@ from fittings.models import PrintJob  # noqa: E402
 
 
 @admin.register(PrintJob)
-class PrintJobAdmin(admin.ModelAdmin):
+class PrintJobAdmin(ReadOnlyAdmin):
     """Read only: jobs are made by printing from the app, and their files are served by the app."""
 
     list_display = ["revision", "kind", "paper", "status", "created_by", "created_at", "finished_at"]

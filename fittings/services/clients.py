@@ -46,6 +46,15 @@ def soft_delete_client(*, client: Client, user) -> None:
                  summary=f"Client {client.reference} removed from the lists (records kept).")
 
 
+@transaction.atomic
+def restore_client(*, client: Client, user) -> None:
+    client.is_deleted = False
+    client.deleted_at = None
+    client.save(update_fields=["is_deleted", "deleted_at", "updated_at"])
+    audit.record(user=user, action=audit.CHANGE, object_type="client", object_id=client.pk, client=client,
+                 summary=f"Client {client.reference} restored to the lists.")
+
+
 def clean_photo(upload) -> ContentFile:
     """The picture re-encoded from its pixels: upright, and without EXIF (so no location) or other metadata."""
     upload.seek(0)

@@ -151,3 +151,50 @@ def test_it_names_the_command_when_no_one_is_signed_in(db):
     entry = audit.record(user=None, actor="manage.py erase_client (run as atelier)", action=audit.ERASE,
                          object_type="client", object_id=7, summary="A client was erased on request.")
     assert (entry.user, entry.username, entry.object_id) == (None, "manage.py erase_client (run as atelier)", "7")
+
+
+# --- the admin writes only through the services --------------------------------------------------
+
+
+@pytest.fixture
+def superuser_client(client, make_user, demo_atelier):
+    user = make_user(None, username="owner-admin", is_staff=True, is_superuser=True)
+    client.force_login(user)
+    return client
+
+
+def _action(superuser_client, action, *clients):
+    return superuser_client.post(reverse("admin:fittings_client_changelist"), {
+        "action": action, "_selected_action": [str(c.pk) for c in clients], "index": "0"})
+
+
+def test_it_audits_removing_and_restoring_clients_from_the_admin(superuser_client):
+    client = Client.objects.get(reference="WF-0101")
+    assert _action(superuser_client, "mark_deleted", client).status_code == 302
+    client.refresh_from_db()
+    assert client.is_deleted
+    assert (newest().action, newest().username, newest().client_reference) == ("delete", "owner-admin", "WF-0101")
+    assert _action(superuser_client, "restore", client).status_code == 302
+    client.refresh_from_db()
+    assert not client.is_deleted
+    assert (newest().action, newest().client_reference) == ("change", "WF-0101")
+    assert "restored" in newest().summary
+
+
+def test_it_lets_no_one_change_a_reading_or_a_client_in_the_admin(superuser_client):
+    """A change there would pass the audit trail and the sessions' version check; the app does both."""
+    session = MeasurementSession.objects.filter(client__reference="WF-0101").first()
+    reading = session.measurements.get(code="waist_girth")
+    client = session.client
+    before = (reading.value_mm, session.version, client.name, AuditEntry.objects.count())
+    pages = [("admin:fittings_measurement_change", reading.pk, {"session": session.pk, "code": "waist_girth", "value_mm": "1"}),
+             ("admin:fittings_measurementsession_change", session.pk, {"notes": "changed"}),
+             ("admin:fittings_client_change", client.pk, {"reference": client.reference, "name": "Someone Else"})]
+    for name, pk, data in pages:
+        response = superuser_client.post(reverse(name, args=[pk]), data)
+        assert response.status_code == 403, name
+        assert superuser_client.get(reverse(name, args=[pk])).status_code == 200  # still readable
+    for name in ("admin:fittings_measurement_add", "admin:fittings_client_add", "admin:fittings_plan_add"):
+        assert superuser_client.get(reverse(name)).status_code == 403, name
+    reading.refresh_from_db(), session.refresh_from_db(), client.refresh_from_db()
+    assert (reading.value_mm, session.version, client.name, AuditEntry.objects.count()) == before
