@@ -79,7 +79,7 @@ def _input(form, name: str, placeholder: str, label: str) -> CellInput:
         attrs=_attrs({
             "id": bound.auto_id, "name": bound.html_name, "value": "" if value is None else str(value),
             "placeholder": placeholder, "inputmode": "decimal", "autocomplete": "off", "class": "cell",
-            "aria-label": label,
+            "aria-label": label, **({"aria-invalid": "true"} if errors else {}),
         }),
         error=errors[0] if errors else "",
     )

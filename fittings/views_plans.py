@@ -9,10 +9,11 @@ from django.views.decorators.http import require_GET, require_POST
 
 from atelier.roles import FITTER, OWNER, ROLES, role_required
 from fittings import previews, selectors
-from fittings.forms import NewPlanForm, PinForm, PlanOptionsForm
+from fittings.forms import NewPlanForm, PinForm, PlanOptionsForm, cell_name
 from fittings.models import MeasurementSession, Plan, PlanRevision
 from fittings.services import plans as plan_services
 from fittings.tables import plan_table
+from patterns.core.measures import LEVEL_LABELS
 from patterns.core.units import format_length, format_with_unit
 from patterns.selectors import active_patterns
 
@@ -122,12 +123,17 @@ def plan_recompute(request, pk):
     form = PlanOptionsForm(request.POST, block=block, unit=options.unit)
     if not form.is_valid():
         if request.htmx:
-            return render(request, "fittings/plan_edit.html#plan-result",
-                          {"form": form, "plan": plan, "table": None, "invalid": True}, status=422)
+            # Swapped by htmx (base.html's responseHandling): the message at the top of the table, the fields
+            # beside the options marked out of band, the cells' own errors in the saved revision's table.
+            context = _result_context(request, plan, form, block, selectors.revision_result(latest), options)
+            context.update({"invalid": True, "oob": True, "option_fields": _option_fields(form),
+                            "problems": _problems(form, block)})
+            return render(request, "fittings/plan_edit.html#plan-result", context, status=422)
         return _plan_page(request, plan, latest, form, block, values, None, status=400)
     result = plan_services.compute(block, values, form.options())
     if request.htmx:
         context = _result_context(request, plan, form, block, result, form.options())
+        context.update({"oob": True, "option_fields": _option_fields(form)})
         return render(request, "fittings/plan_edit.html#plan-result", context)
     return _plan_page(request, plan, latest, form, block, values, result, options=form.options())
 
@@ -138,6 +144,28 @@ def plan_preview(request, pk):
     """The panel preview for the values in the query string (the live form), as SVG; cached by input."""
     block, result = _live_result(request, pk)
     return _svg_response(*previews.preview_lookup(block, result, result.unit))
+
+
+def _option_fields(form):
+    """The option fields beside the table (their error slots are refreshed with every live answer)."""
+    return [*form.ease_fields(), form["lacing_gap"], form["centre_front_width"], form["policy"], form["step"]]
+
+
+def _problems(form, block) -> list[str]:
+    """Each refused value named as the fitter sees it: the option's label, or the cell's seam, edge and level."""
+    names = {}
+    for i, seam in enumerate(block.seams):
+        for level in block.level_names:
+            for edge, panel in enumerate((seam.front_panel, seam.back_panel)):
+                names[cell_name(i, level, edge)] = f"{seam.name}, {panel} edge, {LEVEL_LABELS.get(level, level).lower()}"
+    out = []
+    for name, errors in form.errors.items():
+        if name == "__all__":
+            out += list(errors)
+            continue
+        label = names.get(name) or form.fields[name].label or name
+        out.append(f"{label}: {errors[0]}")
+    return out
 
 
 def _live_result(request, pk):
@@ -191,7 +219,7 @@ def _plan_page(request, plan, latest, form, block, values, result, status=200, c
     context.update({
         "client": plan.client, "session": plan.session, "latest": latest, "conflict": conflict,
         "can_edit": _can_edit(request.user), "values": values,
-        "ease_fields": form.ease_fields(),
+        "ease_fields": form.ease_fields(), "problems": _problems(form, block) if form.is_bound else [],
         "bust_span_text": format_with_unit(values["bust_span"], options.unit) if values.get("bust_span") else "",
     })
     return render(request, "fittings/plan_edit.html", context, status=status)
