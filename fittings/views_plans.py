@@ -14,6 +14,7 @@ from fittings.models import MeasurementSession, Plan, PlanRevision
 from fittings.services import plans as plan_services
 from fittings.tables import plan_table
 from patterns.core.measures import LEVEL_LABELS
+from patterns.core.report import direction
 from patterns.core.units import format_length, format_with_unit
 from patterns.selectors import active_patterns
 
@@ -285,12 +286,21 @@ def revision_pins(request, pk, number):
         status = 400
     else:
         form = PinForm(block=block, unit=options.unit, initial={"version": plan.version})
+    # Not "block" in the context: Django's templates keep their own {% block %} state under that name.
+    levels = [{"code": level, "label": LEVEL_LABELS.get(level, level)} for level in block.level_names]
     rows = [
-        {"seam": seam, "cells": [form[f"pin-{i}-{level}"] for level in block.level_names]}
+        {"seam": seam, "cells": [
+            {"field": form[f"pin-{i}-{lv['code']}"], "label": f"{seam.name}, {lv['label'].lower()}: pin, {options.unit}"}
+            for lv in levels]}
         for i, seam in enumerate(block.seams)
     ]
-    context = {"plan": plan, "client": plan.client, "revision": revision, "block": block, "form": form, "rows": rows,
-               "pins": revision.pins.all(), "unit": options.unit}
+    pins = [
+        {"seam": p.seam, "level": p.get_level_display(), "note": p.note,
+         "amount": format_with_unit(p.amount_mm, options.unit, signed=True), "words": direction(float(p.amount_mm))}
+        for p in revision.pins.all()
+    ]
+    context = {"plan": plan, "client": plan.client, "revision": revision, "levels": levels, "form": form, "rows": rows,
+               "pins": pins, "unit": options.unit}
     return render(request, "fittings/revision_pins.html", context, status=status)
 
 

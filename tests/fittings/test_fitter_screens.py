@@ -7,6 +7,7 @@ from django.urls import reverse
 
 from fittings.forms import cell_name
 from fittings.services import plans as plan_services
+from patterns.core.measures import LEVEL_LABELS
 from tests.fittings.test_views_plans import options_post
 
 pytestmark = pytest.mark.django_db
@@ -36,3 +37,22 @@ def test_it_lets_htmx_swap_a_refused_recompute_and_says_why(fitter_client, plan)
     cell = re.search(rf'<input[^>]*name="{cell_name(side, "waist", 0)}"[^>]*>', html).group(0)
     assert 'aria-invalid="true"' in cell and 'value="abc"' in cell  # the typed value stays, marked
     assert "<table" in html  # the table is still there to look at
+
+
+def test_it_heads_the_pin_form_with_the_levels_and_names_each_cell(fitter_client, plan):
+    revision = plan_services.latest_revision(plan)
+    url = reverse("fittings:revision_pins", args=[plan.pk, revision.number])
+    html = fitter_client.get(url).content.decode()
+    head = re.search(r"<thead>(.*?)</thead>", html, re.S).group(1)
+    assert re.findall(r'<th scope="col">([^<]+)</th>', head) == ["Seam", *(LEVEL_LABELS[lv] for lv in ("bust", "underbust", "waist", "abdomen", "hip"))]
+    _, block, _ = plan_services.revision_inputs(revision)
+    assert f'aria-label="{block.seams[0].name}, waist: pin, in"' in html
+    assert "pin-0-waist" not in re.findall(r'aria-label="([^"]*)"', html)[0]
+
+
+def test_it_lists_recorded_pins_in_the_plan_unit(fitter_client, plan):
+    revision = plan_services.latest_revision(plan)
+    url = reverse("fittings:revision_pins", args=[plan.pk, revision.number])
+    assert fitter_client.post(url, {"pin-0-waist": "-3/8", "note": "", "version": plan.version}).status_code == 302
+    html = fitter_client.get(url).content.decode()
+    assert "take in -3/8 in" in html and " mm" not in re.search(r"Recorded so far(.*?)</ul>", html, re.S).group(1)
