@@ -12,6 +12,7 @@ from html import escape
 from django.utils.safestring import mark_safe
 
 from fittings.forms import cell_name
+from fittings.wording import findings_for_screen
 from patterns.core.allot import Allotment
 from patterns.core.block import Block
 from patterns.core.measures import LEVEL_LABELS
@@ -143,7 +144,7 @@ def plan_table(block: Block, result: Allotment, form=None):
              "words": "lengthen" if b.change_mm > 0 else ("shorten" if b.change_mm < 0 else "no change")}
             for b in result.bands
         ],
-        "findings": result.findings,
+        "findings": findings_for_screen(result.findings, unit),
         "unit": unit,
         "editable": form is not None,
     }

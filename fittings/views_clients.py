@@ -11,6 +11,7 @@ from fittings.forms import ClientForm, SessionForm
 from fittings.models import Client, MeasurementSession
 from fittings.services import clients as client_services
 from patterns.core.measures import MEASURES, plausibility_notes
+from fittings.wording import in_unit
 from patterns.core.units import UNITS
 
 EDITORS = (OWNER, FITTER)
@@ -93,9 +94,10 @@ def session_edit(request, pk):
 
 
 def _session_page(request, client, form, previous, session, status, conflict=None):
+    notes = _notes(form, previous)
     context = {
         "client": client, "form": form, "session": session, "previous": previous, "conflict": conflict,
-        "notes": _notes(form, previous),
+        "notes": notes, "advice": _advice(notes),
     }
     return render(request, "fittings/session_form.html", context, status=status)
 
@@ -112,7 +114,14 @@ def _notes(form, previous):
         if value is not None:
             values[m.code] = float(value)
     before = selectors.session_values(previous) if previous else None
-    return plausibility_notes(values, before)
+    unit = getattr(form, "unit", "cm")
+    return {code: [in_unit(text, unit) for text in texts] for code, texts in plausibility_notes(values, before).items()}
+
+
+def _advice(notes):
+    """The advice per measurement, named: for the summary and for the slot beside each field."""
+    labels = {m.code: m.label for m in MEASURES}
+    return [{"code": m.code, "label": labels[m.code], "texts": notes.get(m.code, [])} for m in MEASURES]
 
 
 @require_POST
@@ -126,8 +135,9 @@ def session_check(request, client_pk):
         current = MeasurementSession.objects.filter(pk=session_pk, client=client).first()
     previous = selectors.latest_session(client, before=current)
     form = SessionForm(request.POST)
+    notes = _notes(form, previous)
     return render(request, "fittings/session_form.html#session-notes",
-                  {"notes": _notes(form, previous), "form": form, "client": client})
+                  {"notes": notes, "advice": _advice(notes), "form": form, "client": client, "oob": True})
 
 
 @require_POST
@@ -142,7 +152,10 @@ def session_convert(request, client_pk):
     if from_unit != to_unit:
         for code, text in SessionForm.readings_in_unit(request.POST, from_unit, to_unit).items():
             data[code] = text
-    return render(request, "fittings/session_form.html#session-measures", {"form": SessionForm(data), "client": client})
+    form = SessionForm(data)
+    notes = _notes(form, None)
+    return render(request, "fittings/session_form.html#session-measures",
+                  {"form": form, "client": client, "notes": notes, "advice": _advice(notes)})
 
 
 @role_required(*ROLES)

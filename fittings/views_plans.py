@@ -13,6 +13,7 @@ from fittings.forms import NewPlanForm, PinForm, PlanOptionsForm, cell_name
 from fittings.models import MeasurementSession, Plan, PlanRevision
 from fittings.services import plans as plan_services
 from fittings.tables import plan_table
+from fittings.wording import findings_for_screen, in_unit
 from patterns.core.measures import LEVEL_LABELS
 from patterns.core.report import direction
 from patterns.core.units import format_length, format_with_unit
@@ -59,7 +60,17 @@ def plan_new(request, session_pk):
             pk=_int(request.GET.get("from") or request.POST.get("from")), plan__client=session.client,
         )
     patterns = active_patterns().order_by("name", "size_order")
-    suggestions = plan_services.suggestions_for_session(session, patterns)
+    # The garment being planned: the one carried over, else the client's last plan's, else the best size's.
+    earlier = based_on.plan if based_on else session.client.plans.select_related("base_pattern").order_by("-created_at").first()
+    garment = earlier.base_pattern.garment if earlier else None
+    suggestions = plan_services.suggestions_for_session(session, patterns, garment=garment)
+    unit = session.unit
+    for_page = [
+        {"label": s.label, "garment": s.garment, "largest": format_with_unit(s.largest_edge_mm, unit),
+         "total": format_with_unit(s.total_edges_mm, unit), "errors": s.errors,
+         "same": s.garment == (suggestions[0].garment if suggestions else None)}
+        for s in suggestions
+    ]
     if request.method == "POST":
         form = NewPlanForm(request.POST, patterns=patterns)
         if form.is_valid():
@@ -75,7 +86,9 @@ def plan_new(request, session_pk):
             initial["base_pattern"] = suggestions[0].pattern_pk
         form = NewPlanForm(initial=initial, patterns=patterns)
         status = 200
-    context = {"session": session, "client": session.client, "form": form, "suggestions": suggestions, "based_on": based_on}
+    context = {"session": session, "client": session.client, "form": form, "suggestions": suggestions, "based_on": based_on,
+               "sizes": for_page, "reason": in_unit(suggestions[0].reason, unit) if suggestions else "",
+               "others": any(not row["same"] for row in for_page)}
     return render(request, "fittings/plan_new.html", context, status=status)
 
 
@@ -386,7 +399,8 @@ def _checks_response(request, block, result, unit):
         }
         for t in pattern.seams
     ]
-    return render(request, "fittings/_seam_checks.html", {"rows": rows, "findings": pattern.findings, "unit": unit})
+    return render(request, "fittings/_seam_checks.html",
+                  {"rows": rows, "findings": findings_for_screen(pattern.findings, unit), "unit": unit})
 
 
 @require_GET

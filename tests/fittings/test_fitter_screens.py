@@ -56,3 +56,76 @@ def test_it_lists_recorded_pins_in_the_plan_unit(fitter_client, plan):
     assert fitter_client.post(url, {"pin-0-waist": "-3/8", "note": "", "version": plan.version}).status_code == 302
     html = fitter_client.get(url).content.decode()
     assert "take in -3/8 in" in html and " mm" not in re.search(r"Recorded so far(.*?)</ul>", html, re.S).group(1)
+
+
+def _inch_plan_with_a_heavy_fixed_cell(plan):
+    _, block, _ = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    side = next(i for i, s in enumerate(block.seams) if s.kind == "side")
+    return options_post(plan, ease_waist="-6", **{cell_name(side, "waist", 0): "+2"})
+
+
+def test_it_writes_every_length_of_an_inch_plan_in_inches(fitter_client, plan):
+    """Findings (the hand-fix warning, the reduction caution) on screen in the plan's unit."""
+    html = fitter_client.post(reverse("fittings:plan_recompute", args=[plan.pk]), _inch_plan_with_a_heavy_fixed_cell(plan),
+                              headers={"HX-Request": "true"}).content.decode()
+    read = re.search(r'id="findings-heading">.*?</section>', html, re.S).group(0)
+    assert "fixed by hand" in read and "waist reduction of 6 in" in read
+    assert not re.search(r"\d\s?(mm|cm)\b", read), read
+
+
+def test_it_prints_the_findings_of_an_inch_plan_in_inches(fitter_client, plan):
+    from fittings import documents
+
+    assert fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]),
+                              _inch_plan_with_a_heavy_fixed_cell(plan)).status_code == 302
+    data = documents.document_data(plan_services.latest_revision(plan))
+    pattern = documents.altered_pattern(data)
+    texts = [row["message"] for row in documents.finding_rows(data, pattern)] + documents.cautions(data)
+    assert any("fixed by hand" in t for t in texts) and any("6 in" in t for t in texts)
+    assert not [t for t in texts if re.search(r"\d\s?(mm|cm)\b", t)]
+
+
+def test_it_suggests_a_size_in_the_session_unit_and_in_order_within_the_garment(fitter_client, reducing_client):
+    session = reducing_client.sessions.order_by("-taken_on").first()
+    assert session.unit == "in"
+    response = fitter_client.get(reverse("fittings:plan_new", args=[session.pk]))
+    html = response.content.decode()
+    suggestions = response.context["suggestions"]
+    card = re.search(r"Suggested base size.*?</section>", html, re.S).group(0)
+    table = re.search(r"All sizes, least alteration first.*?</table>", html, re.S).group(0)
+    assert not re.search(r"\d\s?(mm|cm)\b", card + table), card
+    garments = [s.garment for s in suggestions]
+    first = garments[0]
+    assert garments == sorted(garments, key=lambda g: g != first)  # the plan's garment first, the others after
+    same = [s for s in suggestions if s.garment == first]
+    ranks = [(s.errors, s.over_cap, s.largest_edge_mm, s.total_edges_mm) for s in same]
+    assert ranks == sorted(ranks) and len(same) > 1
+    rows = re.findall(r"<tr><td>([^<]+)</td>", table)
+    assert rows[: len(same)] == [s.label for s in same]
+    assert "Other garments" in table or len(set(garments)) == 1
+
+
+def test_it_names_the_measurement_and_puts_the_advice_beside_it(fitter_client, reducing_client):
+    url = reverse("fittings:session_check", args=[reducing_client.pk])
+    html = fitter_client.post(url, {"unit": "in", "bust_girth": "30", "underbust_girth": "33",
+                                    "waist_girth": "90"}, headers={"HX-Request": "true"}).content.decode()
+    assert re.search(r'<p class="note" data-for="bust_girth"><a href="#id_bust_girth">Bust girth</a>: Bust is smaller', html)
+    beside = re.search(r'id="advice-waist_girth" hx-swap-oob="true">(.*?)</span></span>', html, re.S).group(1)
+    assert "Unusual value" in beside and " in here" in beside and " cm" not in beside
+    assert re.search(r'id="advice-hip_girth" hx-swap-oob="true"></span>', html)  # cleared where nothing is to say
+
+
+def test_it_starts_an_inch_plan_from_the_trades_inch_values(fitter_client, plan):
+    """5/8 in seam allowance and a 2 in lacing gap (common practice), not 1.5 cm and 5 cm converted."""
+    from fittings import documents
+
+    revision = plan_services.latest_revision(plan)
+    values, block, options = plan_services.revision_inputs(revision)
+    assert options.unit == "in"
+    assert block.seam_allowance_mm == pytest.approx(15.875)  # 5/8 in = 15.875 mm
+    if block.centre_back == "laced":
+        assert options.lacing_gap_mm == pytest.approx(50.8)  # 2 in = 50.8 mm
+        page = fitter_client.get(reverse("fittings:plan_edit", args=[plan.pk])).content.decode()
+        assert re.search(r'name="lacing_gap"[^>]*value="2"', page) or re.search(r'value="2"[^>]*name="lacing_gap"', page)
+    html = documents.work_order_html(documents.document_data(revision), "a4")
+    assert "5/8 in" in re.search(r"Seam allowance</th><td>([^<]*)", html).group(1)
