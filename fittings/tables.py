@@ -60,6 +60,8 @@ class LevelRow:
     seams: str
     residual: str
     front_back: str = ""
+    gap: str = ""
+    pinned: str = ""
 
 
 @lru_cache(maxsize=4096)
@@ -103,6 +105,8 @@ def plan_table(block: Block, result: Allotment, form=None):
             ease=_f(lv.ease, unit, True), target=_f(lv.target, unit), pattern=_f(lv.pattern, unit),
             difference=_f(lv.difference, unit, True), seams=_f(lv.allotted + lv.centre_front, unit, True),
             residual=_f(lv.residual, unit, True),
+            gap=_f(lv.lacing_gap, unit) if lv.lacing_gap else "",
+            pinned=_f(lv.pinned, unit, True) if lv.pinned else "",
             front_back=(
                 f"front {_f(lv.front.difference, unit, True)}, back {_f(lv.back.difference, unit, True)}"
                 if lv.front else ""
@@ -145,6 +149,8 @@ def plan_table(block: Block, result: Allotment, form=None):
             for b in result.bands
         ],
         "findings": findings_for_screen(result.findings, unit),
+        "laced": any(lv.lacing_gap for lv in result.levels),
+        "pinned": any(lv.pinned for lv in result.levels),
         "unit": unit,
         "editable": form is not None,
     }

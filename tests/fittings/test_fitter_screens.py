@@ -129,3 +129,25 @@ def test_it_starts_an_inch_plan_from_the_trades_inch_values(fitter_client, plan)
         assert re.search(r'name="lacing_gap"[^>]*value="2"', page) or re.search(r'value="2"[^>]*name="lacing_gap"', page)
     html = documents.work_order_html(documents.document_data(revision), "a4")
     assert "5/8 in" in re.search(r"Seam allowance</th><td>([^<]*)", html).group(1)
+
+
+def test_it_shows_pins_and_lacing_gap_so_the_girth_table_adds_up(fitter_client, plan):
+    revision = plan_services.latest_revision(plan)
+    pins_url = reverse("fittings:revision_pins", args=[plan.pk, revision.number])
+    fitter_client.post(pins_url, {"pin-0-waist": "-1/2", "note": "", "version": plan.version})
+    fitter_client.post(reverse("fittings:revision_apply_pins", args=[plan.pk, revision.number]), {"version": plan.version})
+    pinned = plan_services.latest_revision(plan)
+    assert pinned.number == 2
+    response = fitter_client.get(reverse("fittings:revision_detail", args=[plan.pk, 2]))
+    html = response.content.decode()
+    head = re.search(r'id="levels-heading".*?</thead>', html, re.S).group(0)
+    assert re.findall(r'<th scope="col">([^<]+)</th>', head) == [
+        "Level", "Body", "Ease", "Lacing gap", "Target", "Pattern", "Difference", "Seams give", "Pins", "Left over"]
+    result = plan_services.revision_result(pinned)
+    waist = next(lv for lv in result.levels if lv.level == "waist")
+    row = re.search(r"<tr><th scope=\"row\">Waist.*?</tr>", html, re.S).group(0)
+    cells = re.findall(r"<td>([^<]*)</td>", row)
+    # The 2 in gap; 1/2 in pinned on one body half is 1 in of the whole girth.
+    assert cells[2] == "2" and cells[7] == "-1"
+    edges = sum(s.shift_mm for s in result.shifts if s.level == "waist")
+    assert 2 * edges == pytest.approx(waist.allotted + waist.centre_front + waist.pinned, abs=1e-6)
