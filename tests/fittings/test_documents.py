@@ -32,6 +32,7 @@ from fittings.documents import (
     document_data, render_cutting_sheet, render_work_order, work_order_pdf,
 )
 from fittings.models import MeasurementSession, PrintJob, RevisionStatus
+from fittings.wording import in_unit
 from fittings.services import plans as plan_services
 from fittings.tasks import run_print_job
 from patterns.core.allot import allot
@@ -306,7 +307,7 @@ def test_it_shows_the_breathing_caution_for_a_strong_reduction(pdfs, strong):
     for text in (flat(text_of(pdfs("work_order", "strong", "a4"))), flat(notes)):
         assert flat(WAIST_REDUCTION_CAUTION) in text
         assert "restricts breathing" in text
-        assert flat(finding.message) in text
+        assert flat(in_unit(finding.message, strong.unit)) in text  # in the plan's unit (inches here)
 
 
 def test_it_shows_the_waist_caution_for_any_reduction_and_not_without_one(pdfs, gentle):
