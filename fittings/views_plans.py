@@ -393,14 +393,34 @@ def _checks_response(request, block, result, unit):
     rows = [
         {
             "seam": t.seam, "front": t.front_panel, "back": t.back_panel,
+            "front_base": format_length(t.front_base_mm, unit), "back_base": format_length(t.back_base_mm, unit),
             "front_after": format_length(t.front_after_mm, unit), "back_after": format_length(t.back_after_mm, unit),
             "difference": format_length(t.after_difference_mm, unit, signed=True),
-            "change": format_length(t.change_mm, unit, signed=True), "ok": t.within_tolerance, "end": t.end,
+            "words": _truing_words(t, unit), "ok": t.within_tolerance,
         }
         for t in pattern.seams
     ]
-    return render(request, "fittings/_seam_checks.html",
-                  {"rows": rows, "findings": findings_for_screen(pattern.findings, unit), "unit": unit})
+    return render(request, "fittings/_seam_checks.html", {
+        "rows": rows, "findings": findings_for_screen(pattern.findings, unit), "unit": unit,
+        "tolerance": in_unit("1/8 in (3.2 mm)", unit) if unit == "cm" else "1/8 in",
+    })
+
+
+def _longer(front: str, back: str, difference_mm: float, unit: str) -> str:
+    amount = format_with_unit(abs(difference_mm), unit)
+    if format_length(difference_mm, unit) in ("0", "0.0"):
+        return "the two edges are the same length"
+    return f"the {front} edge is {amount} {'longer' if difference_mm > 0 else 'shorter'} than the {back} edge"
+
+
+def _truing_words(t, unit: str) -> str:
+    """What a seam's two edges do, in words: before and after, and what to do about it."""
+    after = _longer(t.front_panel, t.back_panel, t.after_difference_mm, unit)
+    before = _longer(t.front_panel, t.back_panel, t.base_difference_mm, unit)
+    text = f"Now {after}" + ("" if before == after else f" (drafted: {before})") + "."
+    if t.within_tolerance:
+        return text + " Within tolerance: no truing needed."
+    return text + f" Walk the seam and true it at the {t.end}."
 
 
 @require_GET

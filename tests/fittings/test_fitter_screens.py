@@ -151,3 +151,23 @@ def test_it_shows_pins_and_lacing_gap_so_the_girth_table_adds_up(fitter_client, 
     assert cells[2] == "2" and cells[7] == "-1"
     edges = sum(s.shift_mm for s in result.shifts if s.level == "waist")
     assert 2 * edges == pytest.approx(waist.allotted + waist.centre_front + waist.pinned, abs=1e-6)
+
+
+def test_it_words_the_seam_checks_with_both_edges_before_and_after(fitter_client, plan):
+    revision = plan_services.latest_revision(plan)
+    html = fitter_client.get(reverse("fittings:revision_checks", args=[plan.pk, revision.number])).content.decode()
+    head = re.search(r"<thead>(.*?)</thead>", html, re.S).group(1)
+    headings = re.findall(r'<th scope="col">([^<]*)</th>', head)
+    assert all(h.strip() for h in headings) and "Changed by" not in headings
+    assert ">true<" not in html
+    from fittings import previews
+
+    values, block, _ = plan_services.revision_inputs(revision)
+    t = previews.altered_for(block, plan_services.revision_result(revision)).seams[0]
+    from patterns.core.units import format_length as fl
+
+    row = re.search(rf'<th scope="row">{re.escape(t.seam)}</th>(.*?)</tr>', html, re.S).group(1)
+    assert f"{t.front_panel}: {fl(t.front_base_mm, 'in')} → {fl(t.front_after_mm, 'in')}" in row
+    assert f"{t.back_panel}: {fl(t.back_base_mm, 'in')} → {fl(t.back_after_mm, 'in')}" in row
+    assert re.search(r"Now the .* edge is .* in (longer|shorter) than|Now the two edges are the same length", row)
+    assert "mm" not in html
