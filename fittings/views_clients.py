@@ -166,14 +166,35 @@ def compare(request, client_pk):
     """
     client = _client(client_pk)
     a, b = request.GET.get("a", ""), request.GET.get("b", "")
+    choices = _compare_choices(selectors.client_timeline(client))
+    if not (a or b):
+        # The chooser: the two newest sessions preselected, older first.
+        sessions = [value for value, _ in choices if value.startswith("s")]
+        a, b = (sessions[1], sessions[0]) if len(sessions) > 1 else ("", sessions[0] if sessions else "")
+        return render(request, "fittings/compare.html", {"client": client, "choices": choices, "a": a, "b": b})
     try:
         comparison = selectors.comparison(client, a, b)
     except selectors.NotComparable as exc:
-        timeline = selectors.client_timeline(client)
         return render(request, "fittings/compare.html", {
-            "client": client, "error": str(exc), "timeline": timeline,
-        }, status=400 if (a or b) else 200)
-    return render(request, "fittings/compare.html", {"client": client, "comparison": comparison})
+            "client": client, "error": str(exc), "choices": choices, "a": a, "b": b,
+        }, status=400)
+    return render(request, "fittings/compare.html",
+                  {"client": client, "comparison": comparison, "choices": choices, "a": a, "b": b})
+
+
+def _compare_choices(timeline):
+    """(value, words) for every session and revision of the client, newest first."""
+    from django.utils.formats import date_format
+
+    out = []
+    for item in timeline:
+        if item.kind == "session":
+            s = item.obj
+            out.append((f"s{s.pk}", f"Readings of {date_format(s.taken_on)} ({s.get_kind_display().lower()})"))
+        else:
+            for r in item.obj.revisions.all():
+                out.append((f"r{r.pk}", f"{item.obj.garment}, revision {r.number} ({r.get_status_display().lower()})"))
+    return out
 
 
 @require_POST

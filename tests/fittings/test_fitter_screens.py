@@ -171,3 +171,37 @@ def test_it_words_the_seam_checks_with_both_edges_before_and_after(fitter_client
     assert f"{t.back_panel}: {fl(t.back_base_mm, 'in')} → {fl(t.back_after_mm, 'in')}" in row
     assert re.search(r"Now the .* edge is .* in (longer|shorter) than|Now the two edges are the same length", row)
     assert "mm" not in html
+
+
+def test_it_does_not_call_a_change_below_the_tapes_step_a_change(fitter_client, fitter_user, reducing_client):
+    from fittings.services import clients as client_services
+    from decimal import Decimal
+
+    first = reducing_client.sessions.order_by("taken_on").first()
+    values = {m.code: m.value_mm for m in first.measurements.all()}
+    nudged = {**values, "waist_girth": values["waist_girth"] + Decimal("0.4")}  # 0.4 mm: under 1/16 in (1.5875 mm)
+    second = client_services.record_session(
+        client=reducing_client, user=fitter_user, values=nudged,
+        form_data={"taken_on": first.taken_on, "kind": "check", "unit": "in", "posture_notes": "", "notes": ""},
+    )
+    html = fitter_client.get(reverse("fittings:compare", args=[reducing_client.pk]),
+                             {"a": f"s{first.pk}", "b": f"s{second.pk}"}).content.decode()
+    assert '<tr class=""><th scope="row">Waist girth</th>' in html
+    assert 'class="differs"' not in html
+    day = first.taken_on
+    assert f"{day.day} {day:%b %Y}" in html and day.isoformat() not in html  # 2 Dec 2026, as everywhere else
+
+
+def test_it_opens_the_compare_chooser_with_two_different_choices_and_no_error(fitter_client, reducing_client):
+    page = fitter_client.get(reverse("fittings:client_detail", args=[reducing_client.pk])).content.decode()
+    chooser = reverse("fittings:compare", args=[reducing_client.pk])
+    assert f'href="{chooser}">Compare any two' in page
+    response = fitter_client.get(chooser)
+    html = response.content.decode()
+    assert response.status_code == 200 and "error-box" not in html
+    first = re.search(r'<select name="a".*?</select>', html, re.S).group(0)
+    second = re.search(r'<select name="b".*?</select>', html, re.S).group(0)
+    picked = [re.search(r'value="([^"]+)" selected', part).group(1) for part in (first, second)]
+    assert picked[0] != picked[1]
+    response = fitter_client.get(chooser, {"a": picked[0], "b": picked[1]})
+    assert response.status_code == 200 and "Measurements" in response.content.decode()
