@@ -5,6 +5,8 @@ from django.http import Http404, HttpResponse
 from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import reverse
 from django.utils.http import urlencode
+from django.utils.csp import CSP
+from django.views.decorators.csp import csp_override
 from django.views.decorators.http import require_GET, require_POST
 
 from atelier.roles import FITTER, OWNER, ROLES, role_required
@@ -152,8 +154,18 @@ def plan_recompute(request, pk):
     return _plan_page(request, plan, latest, form, block, values, result, options=form.options())
 
 
+# The preview opened on its own (a long press, "open image") is an SVG document: its drawing is styled by its
+# own <style> and style attributes, which the site's policy (style-src 'self') would block, leaving a black
+# shape.  Its response alone allows inline styles; it may run no script and load nothing.
+SVG_CSP = {
+    "default-src": [CSP.NONE], "style-src": [CSP.UNSAFE_INLINE], "img-src": ["data:"], "font-src": [CSP.NONE],
+    "script-src": [CSP.NONE], "base-uri": [CSP.NONE], "form-action": [CSP.NONE], "frame-ancestors": [CSP.SELF],
+}
+
+
 @require_GET
 @role_required(*ROLES)
+@csp_override(SVG_CSP)
 def plan_preview(request, pk):
     """The panel preview for the values in the query string (the live form), as SVG; cached by input."""
     block, result = _live_result(request, pk)
@@ -260,6 +272,7 @@ def revision_detail(request, pk, number):
 
 @require_GET
 @role_required(*ROLES)
+@csp_override(SVG_CSP)
 def revision_preview(request, pk, number):
     block, result = _saved_result(pk, number)
     return _svg_response(*previews.preview_lookup(block, result, result.unit))

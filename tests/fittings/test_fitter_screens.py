@@ -205,3 +205,18 @@ def test_it_opens_the_compare_chooser_with_two_different_choices_and_no_error(fi
     assert picked[0] != picked[1]
     response = fitter_client.get(chooser, {"a": picked[0], "b": picked[1]})
     assert response.status_code == 200 and "Measurements" in response.content.decode()
+
+
+def test_it_serves_the_preview_so_it_renders_opened_alone(fitter_client, plan):
+    revision = plan_services.latest_revision(plan)
+    for url in (reverse("fittings:revision_preview", args=[plan.pk, revision.number]),
+                reverse("fittings:plan_preview", args=[plan.pk])):
+        response = fitter_client.get(url)
+        assert response.status_code == 200 and response["Content-Type"] == "image/svg+xml"
+        svg = response.content.decode()
+        assert "<style" in svg or 'style="' in svg  # the drawing is styled inline
+        policy = dict(part.strip().split(" ", 1) for part in response["Content-Security-Policy"].split(";") if part.strip())
+        assert "'unsafe-inline'" in policy["style-src"]
+        assert policy["script-src"] == "'none'" and policy["default-src"] == "'none'"
+    page = fitter_client.get(reverse("fittings:plan_edit", args=[plan.pk]))
+    assert "'unsafe-inline'" not in page["Content-Security-Policy"]  # only the picture's own response
