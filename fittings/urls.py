@@ -28,5 +28,7 @@ urlpatterns = [
     path("plans/<int:pk>/revisions/<int:number>/pins/", views_plans.revision_pins, name="revision_pins"),
     path("plans/<int:pk>/revisions/<int:number>/pins/apply/", views_plans.revision_apply_pins, name="revision_apply_pins"),
     path("photos/<int:pk>/", views.photo_file, name="photo_file"),
+    path("photos/<int:pk>/delete/", views.photo_delete, name="photo_delete"),
+    path("photos/<int:pk>/replace/", views.photo_replace, name="photo_replace"),
     path("", include("fittings.urls_print")),
 ]

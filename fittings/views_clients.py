@@ -95,9 +95,12 @@ def session_edit(request, pk):
 
 def _session_page(request, client, form, previous, session, status, conflict=None):
     notes = _notes(form, previous)
+    # A chosen file cannot be put back into a file input: when the form comes back, say which photos to choose again.
+    lost = [form.fields[name].label.removesuffix(" photo").lower() for name in request.FILES
+            if name.startswith("photo_") and name in form.fields] if form.is_bound and status != 200 else []
     context = {
         "client": client, "form": form, "session": session, "previous": previous, "conflict": conflict,
-        "notes": notes, "advice": _advice(notes),
+        "notes": notes, "advice": _advice(notes), "lost_photos": lost,
     }
     return render(request, "fittings/session_form.html", context, status=status)
 

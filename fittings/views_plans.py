@@ -244,7 +244,7 @@ def _plan_page(request, plan, latest, form, block, values, result, status=200, c
         context["checks_url"] = reverse("fittings:revision_checks", args=[plan.pk, latest.number])
     context.update({
         "client": plan.client, "session": plan.session, "latest": latest, "conflict": conflict,
-        "can_edit": _can_edit(request.user), "values": values,
+        "can_edit": _can_edit(request.user), "values": values, "photos": plan.session.photos.all(),
         "ease_fields": form.ease_fields(), "problems": _problems(form, block) if form.is_bound else [],
         "bust_span_text": format_with_unit(values["bust_span"], options.unit) if values.get("bust_span") else "",
     })

@@ -220,3 +220,44 @@ def test_it_serves_the_preview_so_it_renders_opened_alone(fitter_client, plan):
         assert policy["script-src"] == "'none'" and policy["default-src"] == "'none'"
     page = fitter_client.get(reverse("fittings:plan_edit", args=[plan.pk]))
     assert "'unsafe-inline'" not in page["Content-Security-Policy"]  # only the picture's own response
+
+
+def _jpeg(size=(640, 960)):
+    from tests.security.conftest import jpeg_bytes
+
+    return jpeg_bytes(size)
+
+
+def test_it_says_which_photos_to_choose_again_when_the_session_form_comes_back(fitter_client, reducing_client):
+    from django.core.files.uploadedfile import SimpleUploadedFile
+
+    data = {"taken_on": "2026-11-30", "kind": "first", "unit": "in", "bust_girth": "abc", "done": "1",
+            "photo_back": SimpleUploadedFile("back.jpg", _jpeg())}
+    response = fitter_client.post(reverse("fittings:session_new", args=[reducing_client.pk]), data)
+    assert response.status_code == 400
+    html = response.content.decode()
+    assert re.search(r'id="photos-lost">The back photo you chose was not kept, because nothing was saved', html)
+
+
+def test_it_shows_the_photos_large_on_the_plan_page_with_delete_and_replace(fitter_client, plan):
+    from django.core.files.base import ContentFile
+    from django.core.files.uploadedfile import SimpleUploadedFile
+
+    from fittings.models import Photo
+
+    photo = Photo.objects.create(session=plan.session, view="back", image=ContentFile(_jpeg(), name="b.jpg"))
+    url = reverse("fittings:plan_edit", args=[plan.pk])
+    html = fitter_client.get(url).content.decode()
+    card = re.search(r'<section class="card photos-card".*?</section>', html, re.S).group(0)
+    assert f'src="{reverse("fittings:photo_file", args=[photo.pk])}"' in card and 'width="120"' not in card
+    assert reverse("fittings:photo_replace", args=[photo.pk]) in card and reverse("fittings:photo_delete", args=[photo.pk]) in card
+    assert "<form" not in re.search(r'id="plan-form".*?</form>', html, re.S).group(0)[10:]  # no form inside the plan form
+
+    replaced = fitter_client.post(reverse("fittings:photo_replace", args=[photo.pk]),
+                                  {"image": SimpleUploadedFile("new.jpg", _jpeg((500, 700))), "next": url})
+    assert replaced.status_code == 302 and replaced["Location"] == url
+    new = Photo.objects.get(session=plan.session, view="back")
+    assert new.pk != photo.pk
+    deleted = fitter_client.post(reverse("fittings:photo_delete", args=[new.pk]), {"next": "https://elsewhere.example/"})
+    assert deleted.status_code == 302 and deleted["Location"] == reverse("fittings:session_edit", args=[plan.session.pk])
+    assert not Photo.objects.filter(session=plan.session).exists()

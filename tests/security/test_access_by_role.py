@@ -86,6 +86,9 @@ RULES = {
     "fittings:revision_apply_pins": Rule(REV1, {**POST_ONLY, "POST": editors(302)}),
     # Photos of clients' bodies: fitters and the owner only.
     "fittings:photo_file": Rule(lambda w: {"pk": w.photo.pk}, {"GET": editors(200)}),
+    "fittings:photo_replace": Rule(lambda w: {"pk": w.photo.pk}, {**POST_ONLY, "POST": editors(400)}),  # no file sent
+    # The fitter deletes the photo; the owner, asking next for the same one, finds it gone.
+    "fittings:photo_delete": Rule(lambda w: {"pk": w.photo.pk}, {**POST_ONLY, "POST": {WORKROOM: 403, FITTER: 302, OWNER: 404}}),
     # Printing: the workroom prints issued revisions.
     "fittings:print_start": Rule(lambda w: {"plan_id": w.plan.pk, "number": 1}, {"GET": all_roles(200), "POST": all_roles(400)}),
     "fittings:print_status": Rule(lambda w: {"job_id": w.job.pk}, READ),

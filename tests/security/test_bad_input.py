@@ -185,6 +185,12 @@ CASES = [
     Case("photo-pixel-bomb", "post", u("fittings:session_new", CLIENT), photo(png_claiming(30_000, 30_000), "f.png"), words="too many pixels"),
     Case("photo-cut-off", "post", u("fittings:session_new", CLIENT), photo(lambda: jpeg_bytes((300, 200))[:250]), words="damaged"),
     Case("photo-svg", "post", u("fittings:session_new", CLIENT), photo(b"<svg xmlns='http://www.w3.org/2000/svg'/>", "f.svg"), words="not a photo"),
+    Case("photo-replace-not-a-picture", "post", u("fittings:photo_replace", lambda w: w.photo.pk),
+         lambda w: {"image": SimpleUploadedFile("x.jpg", b"<?php echo 1; ?>" * 20)}, words="not a photo that can be read"),
+    Case("photo-replace-nothing-chosen", "post", u("fittings:photo_replace", lambda w: w.photo.pk), lambda w: {},
+         words="Choose the new photo"),
+    Case("photo-replace-that-does-not-exist", "post", u("fittings:photo_replace", TOO_BIG), lambda w: {}, status=404),
+    Case("photo-delete-that-does-not-exist", "post", u("fittings:photo_delete", TOO_BIG), lambda w: {}, status=404),
     # --- a new plan ----------------------------------------------------------------------------
     Case("plan-garment-empty", "post", u("fittings:plan_new", SESSION), lambda w: {"garment": "", "base_pattern": w.plan.base_pattern_id}, words="This field is required"),
     Case("plan-garment-too-long", "post", u("fittings:plan_new", SESSION), lambda w: {"garment": "g" * 201, "base_pattern": w.plan.base_pattern_id}, words="at most 200"),
