@@ -43,7 +43,7 @@ def in_unit(text: str, unit: str) -> str:
 
 # The finding's kind in words, where a short name is wanted (a mark on the picture).
 SHORT_WORDS = {
-    "override_exceeds_difference": "fixed by hand: more than needed",
+    "override_exceeds_difference": "fixed by hand",
     "edge_over_cap": "beyond the edge's limit",
     "level_locked": "no seam may move here",
     "residual_over_step": "girth left over",

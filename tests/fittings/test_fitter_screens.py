@@ -261,3 +261,31 @@ def test_it_shows_the_photos_large_on_the_plan_page_with_delete_and_replace(fitt
     deleted = fitter_client.post(reverse("fittings:photo_delete", args=[new.pk]), {"next": "https://elsewhere.example/"})
     assert deleted.status_code == 302 and deleted["Location"] == reverse("fittings:session_edit", args=[plan.session.pk])
     assert not Photo.objects.filter(session=plan.session).exists()
+
+
+def test_it_marks_a_hand_fixed_cell_on_its_own_panel_in_words_below_the_edge_labels(plan):
+    from fittings import previews
+    from fittings.forms import PlanOptionsForm
+    from patterns.core.preview import SHIFT_FONT_PT, build_figure
+
+    revision = plan_services.latest_revision(plan)
+    values, block, options = plan_services.revision_inputs(revision)
+    side = next(i for i, s in enumerate(block.seams) if s.kind == "side")
+    form = PlanOptionsForm(_inch_plan_with_a_heavy_fixed_cell(plan), block=block, unit="in")
+    assert form.is_valid(), form.errors
+    result = plan_services.compute(block, values, form.options())
+    assert any(f.code == "override_exceeds_difference" for f in result.findings)
+    markers = [m for m in previews.preview_markers(block, result) if m[1] == "waist"]
+    fixed_panel = block.seams[side].front_panel
+    assert (fixed_panel, "waist", "fixed by hand") in markers
+    assert not [m for m in markers if "_" in m[2]]  # words, never codes
+
+    pattern = previews.altered_for(block, result)
+    fig, labels = build_figure(block, result.alteration(block), markers, "in", pattern=pattern)
+    words = [t for t in fig.axes[0].texts if (t.get_gid() or "").startswith("finding-marker-label")]
+    waist_y = pattern.level_y["waist"]
+    label_height = SHIFT_FONT_PT / 72 * 80.0  # 9 pt at 80 mm of pattern to the figure inch
+    hanging = [lb for lb in labels if lb.va == "top" and abs(lb.y - (waist_y + 1.5)) < 1e-6]
+    assert hanging and words
+    for text in words:
+        assert text.get_position()[1] >= max(lb.y for lb in hanging) + label_height  # below, not over, the amounts
