@@ -15,7 +15,7 @@ from fittings.forms import NewPlanForm, PinForm, PlanOptionsForm, cell_name
 from fittings.models import MeasurementSession, Plan, PlanRevision
 from fittings.services import plans as plan_services
 from fittings.tables import plan_table
-from fittings.wording import findings_for_screen, in_unit
+from fittings.wording import findings_for_screen, import_refusal, in_unit
 from patterns.core.measures import LEVEL_LABELS
 from patterns.core.report import direction
 from patterns.core.units import format_length, format_with_unit
@@ -374,7 +374,8 @@ def fitting_import(request, client_pk):
     from fittings.models import Client
 
     client = get_object_or_404(Client.objects, pk=client_pk)  # not a client removed from the lists
-    error = None
+    error = other = None
+    garment = ""
     if request.method == "POST":
         upload = request.FILES.get("file")
         garment = (request.POST.get("garment") or "").strip()
@@ -390,15 +391,35 @@ def fitting_import(request, client_pk):
             except UnicodeDecodeError:
                 error = "The file is not text (UTF-8); a fitting file is JSON."
             else:
-                try:
-                    plan = plan_services.import_fitting(client=client, text=text, user=request.user, garment=garment)
-                except plan_services.ImportRefused as exc:
-                    error = f"{exc.field}: {exc.message}"
+                made_for = _file_client(text)
+                if made_for and made_for != client.reference and not request.POST.get("other_client"):
+                    other = made_for
+                    error = (f"This fitting file was made for client {made_for}, not {client.reference}. "
+                             f"Nothing was imported. To take its readings into {client.reference}'s record anyway, "
+                             "tick the box below and choose the file again.")
                 else:
-                    messages.success(request, "Fitting file imported as a new session and plan.")
-                    return redirect("fittings:plan_edit", plan.pk)
-        return render(request, "fittings/fitting_import.html", {"client": client, "error": error}, status=400)
+                    try:
+                        plan = plan_services.import_fitting(client=client, text=text, user=request.user, garment=garment)
+                    except plan_services.ImportRefused as exc:
+                        error = import_refusal(exc.field, exc.message)
+                    else:
+                        messages.success(request, "Fitting file imported as a new session and plan.")
+                        return redirect("fittings:plan_edit", plan.pk)
+        return render(request, "fittings/fitting_import.html",
+                      {"client": client, "error": error, "other": other, "garment": garment}, status=400)
     return render(request, "fittings/fitting_import.html", {"client": client})
+
+
+def _file_client(text: str) -> str:
+    """The client reference a fitting file says it was made for ("" when it says none or cannot be read)."""
+    import json
+
+    try:
+        about = json.loads(text).get("about") or {}
+    except (ValueError, AttributeError, RecursionError):
+        return ""
+    made_for = about.get("client") if isinstance(about, dict) else None
+    return made_for.strip()[:100] if isinstance(made_for, str) else ""
 
 
 def _checks_response(request, block, result, unit):

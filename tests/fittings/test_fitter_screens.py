@@ -289,3 +289,34 @@ def test_it_marks_a_hand_fixed_cell_on_its_own_panel_in_words_below_the_edge_lab
     assert hanging and words
     for text in words:
         assert text.get_position()[1] >= max(lb.y for lb in hanging) + label_height  # below, not over, the amounts
+
+
+def test_it_warns_before_importing_another_clients_fitting_file(fitter_client, plan, demo_atelier):
+    from django.core.files.uploadedfile import SimpleUploadedFile
+
+    from fittings.models import Client, Plan
+
+    exported = fitter_client.get(reverse("fittings:revision_fitting_file", args=[plan.pk, 1])).content
+    other = Client.objects.get(reference="WF-0101")
+    url = reverse("fittings:fitting_import", args=[other.pk])
+    before = Plan.objects.count()
+    refused = fitter_client.post(url, {"file": SimpleUploadedFile("f.json", exported), "garment": "Copy"})
+    html = refused.content.decode()
+    assert refused.status_code == 400 and Plan.objects.count() == before
+    assert f"This fitting file was made for client {plan.client.reference}, not WF-0101" in html
+    assert 'name="other_client"' in html and 'value="Copy"' in html
+    taken = fitter_client.post(url, {"file": SimpleUploadedFile("f.json", exported), "garment": "Copy", "other_client": "1"})
+    assert taken.status_code == 302 and Plan.objects.get(garment="Copy").client == other
+
+
+@pytest.mark.parametrize("content", [b'{"format": "atelier-fitting",', b"[" * 5000 + b"]" * 5000, b'{"measurements": 3}'])
+def test_it_says_plainly_that_a_broken_file_cannot_be_read(fitter_client, plan, content):
+    from django.core.files.uploadedfile import SimpleUploadedFile
+
+    response = fitter_client.post(reverse("fittings:fitting_import", args=[plan.client.pk]),
+                                  {"file": SimpleUploadedFile("f.json", content)})
+    error = re.search(r'id="import-error">(.*?)</div>', response.content.decode(), re.S).group(1)
+    assert response.status_code == 400
+    assert "Export the fitting file again" in error
+    for raw in ("Expecting", "char ", "line 1 column", "JSON:", "is not of type", "required property", "'"):
+        assert raw not in error.replace("&#x27;", "'"), error
