@@ -6,6 +6,7 @@ app_name = "fittings"
 
 urlpatterns = [
     path("", views.client_list, name="client_list"),
+    path("workroom/", views.workroom_queue, name="workroom_queue"),
     path("clients/new/", views_clients.client_new, name="client_new"),
     path("clients/<int:pk>/", views_clients.client_detail, name="client_detail"),
     path("clients/<int:pk>/delete/", views_clients.client_delete, name="client_delete"),

@@ -8,7 +8,7 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.utils.http import url_has_allowed_host_and_scheme
 from django.views.decorators.http import require_POST
 
-from atelier.roles import FITTER, OWNER, ROLES, role_required
+from atelier.roles import FITTER, OWNER, ROLES, WORKROOM, role_of, role_required
 from fittings import selectors
 from fittings.forms import PhotoField
 from fittings.models import Photo
@@ -18,7 +18,15 @@ CLIENTS_PER_PAGE = 25
 
 
 @role_required(*ROLES)
+def workroom_queue(request):
+    """Issued revisions to cut, newest first: the workroom's page (no contact details, no drafts)."""
+    return render(request, "fittings/workroom_queue.html", {"queue": selectors.workroom_queue()})
+
+
+@role_required(*ROLES)
 def client_list(request):
+    if role_of(request.user) == WORKROOM:
+        return redirect("fittings:workroom_queue")  # the client list (names and contacts) is for fitters
     # NUL cannot be stored or searched for in PostgreSQL text; it is never part of a name.
     query = request.GET.get("q", "").replace("\x00", "").strip()[:100]
     matches = selectors.client_search(query)

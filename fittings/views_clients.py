@@ -33,7 +33,9 @@ def client_new(request):
     return render(request, "fittings/client_form.html", {"form": ClientForm()})
 
 
-@role_required(*ROLES)
+# Contact details and the whole history (drafts included) are for the owner and fitters; the workroom
+# has its queue of issued revisions (fittings.views.workroom_queue).
+@role_required(*EDITORS)
 def client_detail(request, pk):
     """The client's timeline: sessions and plans, newest first."""
     client = _client(pk)
@@ -161,7 +163,7 @@ def session_convert(request, client_pk):
                   {"form": form, "client": client, "notes": notes, "advice": _advice(notes)})
 
 
-@role_required(*ROLES)
+@role_required(*EDITORS)
 def compare(request, client_pk):
     """Two sessions or two revisions of one client side by side, differences marked.
 

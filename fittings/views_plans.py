@@ -1,6 +1,7 @@
 """Plans at the fitting: choose a base pattern, set ease, watch the allotments change, save, issue, pin."""
 
 from django.contrib import messages
+from django.core.exceptions import PermissionDenied
 from django.http import Http404, HttpResponse
 from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import reverse
@@ -9,7 +10,7 @@ from django.utils.csp import CSP
 from django.views.decorators.csp import csp_override
 from django.views.decorators.http import require_GET, require_POST
 
-from atelier.roles import FITTER, OWNER, ROLES, role_required
+from atelier.roles import FITTER, OWNER, ROLES, WORKROOM, role_of, role_required
 from fittings import previews, selectors
 from fittings.forms import NewPlanForm, PinForm, PlanOptionsForm, cell_name
 from fittings.models import MeasurementSession, Plan, PlanRevision
@@ -45,10 +46,13 @@ def _plan_and_latest(pk, page=True):
     return found
 
 
-def _revision(plan, number):
+def _revision(plan, number, user=None):
     # Inputs and result stay in the database unless the decoded copy is missing (selectors.revision_inputs).
-    return get_object_or_404(PlanRevision.objects.defer("inputs", "result").prefetch_related("pins"),
-                             plan=plan, number=number)
+    revision = get_object_or_404(PlanRevision.objects.defer("inputs", "result").prefetch_related("pins"),
+                                 plan=plan, number=number)
+    if user is not None and revision.status != "issued" and role_of(user) == WORKROOM:
+        raise PermissionDenied("This revision is a draft: the workroom sees a revision once it is issued.")
+    return revision
 
 
 @role_required(*EDITORS)
@@ -105,6 +109,12 @@ def _int(value):
 def plan_edit(request, pk):
     """The live plan: options on the left, the allotment table and preview on the right."""
     plan, latest = _plan_and_latest(pk)
+    if role_of(request.user) == WORKROOM and request.method != "POST":
+        # The workroom cuts from issued revisions; the live plan (a draft in the making) is not for it.
+        issued = plan.revisions.filter(status="issued").order_by("-number").values_list("number", flat=True).first()
+        if issued is None:
+            raise PermissionDenied("Nothing of this plan is issued to the workroom yet.")
+        return redirect("fittings:revision_detail", plan.pk, issued)
     values, block, options = selectors.revision_inputs(latest)
     unit = options.unit
     can_edit = _can_edit(request.user)
@@ -164,7 +174,7 @@ SVG_CSP = {
 
 
 @require_GET
-@role_required(*ROLES)
+@role_required(*EDITORS)
 @csp_override(SVG_CSP)
 def plan_preview(request, pk):
     """The panel preview for the values in the query string (the live form), as SVG; cached by input."""
@@ -255,16 +265,19 @@ def _plan_page(request, plan, latest, form, block, values, result, status=200, c
 def revision_detail(request, pk, number):
     """One saved revision, read-only: what the workroom cuts from."""
     plan = _plan(pk)
-    revision = _revision(plan, number)
+    revision = _revision(plan, number, request.user)
     values, block, options = selectors.revision_inputs(revision)
     result = selectors.revision_result(revision)
+    workroom = role_of(request.user) == WORKROOM
+    revisions = plan.revisions.defer("inputs", "result").order_by("-number")
     context = {
+        "workroom": workroom,
         "plan": plan, "client": plan.client, "revision": revision, "block": block, "result": result,
         "table": plan_table(block, result), "unit": options.unit, "options": options, "values": values,
         "preview_url": reverse("fittings:revision_preview", args=[plan.pk, revision.number]),
         "checks_url": reverse("fittings:revision_checks", args=[plan.pk, revision.number]),
         "can_edit": _can_edit(request.user),
-        "revisions": plan.revisions.defer("inputs", "result").order_by("-number"),
+        "revisions": revisions.filter(status="issued") if workroom else revisions,
         "latest_session": plan.client.sessions.order_by("-taken_on", "-id").first(),
     }
     return render(request, "fittings/revision_detail.html", context)
@@ -274,13 +287,13 @@ def revision_detail(request, pk, number):
 @role_required(*ROLES)
 @csp_override(SVG_CSP)
 def revision_preview(request, pk, number):
-    block, result = _saved_result(pk, number)
+    block, result = _saved_result(pk, number, request.user)
     return _svg_response(*previews.preview_lookup(block, result, result.unit))
 
 
-def _saved_result(pk, number):
+def _saved_result(pk, number, user=None):
     """A saved revision's block and stored allotment (never recomputed)."""
-    revision = _revision(_plan(pk), number)
+    revision = _revision(_plan(pk), number, user)
     return selectors.revision_inputs(revision)[1], selectors.revision_result(revision)
 
 
@@ -359,7 +372,7 @@ def revision_fitting_file(request, pk, number):
     import json
 
     plan = _plan(pk)
-    revision = _revision(plan, number)
+    revision = _revision(plan, number, request.user)
     response = HttpResponse(json.dumps(revision.inputs, indent=2), content_type="application/json")
     response["Content-Disposition"] = f'attachment; filename="{plan.client.reference}-plan{plan.pk}-rev{number}.json"'
     return response
@@ -458,7 +471,7 @@ def _truing_words(t, unit: str) -> str:
 
 
 @require_GET
-@role_required(*ROLES)
+@role_required(*EDITORS)
 def plan_checks(request, pk):
     """Seam truing and outline checks for the live form's values (asked for after the table)."""
     block, result = _live_result(request, pk)
@@ -468,5 +481,5 @@ def plan_checks(request, pk):
 @require_GET
 @role_required(*ROLES)
 def revision_checks(request, pk, number):
-    block, result = _saved_result(pk, number)
+    block, result = _saved_result(pk, number, request.user)
     return _checks_response(request, block, result, result.unit)

@@ -320,3 +320,26 @@ def test_it_says_plainly_that_a_broken_file_cannot_be_read(fitter_client, plan, 
     assert "Export the fitting file again" in error
     for raw in ("Expecting", "char ", "line 1 column", "JSON:", "is not of type", "required property", "'"):
         assert raw not in error.replace("&#x27;", "'"), error
+
+
+def test_it_gives_the_workroom_a_queue_of_issued_revisions_and_no_contacts_or_drafts(workroom_client, fitter_user, plan):
+    issued = plan_services.issue_revision(revision=plan_services.latest_revision(plan), user=fitter_user)
+    draft = plan_services.save_revision(plan=plan, options=plan_services.revision_inputs(issued)[2], user=fitter_user,
+                                        expected_version=plan.version)
+    assert workroom_client.get(reverse("fittings:client_list"))["Location"] == reverse("fittings:workroom_queue")
+    html = workroom_client.get(reverse("fittings:workroom_queue")).content.decode()
+    assert f'href="{reverse("fittings:revision_detail", args=[plan.pk, issued.number])}"' in html
+    assert f'revisions/{draft.number}/' not in html
+    assert plan.client.contact not in html and "To cut" in html
+    assert workroom_client.get(reverse("fittings:client_detail", args=[plan.client.pk])).status_code == 403
+    refused = workroom_client.get(reverse("fittings:revision_detail", args=[plan.pk, draft.number]))
+    assert refused.status_code == 403 and "is a draft" in refused.content.decode()
+    printing = workroom_client.get(reverse("fittings:print_start", args=[plan.pk, draft.number]))
+    assert printing.status_code == 403 and "once it is issued" in printing.content.decode()
+    assert reverse("fittings:workroom_queue") in printing.content.decode()  # not a dead end
+    # The live plan page (editable cells) sends the workroom to the issued revision, read-only.
+    sent = workroom_client.get(reverse("fittings:plan_edit", args=[plan.pk]))
+    assert sent.status_code == 302 and sent["Location"] == reverse("fittings:revision_detail", args=[plan.pk, issued.number])
+    page = workroom_client.get(sent["Location"]).content.decode()
+    assert "<input" not in re.search(r'id="edges-heading".*?</section>', page, re.S).group(0)
+    assert plan.client.contact not in page
