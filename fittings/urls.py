@@ -9,6 +9,7 @@ urlpatterns = [
     path("workroom/", views.workroom_queue, name="workroom_queue"),
     path("clients/new/", views_clients.client_new, name="client_new"),
     path("clients/<int:pk>/", views_clients.client_detail, name="client_detail"),
+    path("clients/<int:pk>/edit/", views_clients.client_edit, name="client_edit"),
     path("clients/<int:pk>/delete/", views_clients.client_delete, name="client_delete"),
     path("clients/<int:client_pk>/sessions/new/", views_clients.session_new, name="session_new"),
     path("clients/<int:client_pk>/sessions/check/", views_clients.session_check, name="session_check"),

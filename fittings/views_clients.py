@@ -23,6 +23,19 @@ def _client(pk):
 
 
 @role_required(*EDITORS)
+def client_edit(request, pk):
+    client = _client(pk)
+    if request.method == "POST":
+        form = ClientForm(request.POST, instance=client)
+        if form.is_valid():
+            client_services.update_client(client=_client(pk), user=request.user, **form.cleaned_data)
+            messages.success(request, "Client details saved.")
+            return redirect("fittings:client_detail", client.pk)
+        return render(request, "fittings/client_form.html", {"form": form, "client": _client(pk)}, status=400)
+    return render(request, "fittings/client_form.html", {"form": ClientForm(instance=client), "client": client})
+
+
+@role_required(*EDITORS)
 def client_new(request):
     if request.method == "POST":
         form = ClientForm(request.POST)

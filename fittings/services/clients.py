@@ -38,6 +38,19 @@ def create_client(*, user, reference, name, contact="", notes="", consent_given_
 
 
 @transaction.atomic
+def update_client(*, client: Client, user, reference, name, contact="", notes="", consent_given_on=None) -> Client:
+    """Correct a client's details; the details as they were go into the audit trail."""
+    before = audit.client_snapshot(client)
+    client.reference, client.name, client.contact = reference, name, contact
+    client.notes, client.consent_given_on = notes, consent_given_on
+    client.save()
+    audit.record(user=user, action=audit.CHANGE, object_type="client", object_id=client.pk, client=client,
+                 summary=f"Details of client {client.reference} changed.", before=before,
+                 after=audit.client_snapshot(client))
+    return client
+
+
+@transaction.atomic
 def soft_delete_client(*, client: Client, user) -> None:
     client.is_deleted = True
     client.deleted_at = timezone.now()

@@ -343,3 +343,28 @@ def test_it_gives_the_workroom_a_queue_of_issued_revisions_and_no_contacts_or_dr
     page = workroom_client.get(sent["Location"]).content.decode()
     assert "<input" not in re.search(r'id="edges-heading".*?</section>', page, re.S).group(0)
     assert plan.client.contact not in page
+
+
+def test_it_reaches_admin_client_details_removal_and_the_way_back_by_tap(fitter_client, make_user, plan):
+    from django.test import Client as BrowserClient
+
+    owner_client = BrowserClient()
+    owner_client.force_login(make_user("owner"))
+    client = plan.client
+    owner_page = owner_client.get(reverse("fittings:client_detail", args=[client.pk])).content.decode()
+    assert f'href="{reverse("admin:index")}"' in owner_page
+    assert f'action="{reverse("fittings:client_delete", args=[client.pk])}"' in owner_page
+    fitter_page = fitter_client.get(reverse("fittings:client_detail", args=[client.pk])).content.decode()
+    assert f'href="{reverse("admin:index")}"' not in fitter_page and "client_delete" not in fitter_page
+    edit = reverse("fittings:client_edit", args=[client.pk])
+    assert f'href="{edit}"' in fitter_page
+    saved = fitter_client.post(edit, {"reference": client.reference, "name": "Odalys Brenneman-Vey", "contact": "07700 900123"})
+    assert saved.status_code == 302
+    client.refresh_from_db()
+    assert (client.name, client.contact) == ("Odalys Brenneman-Vey", "07700 900123")
+    from fittings.models import AuditEntry
+
+    entry = AuditEntry.objects.filter(object_type="client", object_id=str(client.pk)).order_by("-id").first()
+    assert entry.before["name"] != "Odalys Brenneman-Vey" and entry.after["name"] == "Odalys Brenneman-Vey"
+    status = reverse("fittings:print_start", args=[plan.pk, 1])
+    assert f'href="{reverse("fittings:revision_detail", args=[plan.pk, 1])}"' in fitter_client.get(status).content.decode()

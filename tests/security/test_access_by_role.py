@@ -67,6 +67,7 @@ RULES = {
     "fittings:workroom_queue": Rule(lambda w: {}, READ),
     "fittings:client_new": Rule(lambda w: {}, EDIT_PAGE),
     "fittings:client_detail": Rule(C, {"GET": editors(200)}),
+    "fittings:client_edit": Rule(C, EDIT_PAGE),
     "fittings:client_delete": Rule(C, {**POST_ONLY, "POST": {WORKROOM: 403, FITTER: 403, OWNER: 302}}),
     "fittings:session_new": Rule(CP, EDIT_PAGE),
     "fittings:session_check": Rule(CP, {**POST_ONLY, "POST": editors(200)}),
