@@ -27,6 +27,7 @@ urlpatterns = [
     path("plans/<int:pk>/revisions/<int:number>/checks/", views_plans.revision_checks, name="revision_checks"),
     path("plans/<int:pk>/revisions/<int:number>/fitting.json", views_plans.revision_fitting_file, name="revision_fitting_file"),
     path("plans/<int:pk>/revisions/<int:number>/issue/", views_plans.revision_issue, name="revision_issue"),
+    path("plans/<int:pk>/revisions/<int:number>/proof/<slug:document>.pdf", views_plans.revision_proof, name="revision_proof"),
     path("plans/<int:pk>/revisions/<int:number>/pins/", views_plans.revision_pins, name="revision_pins"),
     path("plans/<int:pk>/revisions/<int:number>/pins/apply/", views_plans.revision_apply_pins, name="revision_apply_pins"),
     path("photos/<int:pk>/", views.photo_file, name="photo_file"),

@@ -368,3 +368,30 @@ def test_it_reaches_admin_client_details_removal_and_the_way_back_by_tap(fitter_
     assert entry.before["name"] != "Odalys Brenneman-Vey" and entry.after["name"] == "Odalys Brenneman-Vey"
     status = reverse("fittings:print_start", args=[plan.pk, 1])
     assert f'href="{reverse("fittings:revision_detail", args=[plan.pk, 1])}"' in fitter_client.get(status).content.decode()
+
+
+def test_it_proofs_a_draft_without_issuing_it_with_draft_on_every_page(fitter_client, plan):
+    import io
+
+    import pypdf
+
+    revision = plan_services.latest_revision(plan)
+    assert revision.status == "draft"
+    page = fitter_client.get(reverse("fittings:revision_detail", args=[plan.pk, revision.number])).content.decode()
+    url = reverse("fittings:revision_proof", args=[plan.pk, revision.number, "work-order"])
+    assert f'href="{url}"' in page
+    for document in ("work-order", "cutting-sheet"):
+        response = fitter_client.get(reverse("fittings:revision_proof", args=[plan.pk, revision.number, document]))
+        assert response.status_code == 200 and response["Content-Type"] == "application/pdf"
+        pages = pypdf.PdfReader(io.BytesIO(response.content)).pages
+        assert len(pages) >= 2 if document == "cutting-sheet" else len(pages) >= 1
+        for number, sheet in enumerate(pages, 1):
+            assert "DRAFT: not issued" in sheet.extract_text(), (document, number)
+    revision.refresh_from_db()
+    assert revision.status == "draft" and not revision.issued_at
+
+
+def test_it_offers_a_reset_to_the_saved_revision_on_the_plan_page(fitter_client, plan):
+    url = reverse("fittings:plan_edit", args=[plan.pk])
+    html = fitter_client.get(url).content.decode()
+    assert re.search(rf'<a class="button button-quiet" href="{url}" id="reset-to-saved">Reset to saved revision 1</a>', html)

@@ -87,6 +87,9 @@ RULES = {
     "fittings:revision_fitting_file": Rule(REV1, READ_ONLY),
     "fittings:revision_issue": Rule(lambda w: {"pk": w.plan.pk, "number": 2}, {**POST_ONLY, "POST": editors(302)}),
     "fittings:revision_pins": Rule(REV1, EDIT_PAGE),
+    # A proof is drawn at once and issues nothing: for those who may change the plan.
+    "fittings:revision_proof": Rule(lambda w: {"pk": w.plan.pk, "number": 2, "document": "work-order"},
+                                    {"GET": editors(200), "POST": all_roles(405)}),
     "fittings:revision_apply_pins": Rule(REV1, {**POST_ONLY, "POST": editors(302)}),
     # Photos of clients' bodies: fitters and the owner only.
     "fittings:photo_file": Rule(lambda w: {"pk": w.photo.pk}, {"GET": editors(200)}),

@@ -265,6 +265,8 @@ CASES = [
     Case("revision-file-beyond-the-plans", "get", u("fittings:revision_fitting_file", PLAN, 99), status=404, words="Not found"),
     Case("issue-revision-beyond-the-plans", "post", u("fittings:revision_issue", PLAN, 3), lambda w: {}, status=404, words="Not found"),
     Case("photo-that-does-not-exist", "get", u("fittings:photo_file", TOO_BIG), status=404, words="Not found"),
+    Case("proof-unknown-document", "get", u("fittings:revision_proof", PLAN, 1, "recipe"), status=404),
+    Case("proof-unknown-paper", "get", q("fittings:revision_proof", "paper=a0", PLAN, 1, "work-order"), words="a4 or letter"),
     Case("client-that-does-not-exist", "get", u("fittings:session_new", 999_999), status=404, words="Not found"),
 ]
 
