@@ -97,6 +97,16 @@ def _attrs(attrs: dict) -> str:
     return mark_safe("".join(f' {name}="{escape(str(value), quote=True)}"' for name, value in attrs.items()))
 
 
+def locked_reason(block: Block, seam, level: str) -> str:
+    """Why a seam's edge does not move at a level, in words: the base pattern keeps it as drafted there."""
+    where = LEVEL_LABELS.get(level, level).lower()
+    movable = [LEVEL_LABELS.get(lv, lv).lower() for lv in block.level_names if lv in seam.alterable_at]
+    text = f"Locked: the base pattern keeps the {seam.name} as drafted at the {where}"
+    if not movable:
+        return text + "; it is never moved."
+    return text + f"; it may move at the {', '.join(movable)}."
+
+
 def plan_table(block: Block, result: Allotment, form=None):
     unit = result.unit
     levels = [
@@ -122,7 +132,7 @@ def plan_table(block: Block, result: Allotment, form=None):
             for level in block.level_names:
                 s = shifts.get((seam.name, level, panel))
                 text = "" if s is None else _length(s.shift_mm, unit, True)
-                words = "not altered here" if s is None else direction(s.shift_mm)
+                words = locked_reason(block, seam, level) if s is None else direction(s.shift_mm)
                 fixed, pinned = bool(s and s.fixed), bool(s and s.pin_mm)
                 cell = Cell(
                     level=level, shift=None if s is None else s.shift_mm, text=text, words=words,

@@ -395,3 +395,14 @@ def test_it_offers_a_reset_to_the_saved_revision_on_the_plan_page(fitter_client,
     url = reverse("fittings:plan_edit", args=[plan.pk])
     html = fitter_client.get(url).content.decode()
     assert re.search(rf'<a class="button button-quiet" href="{url}" id="reset-to-saved">Reset to saved revision 1</a>', html)
+
+
+def test_it_says_at_the_dot_why_a_seam_is_locked_at_a_level(fitter_client, plan):
+    revision = plan_services.latest_revision(plan)
+    _, block, _ = plan_services.revision_inputs(revision)
+    seam, level = next((s, lv) for s in block.seams for lv in block.level_names if lv not in s.alterable_at)
+    html = fitter_client.get(reverse("fittings:plan_edit", args=[plan.pk])).content.decode()
+    where = LEVEL_LABELS[level].lower()
+    assert re.search(rf'<details class="why"><summary aria-label="Not altered here. Why\?">·</summary><span class="why-text">'
+                     rf'Locked: the base pattern keeps the {re.escape(seam.name)} as drafted at the {re.escape(where)}; '
+                     rf'it (may move at the [^<]+|is never moved)\.</span></details>', html)
