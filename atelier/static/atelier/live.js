@@ -27,4 +27,20 @@
     show("The server could not be reached; check the network. Nothing was saved.");
   });
   document.addEventListener("htmx:afterSwap", hide);
+
+  /* On the plan page held upright the options stand above the tables: after a change to the options the
+     girths table is brought into view (nearest edge, so the field just typed in stays on screen). */
+  document.addEventListener("htmx:afterSwap", function (event) {
+    var target = event.detail.target;
+    if (!target || target.id !== "plan-result") { return; }
+    var typed = event.detail.requestConfig && event.detail.requestConfig.triggeringEvent &&
+      event.detail.requestConfig.triggeringEvent.target;
+    if (!typed || !typed.closest || !typed.closest("fieldset.options")) { return; }
+    var table = document.getElementById("levels-heading");
+    if (!table) { return; }
+    var box = table.closest("section").getBoundingClientRect();
+    if (box.top > window.innerHeight - 120 || box.bottom < 0) {
+      table.closest("section").scrollIntoView({block: "nearest"});
+    }
+  });
 })();
