@@ -349,7 +349,8 @@ def test_it_reaches_admin_client_details_removal_and_the_way_back_by_tap(fitter_
     from django.test import Client as BrowserClient
 
     owner_client = BrowserClient()
-    owner_client.force_login(make_user("owner"))
+    # The admin is Django's: it opens for owners with staff rights (a superuser counts as owner).
+    owner_client.force_login(make_user("owner", is_staff=True, is_superuser=True))
     client = plan.client
     owner_page = owner_client.get(reverse("fittings:client_detail", args=[client.pk])).content.decode()
     assert f'href="{reverse("admin:index")}"' in owner_page
