@@ -108,7 +108,16 @@ def session_edit(request, pk):
     return _session_page(request, client, form, previous, session, status, conflict)
 
 
+def _hints_in_unit(form):
+    """The how-to hints of the measurements written in the tape's unit ("about 10 cm below" -> inches)."""
+    for m in MEASURES:
+        field = form.fields[m.code]
+        field.help_text = in_unit(m.hint, form.unit)
+    return form
+
+
 def _session_page(request, client, form, previous, session, status, conflict=None):
+    _hints_in_unit(form)
     notes = _notes(form, previous)
     # A chosen file cannot be put back into a file input: when the form comes back, say which photos to choose again.
     lost = [form.fields[name].label.removesuffix(" photo").lower() for name in request.FILES
@@ -170,7 +179,7 @@ def session_convert(request, client_pk):
     if from_unit != to_unit:
         for code, text in SessionForm.readings_in_unit(request.POST, from_unit, to_unit).items():
             data[code] = text
-    form = SessionForm(data)
+    form = _hints_in_unit(SessionForm(data))
     notes = _notes(form, None)
     return render(request, "fittings/session_form.html#session-measures",
                   {"form": form, "client": client, "notes": notes, "advice": _advice(notes)})

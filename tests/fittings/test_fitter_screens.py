@@ -407,3 +407,12 @@ def test_it_says_at_the_dot_why_a_seam_is_locked_at_a_level(fitter_client, plan)
     assert re.search(rf'<details class="why"><summary aria-label="Not altered here. Why\?">·</summary><span class="why-text">'
                      rf'Locked: the base pattern keeps the {re.escape(seam.name)} as drafted at the {re.escape(where)}; '
                      rf'it (may move at the [^<]+|is never moved)\.</span></details>', html)
+
+
+def test_it_writes_the_measuring_hints_in_the_tapes_unit(fitter_client, reducing_client):
+    html = fitter_client.get(reverse("fittings:session_new", args=[reducing_client.pk])).content.decode()
+    hints = re.findall(r'<small class="how">([^<]*)</small>', html)
+    assert hints and not [h for h in hints if re.search(r"\d\s?(mm|cm)\b", h)]  # the last session was in inches
+    converted = fitter_client.post(reverse("fittings:session_convert", args=[reducing_client.pk]),
+                                   {"typed_unit": "in", "unit": "cm"}, headers={"HX-Request": "true"}).content.decode()
+    assert "10 cm below the waist" in converted
