@@ -162,9 +162,13 @@ def test_it_refuses_an_empty_or_bad_pin_form(fitter_client, plan):
     assert plan.revisions.get(number=1).pins.count() == 0
 
 
-def test_it_lets_the_workroom_read_but_not_change(workroom_client, plan):
+def test_it_lets_the_workroom_read_but_not_change(workroom_client, fitter_user, plan):
+    # A draft is not the workroom's; once issued it reads it, and the live plan page sends it there.
+    assert workroom_client.get(reverse("fittings:revision_detail", args=[plan.pk, 1])).status_code == 403
+    plan_services.issue_revision(revision=plan.revisions.get(number=1), user=fitter_user)
     assert workroom_client.get(reverse("fittings:revision_detail", args=[plan.pk, 1])).status_code == 200
-    assert workroom_client.get(reverse("fittings:plan_edit", args=[plan.pk])).status_code == 200
+    assert workroom_client.get(reverse("fittings:plan_edit", args=[plan.pk]))["Location"] == reverse(
+        "fittings:revision_detail", args=[plan.pk, 1])
     assert workroom_client.post(reverse("fittings:plan_edit", args=[plan.pk]), options_post(plan)).status_code == 403
     assert workroom_client.post(reverse("fittings:revision_issue", args=[plan.pk, 1])).status_code == 403
     assert workroom_client.post(reverse("fittings:plan_recompute", args=[plan.pk]), options_post(plan)).status_code == 403
