@@ -50,6 +50,7 @@ from fittings.previews import altered_for, preview_markers
 from patterns.core.allot import Allotment, PlanOptions
 from patterns.core.block import Block
 from patterns.core.export import notch_segments, sheet_layout
+from fittings.wording import in_unit
 from patterns.core.findings import CAUTION, ERROR, WARNING
 from patterns.core.measures import LEVEL_LABELS, MEASURES
 from patterns.core.outline import AlteredPattern, PanelOutline
@@ -289,7 +290,7 @@ def has_waist_reduction(data: DocumentData) -> bool:
 def cautions(data: DocumentData) -> list[str]:
     """Cautions in words, for the top of both documents."""
     found = [WAIST_REDUCTION_CAUTION] if has_waist_reduction(data) else []
-    found += [f.message for f in data.result.findings if f.severity == CAUTION]
+    found += [in_unit(f.message, data.unit) for f in data.result.findings if f.severity == CAUTION]
     return found
 
 
@@ -396,9 +397,9 @@ def band_rows(data: DocumentData) -> list[str]:
 
 
 def finding_rows(data: DocumentData, pattern: AlteredPattern) -> list[dict]:
-    rows = [{"severity": SEVERITY_WORDS.get(f.severity, f.severity), "message": f.message}
+    rows = [{"severity": SEVERITY_WORDS.get(f.severity, f.severity), "message": in_unit(f.message, data.unit)}
             for f in data.result.findings if f.severity != CAUTION]
-    rows += [{"severity": SEVERITY_WORDS.get(f.severity, f.severity), "message": f.message}
+    rows += [{"severity": SEVERITY_WORDS.get(f.severity, f.severity), "message": in_unit(f.message, data.unit)}
              for f in pattern.findings]
     return rows
 

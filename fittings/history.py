@@ -4,11 +4,12 @@ from dataclasses import dataclass, field
 from datetime import date, datetime
 
 from django.db.models import Count, Prefetch
+from django.utils.formats import date_format
 
 from fittings.models import Client, MeasurementSession, Plan, PlanRevision
 from patterns.core.fitting import allotment_from_dict
 from patterns.core.measures import LEVEL_LABELS, MEASURES
-from patterns.core.units import format_length
+from patterns.core.units import DEFAULT_STEP_MM, format_length
 
 
 @dataclass(frozen=True)
@@ -73,13 +74,26 @@ class Comparison:
     sections: list[tuple[str, list[CompareRow]]] = field(default_factory=list)
 
 
+def _on_tape(mm: float, unit: str) -> float:
+    """The reading to the tape's step (1 mm, or 1/16 in): what the fitter can tell apart."""
+    step = DEFAULT_STEP_MM[unit]
+    return round(mm / step) * step
+
+
 def _row(label, a, b, unit):
-    differs = (a is None) != (b is None) or (a is not None and abs(a - b) >= 0.05)
+    """A changed row is one whose readings differ on the tape: below its step (1 mm, 1/16 in) is no change."""
+    text_a = "–" if a is None else format_length(a, unit)
+    text_b = "–" if b is None else format_length(b, unit)
+    differs = (a is None) != (b is None) or (a is not None and _on_tape(a, unit) != _on_tape(b, unit))
     change = ""
     if a is not None and b is not None and differs:
-        change = format_length(b - a, unit, signed=True)
-    return CompareRow(label, "–" if a is None else format_length(a, unit), "–" if b is None else format_length(b, unit),
-                      change, differs)
+        change = format_length(_on_tape(b, unit) - _on_tape(a, unit), unit, signed=True)
+    return CompareRow(label, text_a, text_b, change, differs)
+
+
+def _day(value) -> str:
+    """A date as every page writes it (the locale's, e.g. 2 Dec 2026), never ISO."""
+    return date_format(value)
 
 
 def _pick(client, token):
@@ -104,8 +118,8 @@ def comparison(client: Client, a: str, b: str) -> Comparison:
         unit = second.unit
         va, vb = session_values(first), session_values(second)
         rows = [_row(m.label, va.get(m.code), vb.get(m.code), unit) for m in MEASURES if m.code in va or m.code in vb]
-        return Comparison("sessions", f"{first.get_kind_display()}, {first.taken_on}",
-                          f"{second.get_kind_display()}, {second.taken_on}", unit, [("Measurements", rows)])
+        return Comparison("sessions", f"{first.get_kind_display()}, {_day(first.taken_on)}",
+                          f"{second.get_kind_display()}, {_day(second.taken_on)}", unit, [("Measurements", rows)])
     ra, rb = allotment_from_dict(first.result), allotment_from_dict(second.result)
     unit = rb.unit
     ma, mb = first.inputs["measurements"], second.inputs["measurements"]

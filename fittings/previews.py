@@ -18,6 +18,7 @@ from django.core.cache import caches
 
 from atelier.memo import Recent
 
+from fittings.wording import short_words
 from patterns.core.allot import Allotment, PlanOptions, allot
 from patterns.core.fitting import block_to_dict, body_from_measurements
 from patterns.core.outline import AlteredPattern, alter_pattern
@@ -84,11 +85,17 @@ def computed(block, values: dict, options: PlanOptions) -> Allotment:
 def preview_markers(block, result: Allotment):
     """Engine findings that belong to a place on a panel, as (panel, level, short text)."""
     markers = []
+    fixed = {}
+    for s in result.shifts:
+        if s.fixed:
+            fixed.setdefault(s.level, s.panel)
     for finding in result.findings:
         if finding.severity == "caution" or not finding.level:
             continue
-        panel = finding.panel or next(
-            (s.back_panel for s in block.seams if s.name == finding.seam), block.panels[0].name,
-        )
-        markers.append((panel, finding.level, finding.code.replace("_", " ")))
+        panel = finding.panel
+        if panel is None and finding.seam is None and finding.level in fixed:
+            panel = fixed[finding.level]  # a finding about the cells fixed by hand: on the panel of the fixed cell
+        if panel is None:
+            panel = next((s.back_panel for s in block.seams if s.name == finding.seam), block.panels[0].name)
+        markers.append((panel, finding.level, short_words(finding.code)))
     return tuple(markers)

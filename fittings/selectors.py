@@ -156,3 +156,35 @@ def plan_with_latest(pk: int, page: bool = True) -> tuple[Plan, PlanRevision] | 
     if latest is None:
         return None
     return latest.plan, latest
+
+
+QUEUE_LIMIT = 200
+
+
+def workroom_queue(limit: int = QUEUE_LIMIT) -> list[PlanRevision]:
+    """The newest issued revision of every plan of an active client, newest issue first: what is to cut.
+
+    An older issued revision of the same plan has been replaced and is left out.
+    No client contact details are read.
+    """
+    revisions = (
+        PlanRevision.objects.filter(status="issued", plan__client__is_deleted=False)
+        .select_related("plan__base_pattern", "issued_by")
+        .only("id", "number", "status", "issued_at", "created_at", "plan_id", "issued_by__username",
+              "issued_by__first_name", "issued_by__last_name", "plan__garment", "plan__client_id",
+              "plan__base_pattern__name", "plan__base_pattern__size_label")
+        .order_by("-issued_at", "-id")
+    )
+    seen, out = set(), []
+    for revision in revisions[: limit * 4]:
+        if revision.plan_id in seen:
+            continue
+        seen.add(revision.plan_id)
+        out.append(revision)
+        if len(out) >= limit:
+            break
+    refs = dict(Client.objects.filter(pk__in={r.plan.client_id for r in out}).values_list("pk", "reference"))
+    for revision in out:
+        revision.client_reference = refs.get(revision.plan.client_id, "")
+    return out
+

@@ -12,6 +12,7 @@ from html import escape
 from django.utils.safestring import mark_safe
 
 from fittings.forms import cell_name
+from fittings.wording import findings_for_screen
 from patterns.core.allot import Allotment
 from patterns.core.block import Block
 from patterns.core.measures import LEVEL_LABELS
@@ -59,6 +60,8 @@ class LevelRow:
     seams: str
     residual: str
     front_back: str = ""
+    gap: str = ""
+    pinned: str = ""
 
 
 @lru_cache(maxsize=4096)
@@ -79,7 +82,7 @@ def _input(form, name: str, placeholder: str, label: str) -> CellInput:
         attrs=_attrs({
             "id": bound.auto_id, "name": bound.html_name, "value": "" if value is None else str(value),
             "placeholder": placeholder, "inputmode": "decimal", "autocomplete": "off", "class": "cell",
-            "aria-label": label,
+            "aria-label": label, **({"aria-invalid": "true"} if errors else {}),
         }),
         error=errors[0] if errors else "",
     )
@@ -94,6 +97,16 @@ def _attrs(attrs: dict) -> str:
     return mark_safe("".join(f' {name}="{escape(str(value), quote=True)}"' for name, value in attrs.items()))
 
 
+def locked_reason(block: Block, seam, level: str) -> str:
+    """Why a seam's edge does not move at a level, in words: the base pattern keeps it as drafted there."""
+    where = LEVEL_LABELS.get(level, level).lower()
+    movable = [LEVEL_LABELS.get(lv, lv).lower() for lv in block.level_names if lv in seam.alterable_at]
+    text = f"Locked: the base pattern keeps the {seam.name} as drafted at the {where}"
+    if not movable:
+        return text + "; it is never moved."
+    return text + f"; it may move at the {', '.join(movable)}."
+
+
 def plan_table(block: Block, result: Allotment, form=None):
     unit = result.unit
     levels = [
@@ -102,6 +115,8 @@ def plan_table(block: Block, result: Allotment, form=None):
             ease=_f(lv.ease, unit, True), target=_f(lv.target, unit), pattern=_f(lv.pattern, unit),
             difference=_f(lv.difference, unit, True), seams=_f(lv.allotted + lv.centre_front, unit, True),
             residual=_f(lv.residual, unit, True),
+            gap=_f(lv.lacing_gap, unit) if lv.lacing_gap else "",
+            pinned=_f(lv.pinned, unit, True) if lv.pinned else "",
             front_back=(
                 f"front {_f(lv.front.difference, unit, True)}, back {_f(lv.back.difference, unit, True)}"
                 if lv.front else ""
@@ -117,7 +132,7 @@ def plan_table(block: Block, result: Allotment, form=None):
             for level in block.level_names:
                 s = shifts.get((seam.name, level, panel))
                 text = "" if s is None else _length(s.shift_mm, unit, True)
-                words = "not altered here" if s is None else direction(s.shift_mm)
+                words = locked_reason(block, seam, level) if s is None else direction(s.shift_mm)
                 fixed, pinned = bool(s and s.fixed), bool(s and s.pin_mm)
                 cell = Cell(
                     level=level, shift=None if s is None else s.shift_mm, text=text, words=words,
@@ -143,7 +158,9 @@ def plan_table(block: Block, result: Allotment, form=None):
              "words": "lengthen" if b.change_mm > 0 else ("shorten" if b.change_mm < 0 else "no change")}
             for b in result.bands
         ],
-        "findings": result.findings,
+        "findings": findings_for_screen(result.findings, unit),
+        "laced": any(lv.lacing_gap for lv in result.levels),
+        "pinned": any(lv.pinned for lv in result.levels),
         "unit": unit,
         "editable": form is not None,
     }

@@ -6,8 +6,10 @@ app_name = "fittings"
 
 urlpatterns = [
     path("", views.client_list, name="client_list"),
+    path("workroom/", views.workroom_queue, name="workroom_queue"),
     path("clients/new/", views_clients.client_new, name="client_new"),
     path("clients/<int:pk>/", views_clients.client_detail, name="client_detail"),
+    path("clients/<int:pk>/edit/", views_clients.client_edit, name="client_edit"),
     path("clients/<int:pk>/delete/", views_clients.client_delete, name="client_delete"),
     path("clients/<int:client_pk>/sessions/new/", views_clients.session_new, name="session_new"),
     path("clients/<int:client_pk>/sessions/check/", views_clients.session_check, name="session_check"),
@@ -25,8 +27,11 @@ urlpatterns = [
     path("plans/<int:pk>/revisions/<int:number>/checks/", views_plans.revision_checks, name="revision_checks"),
     path("plans/<int:pk>/revisions/<int:number>/fitting.json", views_plans.revision_fitting_file, name="revision_fitting_file"),
     path("plans/<int:pk>/revisions/<int:number>/issue/", views_plans.revision_issue, name="revision_issue"),
+    path("plans/<int:pk>/revisions/<int:number>/proof/<slug:document>.pdf", views_plans.revision_proof, name="revision_proof"),
     path("plans/<int:pk>/revisions/<int:number>/pins/", views_plans.revision_pins, name="revision_pins"),
     path("plans/<int:pk>/revisions/<int:number>/pins/apply/", views_plans.revision_apply_pins, name="revision_apply_pins"),
     path("photos/<int:pk>/", views.photo_file, name="photo_file"),
+    path("photos/<int:pk>/delete/", views.photo_delete, name="photo_delete"),
+    path("photos/<int:pk>/replace/", views.photo_replace, name="photo_replace"),
     path("", include("fittings.urls_print")),
 ]

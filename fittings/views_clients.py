@@ -11,6 +11,7 @@ from fittings.forms import ClientForm, SessionForm
 from fittings.models import Client, MeasurementSession
 from fittings.services import clients as client_services
 from patterns.core.measures import MEASURES, plausibility_notes
+from fittings.wording import in_unit
 from patterns.core.units import UNITS
 
 EDITORS = (OWNER, FITTER)
@@ -19,6 +20,19 @@ EDITORS = (OWNER, FITTER)
 def _client(pk):
     # Client.objects: a client removed from the lists is not opened or added to (the admin restores them).
     return get_object_or_404(Client.objects, pk=pk)
+
+
+@role_required(*EDITORS)
+def client_edit(request, pk):
+    client = _client(pk)
+    if request.method == "POST":
+        form = ClientForm(request.POST, instance=client)
+        if form.is_valid():
+            client_services.update_client(client=_client(pk), user=request.user, **form.cleaned_data)
+            messages.success(request, "Client details saved.")
+            return redirect("fittings:client_detail", client.pk)
+        return render(request, "fittings/client_form.html", {"form": form, "client": _client(pk)}, status=400)
+    return render(request, "fittings/client_form.html", {"form": ClientForm(instance=client), "client": client})
 
 
 @role_required(*EDITORS)
@@ -32,7 +46,9 @@ def client_new(request):
     return render(request, "fittings/client_form.html", {"form": ClientForm()})
 
 
-@role_required(*ROLES)
+# Contact details and the whole history (drafts included) are for the owner and fitters; the workroom
+# has its queue of issued revisions (fittings.views.workroom_queue).
+@role_required(*EDITORS)
 def client_detail(request, pk):
     """The client's timeline: sessions and plans, newest first."""
     client = _client(pk)
@@ -92,10 +108,23 @@ def session_edit(request, pk):
     return _session_page(request, client, form, previous, session, status, conflict)
 
 
+def _hints_in_unit(form):
+    """The how-to hints of the measurements written in the tape's unit ("about 10 cm below" -> inches)."""
+    for m in MEASURES:
+        field = form.fields[m.code]
+        field.help_text = in_unit(m.hint, form.unit)
+    return form
+
+
 def _session_page(request, client, form, previous, session, status, conflict=None):
+    _hints_in_unit(form)
+    notes = _notes(form, previous)
+    # A chosen file cannot be put back into a file input: when the form comes back, say which photos to choose again.
+    lost = [form.fields[name].label.removesuffix(" photo").lower() for name in request.FILES
+            if name.startswith("photo_") and name in form.fields] if form.is_bound and status != 200 else []
     context = {
         "client": client, "form": form, "session": session, "previous": previous, "conflict": conflict,
-        "notes": _notes(form, previous),
+        "notes": notes, "advice": _advice(notes), "lost_photos": lost,
     }
     return render(request, "fittings/session_form.html", context, status=status)
 
@@ -112,7 +141,14 @@ def _notes(form, previous):
         if value is not None:
             values[m.code] = float(value)
     before = selectors.session_values(previous) if previous else None
-    return plausibility_notes(values, before)
+    unit = getattr(form, "unit", "cm")
+    return {code: [in_unit(text, unit) for text in texts] for code, texts in plausibility_notes(values, before).items()}
+
+
+def _advice(notes):
+    """The advice per measurement, named: for the summary and for the slot beside each field."""
+    labels = {m.code: m.label for m in MEASURES}
+    return [{"code": m.code, "label": labels[m.code], "texts": notes.get(m.code, [])} for m in MEASURES]
 
 
 @require_POST
@@ -126,8 +162,9 @@ def session_check(request, client_pk):
         current = MeasurementSession.objects.filter(pk=session_pk, client=client).first()
     previous = selectors.latest_session(client, before=current)
     form = SessionForm(request.POST)
+    notes = _notes(form, previous)
     return render(request, "fittings/session_form.html#session-notes",
-                  {"notes": _notes(form, previous), "form": form, "client": client})
+                  {"notes": notes, "advice": _advice(notes), "form": form, "client": client, "oob": True})
 
 
 @require_POST
@@ -142,10 +179,13 @@ def session_convert(request, client_pk):
     if from_unit != to_unit:
         for code, text in SessionForm.readings_in_unit(request.POST, from_unit, to_unit).items():
             data[code] = text
-    return render(request, "fittings/session_form.html#session-measures", {"form": SessionForm(data), "client": client})
+    form = _hints_in_unit(SessionForm(data))
+    notes = _notes(form, None)
+    return render(request, "fittings/session_form.html#session-measures",
+                  {"form": form, "client": client, "notes": notes, "advice": _advice(notes)})
 
 
-@role_required(*ROLES)
+@role_required(*EDITORS)
 def compare(request, client_pk):
     """Two sessions or two revisions of one client side by side, differences marked.
 
@@ -153,14 +193,35 @@ def compare(request, client_pk):
     """
     client = _client(client_pk)
     a, b = request.GET.get("a", ""), request.GET.get("b", "")
+    choices = _compare_choices(selectors.client_timeline(client))
+    if not (a or b):
+        # The chooser: the two newest sessions preselected, older first.
+        sessions = [value for value, _ in choices if value.startswith("s")]
+        a, b = (sessions[1], sessions[0]) if len(sessions) > 1 else ("", sessions[0] if sessions else "")
+        return render(request, "fittings/compare.html", {"client": client, "choices": choices, "a": a, "b": b})
     try:
         comparison = selectors.comparison(client, a, b)
     except selectors.NotComparable as exc:
-        timeline = selectors.client_timeline(client)
         return render(request, "fittings/compare.html", {
-            "client": client, "error": str(exc), "timeline": timeline,
-        }, status=400 if (a or b) else 200)
-    return render(request, "fittings/compare.html", {"client": client, "comparison": comparison})
+            "client": client, "error": str(exc), "choices": choices, "a": a, "b": b,
+        }, status=400)
+    return render(request, "fittings/compare.html",
+                  {"client": client, "comparison": comparison, "choices": choices, "a": a, "b": b})
+
+
+def _compare_choices(timeline):
+    """(value, words) for every session and revision of the client, newest first."""
+    from django.utils.formats import date_format
+
+    out = []
+    for item in timeline:
+        if item.kind == "session":
+            s = item.obj
+            out.append((f"s{s.pk}", f"Readings of {date_format(s.taken_on)} ({s.get_kind_display().lower()})"))
+        else:
+            for r in item.obj.revisions.all():
+                out.append((f"r{r.pk}", f"{item.obj.garment}, revision {r.number} ({r.get_status_display().lower()})"))
+    return out
 
 
 @require_POST

@@ -2,12 +2,13 @@
 
 from django import forms
 from django.conf import settings
+from django.core.exceptions import PermissionDenied
 from django.http import FileResponse, Http404
 from django.shortcuts import get_object_or_404, redirect, render
 from django.utils.text import slugify
 from django.views.decorators.http import require_http_methods
 
-from atelier.roles import ROLES, role_of, role_required
+from atelier.roles import ROLES, WORKROOM, role_of, role_required
 from fittings.models import PlanRevision, PrintJob, PrintKind, PrintPaper, PrintStatus
 from fittings.tasks import ISSUING_ROLES, PrintRefused, settle_abandoned, start_print, waiting_for_a_worker
 
@@ -43,6 +44,9 @@ def _job(job_id):
 @require_http_methods(["GET", "POST"])
 def print_start(request, plan_id, number):
     revision = _revision(plan_id, number)
+    if not revision.is_issued and role_of(request.user) == WORKROOM:
+        raise PermissionDenied("This revision is a draft: the workroom prints a revision once it is issued. "
+                               "Its fitter issues it from the revision's page.")
     status = 200
     if request.method == "POST":
         form = PrintForm(request.POST)

@@ -38,6 +38,19 @@ def create_client(*, user, reference, name, contact="", notes="", consent_given_
 
 
 @transaction.atomic
+def update_client(*, client: Client, user, reference, name, contact="", notes="", consent_given_on=None) -> Client:
+    """Correct a client's details; the details as they were go into the audit trail."""
+    before = audit.client_snapshot(client)
+    client.reference, client.name, client.contact = reference, name, contact
+    client.notes, client.consent_given_on = notes, consent_given_on
+    client.save()
+    audit.record(user=user, action=audit.CHANGE, object_type="client", object_id=client.pk, client=client,
+                 summary=f"Details of client {client.reference} changed.", before=before,
+                 after=audit.client_snapshot(client))
+    return client
+
+
+@transaction.atomic
 def soft_delete_client(*, client: Client, user) -> None:
     client.is_deleted = True
     client.deleted_at = timezone.now()
@@ -120,3 +133,32 @@ def update_session(*, session: MeasurementSession, user, form_data: dict, values
                  summary=f"Measurements of {session.taken_on} changed (version {expected_version} to {session.version}).",
                  before=before, after=audit.session_snapshot(session))
     return session
+
+
+@transaction.atomic
+def delete_photo(*, photo: Photo, user) -> None:
+    """Remove one photo of a session (the file too); the audit trail says which and when."""
+    session = photo.session
+    audit.record(user=user, action=audit.DELETE, object_type="photo", object_id=photo.pk,
+                 client_reference=session.client.reference,
+                 summary=f"{photo.get_view_display()} photo of the readings of {session.taken_on} deleted.")
+    name = photo.image.name
+    storage = photo.image.storage
+    photo.delete()
+    transaction.on_commit(lambda: storage.delete(name))
+
+
+@transaction.atomic
+def replace_photo(*, photo: Photo, upload, user) -> Photo:
+    """A new picture for the same view of the same session, in place of ``photo``."""
+    session = photo.session
+    new = Photo.objects.create(session=session, view=photo.view, image=clean_photo(upload))
+    audit.record(user=user, action=audit.CHANGE, object_type="photo", object_id=new.pk,
+                 client_reference=session.client.reference,
+                 summary=f"{photo.get_view_display()} photo of the readings of {session.taken_on} replaced.",
+                 before={"photo": photo.pk}, after={"photo": new.pk})
+    name, storage = photo.image.name, photo.image.storage
+    photo.delete()
+    transaction.on_commit(lambda: storage.delete(name))
+    return new
+

@@ -30,6 +30,11 @@ from patterns.selectors import block_for
 CORSET_EASE_MM = {"bust": -20.0, "underbust": -20.0, "waist": -50.0, "abdomen": -20.0, "hip": 0.0}
 BODICE_EASE_MM = {"bust": 40.0, "underbust": 20.0, "waist": 20.0, "abdomen": 30.0, "hip": 30.0}
 LACING_GAP_MM = 50.0
+# Plans kept in inches start from the trade's inch values, not converted centimetres (common practice):
+# a 2 in lacing gap and a 5/8 in seam allowance where the base pattern has the metric 1.5 cm.
+LACING_GAP_INCH_MM = 50.8
+SEAM_ALLOWANCE_INCH_MM = 15.875
+METRIC_SEAM_ALLOWANCE_MM = 15.0
 
 
 class ConcurrentEdit(Exception):
@@ -45,11 +50,19 @@ def session_values(session) -> dict[str, float]:
     return {m.code: float(m.value_mm) for m in session.measurements.all()}
 
 
+def block_for_unit(block: Block, unit: str) -> Block:
+    """The block a plan kept in ``unit`` is cut from: in inches, the metric 1.5 cm allowance becomes 5/8 in."""
+    if unit == "in" and abs(block.seam_allowance_mm - METRIC_SEAM_ALLOWANCE_MM) < 1e-9:
+        return replace(block, seam_allowance_mm=SEAM_ALLOWANCE_INCH_MM)
+    return block
+
+
 def default_options(block: Block, unit: str) -> PlanOptions:
     ease = CORSET_EASE_MM if "corset" in block.garment else BODICE_EASE_MM
+    gap = LACING_GAP_INCH_MM if unit == "in" else LACING_GAP_MM
     return PlanOptions(
         ease={lv: ease.get(lv, 0.0) for lv in block.level_names},
-        lacing_gap_mm=LACING_GAP_MM if block.centre_back == CB_LACED else 0.0,
+        lacing_gap_mm=gap if block.centre_back == CB_LACED else 0.0,
         step_mm=DEFAULT_STEP_MM[unit],
         unit=unit,
     )
@@ -98,6 +111,7 @@ def start_plan(*, client, session, pattern, garment: str, user, options: PlanOpt
         options = replace(options, overrides=tuple(o for o in options.overrides if _has_edge(block, o)), pins=())
     if options is None:
         options = default_options(block, session.unit)
+    block = block_for_unit(block, options.unit)
     plan = Plan.objects.create(client=client, session=session, base_pattern=pattern, garment=garment, created_by=user)
     first = _append(plan, block, session_values(session), options, user)
     audit.record(user=user, action=audit.CREATE, object_type="plan", object_id=plan.pk, client=client,
@@ -124,7 +138,7 @@ def save_revision(*, plan: Plan, options: PlanOptions, user, expected_version: i
         )
     plan.refresh_from_db(fields=["version"])
     latest = latest_revision(plan)
-    block = block_for(plan.base_pattern)
+    block = block_for_unit(block_for(plan.base_pattern), options.unit)
     revision = _append(plan, block, session_values(plan.session), options, user, based_on=latest)
     _audit_revision(revision, user, expected_version, f"saved from revision {latest.number if latest else '-'}")
     return revision
@@ -179,13 +193,17 @@ class Suggestion:
     largest_edge_mm: float
     total_edges_mm: float
     errors: int
+    garment: str = ""
+    over_cap: int = 0
 
 
-def suggestions_for_session(session, patterns) -> list[Suggestion]:
-    """For every run of base patterns, its sizes ranked for this session's readings, best first.
+def suggestions_for_session(session, patterns, garment: str | None = None) -> list[Suggestion]:
+    """For every run of base patterns, its sizes ranked for this session's readings, least alteration first.
 
-    The suggestions of all runs are merged, best first, so the page can
-    offer the overall best size at the top and say why.
+    The sizes of ``garment`` (a base pattern's garment kind) come first, in
+    the engine's order (problems, edges over their limit, largest edge, all
+    edges); the other garments' after them, in the same order.  Without
+    ``garment`` the garment of the best size overall is taken.
     """
     values = session_values(session)
     patterns = list(patterns.prefetch_related("levels", "panels__lines", "seams"))
@@ -203,9 +221,16 @@ def suggestions_for_session(session, patterns) -> list[Suggestion]:
             out.append(Suggestion(
                 pattern_pk=pk, label=f"{choice.block.name}, size {choice.block.size}",
                 reason=choice.reason, largest_edge_mm=choice.largest_edge_mm,
-                total_edges_mm=choice.total_edges_mm, errors=choice.errors,
+                total_edges_mm=choice.total_edges_mm, errors=choice.errors, garment=choice.block.garment,
+                over_cap=choice.over_cap,
             ))
-    out.sort(key=lambda s: (s.errors, not s.reason, s.largest_edge_mm, s.total_edges_mm))
+
+    def rank(s):
+        return (s.errors, s.over_cap, round(s.largest_edge_mm, 6), round(s.total_edges_mm, 6))
+
+    if garment is None and out:
+        garment = min(out, key=rank).garment
+    out.sort(key=lambda s: (s.garment != garment, *rank(s)))
     return out
 
 
@@ -253,7 +278,7 @@ def import_fitting(*, client, text: str, user, garment: str = "") -> Plan:
     if pattern is None:
         raise ImportRefused("pattern", f"This atelier has no base pattern “{block.name}”, size {block.size}.")
     stored = block_for(pattern)
-    if stored != block:
+    if stored != block and block_for_unit(stored, options.unit) != block:
         raise ImportRefused("pattern", f"The file's “{block.name}”, size {block.size}, differs from the atelier's; "
                                        "import refused so that no plan is made against the wrong shapes.")
     session = MeasurementSession.objects.create(client=client, measured_by=user, taken_on=tz.localdate(), kind="check",

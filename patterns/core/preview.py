@@ -55,6 +55,8 @@ TEXT_COLOUR = OKABE_ITO["black"]
 MIN_WIDTH_IN = 10.0
 MM_PER_FIGURE_INCH = 80.0
 SHIFT_FONT_PT = 9
+# How far below its level a finding's words hang: clear of the shift labels under the level line.
+MARKER_DROP_MM = 1.5 + SHIFT_FONT_PT / 72 * 80.0 + 1.5
 LABEL_FONT_PT = 10
 MARGIN_MM = 12.0
 LEGEND_ROOM_MM = 50.0
@@ -257,7 +259,9 @@ def _draw_markers(ax, pattern: AlteredPattern, markers: Sequence[Marker]) -> Non
         x = 0.5 * (xl + xr)
         xs.append(x)
         ys.append(y)
-        ax.text(x, y + 5, _typeset(text), fontsize=SHIFT_FONT_PT, ha="center", va="top", color=TEXT_COLOUR,
+        # Below the edges' amounts, which hang from the level line on the right edge (a label is
+        # SHIFT_FONT_PT tall: 9 pt at 80 mm to the figure inch is 10 mm of pattern).
+        ax.text(x, y + MARKER_DROP_MM, _typeset(text), fontsize=SHIFT_FONT_PT, ha="center", va="top", color=TEXT_COLOUR,
                 fontweight="bold", gid=f"{_MARKER_ID}label-{len(xs)}",
                 bbox={"boxstyle": "round,pad=0.2", "facecolor": "white", "edgecolor": WARNING_COLOUR, "linewidth": 1.2})
     if xs:

@@ -32,6 +32,7 @@ from fittings.documents import (
     document_data, render_cutting_sheet, render_work_order, work_order_pdf,
 )
 from fittings.models import MeasurementSession, PrintJob, RevisionStatus
+from fittings.wording import in_unit
 from fittings.services import plans as plan_services
 from fittings.tasks import run_print_job
 from patterns.core.allot import allot
@@ -306,7 +307,7 @@ def test_it_shows_the_breathing_caution_for_a_strong_reduction(pdfs, strong):
     for text in (flat(text_of(pdfs("work_order", "strong", "a4"))), flat(notes)):
         assert flat(WAIST_REDUCTION_CAUTION) in text
         assert "restricts breathing" in text
-        assert flat(finding.message) in text
+        assert flat(in_unit(finding.message, strong.unit)) in text  # in the plan's unit (inches here)
 
 
 def test_it_shows_the_waist_caution_for_any_reduction_and_not_without_one(pdfs, gentle):
@@ -617,8 +618,10 @@ def test_it_offers_the_print_form_and_refuses_other_methods(fitter_client, plan)
 @pytest.mark.urls(__name__)
 def test_it_lets_the_workroom_print_issued_revisions_only(workroom_client, fitter_user, plan, quick_render):
     revision = plan_services.latest_revision(plan)
-    page = workroom_client.get(start_url(revision)).content.decode()
-    assert "Only the owner or a fitter can issue this draft" in page and "Issue and print" not in page
+    refused = workroom_client.get(start_url(revision))
+    page = refused.content.decode()
+    # A draft is refused in words, with the way to the workroom's queue (not a dead end).
+    assert refused.status_code == 403 and "once it is issued" in page and "Issue and print" not in page
     assert workroom_client.post(start_url(revision), {"paper": "a4", "kind": "both"}).status_code == 403
     revision.refresh_from_db()
     assert revision.status == RevisionStatus.DRAFT and not PrintJob.objects.exists()

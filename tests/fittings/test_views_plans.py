@@ -162,9 +162,13 @@ def test_it_refuses_an_empty_or_bad_pin_form(fitter_client, plan):
     assert plan.revisions.get(number=1).pins.count() == 0
 
 
-def test_it_lets_the_workroom_read_but_not_change(workroom_client, plan):
+def test_it_lets_the_workroom_read_but_not_change(workroom_client, fitter_user, plan):
+    # A draft is not the workroom's; once issued it reads it, and the live plan page sends it there.
+    assert workroom_client.get(reverse("fittings:revision_detail", args=[plan.pk, 1])).status_code == 403
+    plan_services.issue_revision(revision=plan.revisions.get(number=1), user=fitter_user)
     assert workroom_client.get(reverse("fittings:revision_detail", args=[plan.pk, 1])).status_code == 200
-    assert workroom_client.get(reverse("fittings:plan_edit", args=[plan.pk])).status_code == 200
+    assert workroom_client.get(reverse("fittings:plan_edit", args=[plan.pk]))["Location"] == reverse(
+        "fittings:revision_detail", args=[plan.pk, 1])
     assert workroom_client.post(reverse("fittings:plan_edit", args=[plan.pk]), options_post(plan)).status_code == 403
     assert workroom_client.post(reverse("fittings:revision_issue", args=[plan.pk, 1])).status_code == 403
     assert workroom_client.post(reverse("fittings:plan_recompute", args=[plan.pk]), options_post(plan)).status_code == 403
@@ -199,8 +203,8 @@ def test_it_exports_a_fitting_file_that_imports_again(fitter_client, plan):
 
 
 @pytest.mark.parametrize("content, words", [
-    (b"{", "Not valid JSON"), (b"\xff\xfe", "not text"), (b"[]", "JSON object"),
-    (b'{"format": "atelier-fitting"}', "required"),
+    (b"{", "damaged or is not a fitting file"), (b"\xff\xfe", "not text"), (b"[]", "JSON object"),
+    (b'{"format": "atelier-fitting"}', "not a fitting file this app can use"),
 ])
 def test_it_refuses_a_bad_fitting_file_and_saves_nothing(fitter_client, plan, content, words):
     from django.core.files.uploadedfile import SimpleUploadedFile
@@ -225,7 +229,7 @@ def test_it_checks_the_seam_lengths_after_the_alteration(fitter_client, plan):
     # two edges no longer match (tolerance 1/8 in, Threads magazine no. 200).
     uneven = fitter_client.get(url, options_post(plan, **{cell_name(side, "waist", 0): "-1 1/4", cell_name(side, "waist", 1): "0"}))
     html = uneven.content.decode()
-    assert "walk and true it" in html and "Side seam" in html
+    assert "Walk the seam and true it" in html and "Side seam" in html
 
 
 def test_it_starts_a_new_plan_from_an_earlier_revision(fitter_client, plan):
