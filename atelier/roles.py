@@ -15,6 +15,8 @@ from django.core.exceptions import PermissionDenied
 OWNER, FITTER, WORKROOM = "owner", "fitter", "workroom"
 ROLES = (OWNER, FITTER, WORKROOM)
 ROLE_LABELS = {OWNER: "Owner", FITTER: "Fitter", WORKROOM: "Workroom"}
+# Who may change a client's records and issue plans; the workroom reads issued work.
+EDITORS = (OWNER, FITTER)
 
 
 def role_of(user):

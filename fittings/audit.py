@@ -4,7 +4,7 @@ Call :func:`record` inside the service's transaction, so the entry and the
 change are kept together or not at all.  Entries are append-only
 (``AuditEntry`` refuses updates and deletes); only erasing a client for good
 blanks the personal parts of the entries that mention that client
-(``fittings.services.safety.erase_client``).
+(``fittings.services.client_records.erase_client``).
 """
 
 from fittings.models import AuditAction, AuditEntry

@@ -49,6 +49,7 @@ from shapely.geometry import Polygon
 from fittings.previews import altered_for, preview_markers
 from patterns.core.allot import Allotment, PlanOptions
 from patterns.core.block import Block
+from patterns.core.defaults import is_corset
 from patterns.core.export import notch_segments, sheet_layout
 from fittings.wording import in_unit
 from patterns.core.findings import CAUTION, ERROR, WARNING
@@ -218,7 +219,7 @@ def client_label(client) -> str:
 
 def document_data(revision, base_url: str = "") -> DocumentData:
     """Read a revision (with its plan, client and session) into plain data for printing."""
-    from fittings.services.plans import revision_inputs, revision_result
+    from fittings.selectors import revision_inputs, revision_result
 
     plan = revision.plan
     session = plan.session
@@ -405,7 +406,7 @@ def finding_rows(data: DocumentData, pattern: AlteredPattern) -> list[dict]:
 
 
 def cut_rows(data: DocumentData) -> tuple[tuple[str, ...], list[dict]]:
-    layers = CORSET_LAYERS if "corset" in data.block.garment.lower() else BODICE_LAYERS
+    layers = CORSET_LAYERS if is_corset(data.block.garment) else BODICE_LAYERS
     rows = []
     for panel in data.block.panels:
         count = f"{panel.cut_count} on the fold" if panel.on_fold else (

@@ -8,7 +8,7 @@ from django.core.exceptions import ValidationError
 from django.utils import timezone
 from PIL import Image
 
-from fittings.models import Client, MeasurementSession, PhotoView, SessionKind
+from fittings.models import UNIT_CHOICES, Client, MeasurementSession, PhotoView, SessionKind
 from patterns.core.allot import POLICIES, Override, PlanOptions
 from patterns.core.block import Block
 from patterns.core.measures import LEVEL_LABELS, MEASURES
@@ -16,7 +16,6 @@ from patterns.core.units import (
     DEFAULT_STEP_MM, UNIT_LABELS, UNITS, LengthError, format_exact, format_length, parse_length, parse_signed_length,
 )
 
-UNIT_CHOICES = [(u, UNIT_LABELS[u]) for u in UNITS]
 
 # --- upload checks -----------------------------------------------------------------------
 MAX_PHOTO_BYTES = 8 * 1024 * 1024

@@ -432,7 +432,7 @@ class AuditEntry(models.Model):
     """Who did what to a client's records, and when; written by the services (fittings/audit.py).
 
     Append-only like plan revisions.  The one exception is erasing a client
-    for good (fittings/services/safety.py), which blanks the personal parts
+    for good (fittings/services/client_records.py), which blanks the personal parts
     of the entries that mention that client.
     """
 

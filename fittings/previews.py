@@ -19,8 +19,8 @@ from django.core.cache import caches
 from atelier.memo import Recent
 
 from fittings.wording import short_words
-from patterns.core.allot import Allotment, PlanOptions, allot
-from patterns.core.fitting import block_to_dict, body_from_measurements
+from patterns.core.allot import Allotment
+from patterns.core.fitting import block_to_dict
 from patterns.core.outline import AlteredPattern, alter_pattern
 from patterns.core.preview import markers_from_findings, preview_svg
 
@@ -76,10 +76,6 @@ def preview_lookup(block, result: Allotment, unit: str) -> tuple[str, bool]:
     svg = preview_svg(block, result.alteration(block), markers=markers, unit=unit, pattern=pattern)
     cache.set(key, svg, CACHE_SECONDS)
     return svg, False
-
-
-def computed(block, values: dict, options: PlanOptions) -> Allotment:
-    return allot(block, body_from_measurements(values), options)
 
 
 def preview_markers(block, result: Allotment):

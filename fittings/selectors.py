@@ -1,14 +1,23 @@
-"""Reads for clients and their fittings."""
+"""Reads for clients and their fittings: searches, histories, revisions decoded, sizes ranked.
+
+Nothing here writes; the services (``fittings.services``) may call these, never the reverse.
+"""
 
 from dataclasses import dataclass
+from datetime import date, datetime
 
 from django.db import connection
-from django.db.models import Prefetch, Q
+from django.db.models import Count, Prefetch, Q
 
 from atelier.memo import Recent
 from fittings.models import Client, MeasurementSession, Plan, PlanRevision
 from fittings.search import search_expressions
-from fittings.services import plans as plan_services
+from patterns.core.allot import suggest_size
+from patterns.core.defaults import default_options
+from patterns.core.fitting import (
+    allotment_from_dict, block_from_dict, body_from_measurements, options_from_dict,
+)
+from patterns.selectors import block_for
 
 
 MATCH_LIMIT = 250
@@ -124,17 +133,25 @@ def _revision_key(revision: PlanRevision, part: str):
     return (part, revision.pk, revision.plan_id, revision.number, revision.created_at)
 
 
+def _decode_inputs(revision: PlanRevision):
+    data = revision.inputs
+    unit = data.get("unit", "cm")
+    return data["measurements"], block_from_dict(data["pattern"]), options_from_dict(data.get("plan", {}), unit)
+
+
 def revision_inputs(revision: PlanRevision):
     """(readings in mm, Block, PlanOptions) of a revision; JSON decoded once per revision and process."""
-    values, block, options = _decoded.get_or_make(
-        _revision_key(revision, "inputs"), lambda: plan_services.revision_inputs(revision),
-    )
+    values, block, options = _decoded.get_or_make(_revision_key(revision, "inputs"), lambda: _decode_inputs(revision))
     return dict(values), block, options
 
 
 def revision_result(revision: PlanRevision):
-    """The engine's answer saved with a revision, decoded once per revision and process."""
-    return _decoded.get_or_make(_revision_key(revision, "result"), lambda: plan_services.revision_result(revision))
+    """The engine's answer saved with a revision, exactly as computed; decoded once per revision and process."""
+    return _decoded.get_or_make(_revision_key(revision, "result"), lambda: allotment_from_dict(revision.result))
+
+
+def latest_revision(plan: Plan) -> PlanRevision | None:
+    return plan.revisions.order_by("-number").first()
 
 
 def plan_with_latest(pk: int, page: bool = True) -> tuple[Plan, PlanRevision] | None:
@@ -187,4 +204,128 @@ def workroom_queue(limit: int = QUEUE_LIMIT) -> list[PlanRevision]:
     for revision in out:
         revision.client_reference = refs.get(revision.plan.client_id, "")
     return out
+
+
+
+# --- a client's history --------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class TimelineItem:
+    kind: str  # "session" or "plan"
+    when: datetime | date
+    obj: object
+
+
+def client_timeline(client: Client) -> list[TimelineItem]:
+    """Sessions and plans, newest first, in three queries however long the history.
+
+    Plan revisions come without their inputs and results, which the
+    timeline does not show.
+    """
+    sessions = list(
+        MeasurementSession.objects.filter(client=client).select_related("measured_by")
+        .annotate(measure_count=Count("measurements", distinct=True), photo_count=Count("photos", distinct=True))
+        .order_by("-taken_on", "-id")
+    )
+    revisions = PlanRevision.objects.defer("inputs", "result").order_by("-number")
+    plans = list(
+        Plan.objects.filter(client=client).select_related("base_pattern", "session")
+        .prefetch_related(Prefetch("revisions", queryset=revisions)).order_by("-created_at", "-id")
+    )
+    items = [TimelineItem("session", s.taken_on, s) for s in sessions]
+    items += [TimelineItem("plan", p.created_at.date(), p) for p in plans]
+    items.sort(key=lambda item: (item.when, item.kind == "plan"), reverse=True)
+    return items
+
+
+def latest_session(client: Client, before: MeasurementSession | None = None):
+    sessions = MeasurementSession.objects.filter(client=client).prefetch_related("measurements")
+    if before is not None:
+        sessions = sessions.exclude(pk=before.pk).filter(taken_on__lte=before.taken_on)
+    return sessions.order_by("-taken_on", "-id").first()
+
+
+def session_values(session: MeasurementSession) -> dict[str, float]:
+    """The session's readings in mm, keyed by measurement code (uses prefetched rows)."""
+    return {m.code: float(m.value_mm) for m in session.measurements.all()}
+
+
+class NotComparable(Exception):
+    """The two things asked for cannot be put side by side."""
+
+
+def _pick(client, token):
+    if len(token) < 2 or token[0] not in "sr" or not (token[1:].isascii() and token[1:].isdigit()):
+        raise NotComparable("Choose two sessions or two revisions to compare.")
+    pk = int(token[1:])
+    if token[0] == "s":
+        obj = MeasurementSession.objects.filter(client=client, pk=pk).prefetch_related("measurements").first()
+    else:
+        obj = PlanRevision.objects.filter(plan__client=client, pk=pk).select_related("plan").first()
+    if obj is None:
+        raise NotComparable("One of the two is not in this client's history.")
+    return token[0], obj
+
+
+def comparison_pair(client: Client, a: str, b: str):
+    """The two sessions (``s12``) or two revisions (``r40``) of this client to put side by side."""
+    kind_a, first = _pick(client, a)
+    kind_b, second = _pick(client, b)
+    if kind_a != kind_b:
+        raise NotComparable("Compare a session with a session, or a revision with a revision.")
+    return ("sessions" if kind_a == "s" else "revisions"), first, second
+
+
+# --- sizes ranked for a session ----------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class Suggestion:
+    pattern_pk: int
+    label: str
+    reason: str
+    largest_edge_mm: float
+    total_edges_mm: float
+    errors: int
+    garment: str = ""
+    over_cap: int = 0
+
+
+def suggestions_for_session(session, patterns, garment: str | None = None) -> list[Suggestion]:
+    """For every run of base patterns, its sizes ranked for this session's readings, least alteration first.
+
+    The sizes of ``garment`` (a base pattern's garment kind) come first, in
+    the engine's order (problems, edges over their limit, largest edge, all
+    edges); the other garments' after them, in the same order.  Without
+    ``garment`` the garment of the best size overall is taken.
+    """
+    values = session_values(session)
+    patterns = list(patterns.prefetch_related("levels", "panels__lines", "seams"))
+    runs: dict[object, list] = {}
+    for pattern in patterns:
+        runs.setdefault(pattern.size_run_id or f"single-{pattern.pk}", []).append(pattern)
+    out = []
+    for members in runs.values():
+        blocks = {p.pk: block_for(p) for p in members}
+        pattern_of = {id(block): pk for pk, block in blocks.items()}
+        first = blocks[members[0].pk]
+        options = default_options(first, session.unit)
+        for choice in suggest_size(list(blocks.values()), body_from_measurements(values), options):
+            pk = pattern_of[id(choice.block)]
+            out.append(Suggestion(
+                pattern_pk=pk, label=f"{choice.block.name}, size {choice.block.size}",
+                reason=choice.reason, largest_edge_mm=choice.largest_edge_mm,
+                total_edges_mm=choice.total_edges_mm, errors=choice.errors, garment=choice.block.garment,
+                over_cap=choice.over_cap,
+            ))
+
+    def rank(s):
+        return (s.errors, s.over_cap, round(s.largest_edge_mm, 6), round(s.total_edges_mm, 6))
+
+    if garment is None and out:
+        garment = min(out, key=rank).garment
+    out.sort(key=lambda s: (s.garment != garment, *rank(s)))
+    return out
+
 

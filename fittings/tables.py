@@ -11,13 +11,16 @@ from html import escape
 
 from django.utils.safestring import mark_safe
 
+from django.utils.formats import date_format
+
 from fittings.forms import cell_name
+from fittings.selectors import revision_result, session_values
 from fittings.wording import findings_for_screen
 from patterns.core.allot import Allotment
 from patterns.core.block import Block
-from patterns.core.measures import LEVEL_LABELS
+from patterns.core.measures import LEVEL_LABELS, MEASURES
 from patterns.core.report import direction
-from patterns.core.units import format_length
+from patterns.core.units import DEFAULT_STEP_MM, format_length
 
 
 @dataclass
@@ -164,3 +167,80 @@ def plan_table(block: Block, result: Allotment, form=None):
         "unit": unit,
         "editable": form is not None,
     }
+
+
+# --- two fittings side by side -----------------------------------------------------------------
+
+
+@dataclass
+class CompareRow:
+    label: str
+    a: str
+    b: str
+    change: str
+    differs: bool
+
+
+@dataclass
+class Comparison:
+    kind: str  # "sessions" or "revisions"
+    a_title: str
+    b_title: str
+    unit: str
+    sections: list[tuple[str, list[CompareRow]]] = field(default_factory=list)
+
+
+def _on_tape(mm: float, unit: str) -> float:
+    """The reading to the tape's step (1 mm, or 1/16 in): what the fitter can tell apart."""
+    step = DEFAULT_STEP_MM[unit]
+    return round(mm / step) * step
+
+
+def _row(label, a, b, unit):
+    """A changed row is one whose readings differ on the tape: below its step (1 mm, 1/16 in) is no change."""
+    text_a = "–" if a is None else format_length(a, unit)
+    text_b = "–" if b is None else format_length(b, unit)
+    differs = (a is None) != (b is None) or (a is not None and _on_tape(a, unit) != _on_tape(b, unit))
+    change = ""
+    if a is not None and b is not None and differs:
+        change = format_length(_on_tape(b, unit) - _on_tape(a, unit), unit, signed=True)
+    return CompareRow(label, text_a, text_b, change, differs)
+
+
+def _day(value) -> str:
+    """A date as every page writes it (the locale's, e.g. 2 Dec 2026), never ISO."""
+    return date_format(value)
+
+
+def comparison(kind: str, first, second) -> Comparison:
+    """Two sessions or two revisions (``selectors.comparison_pair``) side by side, row by row."""
+    if kind == "sessions":
+        unit = second.unit
+        va, vb = session_values(first), session_values(second)
+        rows = [_row(m.label, va.get(m.code), vb.get(m.code), unit) for m in MEASURES if m.code in va or m.code in vb]
+        return Comparison("sessions", f"{first.get_kind_display()}, {_day(first.taken_on)}",
+                          f"{second.get_kind_display()}, {_day(second.taken_on)}", unit, [("Measurements", rows)])
+    ra, rb = revision_result(first), revision_result(second)
+    unit = rb.unit
+    ma, mb = first.inputs["measurements"], second.inputs["measurements"]
+    measurements = [_row(m.label, ma.get(m.code), mb.get(m.code), unit) for m in MEASURES if m.code in ma or m.code in mb]
+    la = {lv.level: lv for lv in ra.levels}
+    lb = {lv.level: lv for lv in rb.levels}
+    levels = [lv for lv in LEVEL_LABELS if lv in la or lv in lb]
+    targets = []
+    for lv in levels:
+        x, y = la.get(lv), lb.get(lv)
+        targets.append(_row(f"{LEVEL_LABELS[lv]} ease", x and x.ease, y and y.ease, unit))
+        targets.append(_row(f"{LEVEL_LABELS[lv]} target", x and x.target, y and y.target, unit))
+    sa = {(s.seam, s.level, s.panel): s.shift_mm for s in ra.shifts}
+    sb = {(s.seam, s.level, s.panel): s.shift_mm for s in rb.shifts}
+    keys = list(dict.fromkeys([*sa, *sb]))
+    shifts = [
+        _row(f"{seam}, {panel} edge, {LEVEL_LABELS.get(level, level).lower()}", sa.get((seam, level, panel)),
+             sb.get((seam, level, panel)), unit)
+        for seam, level, panel in keys
+    ]
+    return Comparison(
+        "revisions", f"{first.plan.garment}, revision {first.number}", f"{second.plan.garment}, revision {second.number}",
+        unit, [("Measurements", measurements), ("Ease and targets", targets), ("Raw edges", shifts)],
+    )

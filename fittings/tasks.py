@@ -16,16 +16,13 @@ from django.db import transaction
 from django.tasks import task
 from django.utils import timezone
 
-from atelier.roles import FITTER, OWNER, role_of
+from atelier.roles import EDITORS, role_of
 from fittings.documents import DocumentError, check_printable, document_data, render_documents
 from fittings.models import PrintJob, PrintKind, PrintPaper, PrintStatus, RevisionStatus
 from fittings.services.plans import issue_revision
 
 logger = logging.getLogger(__name__)
 
-# Issuing locks a revision for the workroom: only those who may issue plans
-# may print a draft.  Anyone on the staff may print an issued revision.
-ISSUING_ROLES = (OWNER, FITTER)
 
 # A print takes seconds.  A job still running after this long lost its worker
 # (stopped or restarted half-way) and will never finish; one still queued
@@ -46,7 +43,7 @@ def start_print(*, revision, user, paper: str, kind: str = PrintKind.BOTH, site_
         raise PrintRefused("Choose what to print: the work order, the cutting sheet or both.")
     with transaction.atomic():
         if revision.status == RevisionStatus.DRAFT:
-            if role_of(user) not in ISSUING_ROLES:
+            if role_of(user) not in EDITORS:  # issuing locks it for the workroom; anyone may print an issued one
                 raise PermissionDenied("Only the owner or a fitter can issue a draft revision; ask them to print it.")
             try:
                 check_printable(document_data(revision))

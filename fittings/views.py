@@ -8,7 +8,7 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.utils.http import url_has_allowed_host_and_scheme
 from django.views.decorators.http import require_POST
 
-from atelier.roles import FITTER, OWNER, ROLES, WORKROOM, role_of, role_required
+from atelier.roles import EDITORS, ROLES, WORKROOM, role_of, role_required
 from fittings import selectors
 from fittings.forms import PhotoField
 from fittings.models import Photo
@@ -37,7 +37,7 @@ def client_list(request):
 
 
 # Photos of clients' bodies are for the fitters and the owner; the workroom cuts from the work order.
-@role_required(OWNER, FITTER)
+@role_required(*EDITORS)
 def photo_file(request, pk):
     photo = get_object_or_404(Photo.objects.select_related("session__client"), pk=pk, session__client__is_deleted=False)
     try:
@@ -69,7 +69,7 @@ class ReplacePhotoForm(forms.Form):
 
 
 @require_POST
-@role_required(OWNER, FITTER)
+@role_required(*EDITORS)
 def photo_delete(request, pk):
     photo = _photo(pk)
     client_services.delete_photo(photo=photo, user=request.user)
@@ -78,7 +78,7 @@ def photo_delete(request, pk):
 
 
 @require_POST
-@role_required(OWNER, FITTER)
+@role_required(*EDITORS)
 def photo_replace(request, pk):
     photo = _photo(pk)
     form = ReplacePhotoForm(request.POST, request.FILES)

@@ -5,16 +5,14 @@ from django.http import HttpResponseBadRequest
 from django.shortcuts import get_object_or_404, redirect, render
 from django.views.decorators.http import require_POST
 
-from atelier.roles import FITTER, OWNER, ROLES, role_of, role_required
-from fittings import history as selectors
+from atelier.roles import EDITORS, OWNER, role_of, role_required
+from fittings import selectors, tables
 from fittings.forms import ClientForm, SessionForm
 from fittings.models import Client, MeasurementSession
 from fittings.services import clients as client_services
 from patterns.core.measures import MEASURES, plausibility_notes
 from fittings.wording import in_unit
 from patterns.core.units import UNITS
-
-EDITORS = (OWNER, FITTER)
 
 
 def _client(pk):
@@ -200,7 +198,7 @@ def compare(request, client_pk):
         a, b = (sessions[1], sessions[0]) if len(sessions) > 1 else ("", sessions[0] if sessions else "")
         return render(request, "fittings/compare.html", {"client": client, "choices": choices, "a": a, "b": b})
     try:
-        comparison = selectors.comparison(client, a, b)
+        comparison = tables.comparison(*selectors.comparison_pair(client, a, b))
     except selectors.NotComparable as exc:
         return render(request, "fittings/compare.html", {
             "client": client, "error": str(exc), "choices": choices, "a": a, "b": b,

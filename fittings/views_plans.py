@@ -10,19 +10,19 @@ from django.utils.csp import CSP
 from django.views.decorators.csp import csp_override
 from django.views.decorators.http import require_GET, require_POST
 
-from atelier.roles import FITTER, OWNER, ROLES, WORKROOM, role_of, role_required
+from atelier.roles import EDITORS, ROLES, WORKROOM, role_of, role_required
 from fittings import previews, selectors
 from fittings.forms import NewPlanForm, PinForm, PlanOptionsForm, cell_name
 from fittings.models import MeasurementSession, Plan, PlanRevision
+from fittings.services import ConcurrentEdit
 from fittings.services import plans as plan_services
 from fittings.tables import plan_table
 from fittings.wording import findings_for_screen, import_refusal, in_unit
+from patterns.core.fitting import allot_measurements
 from patterns.core.measures import LEVEL_LABELS
 from patterns.core.report import direction
 from patterns.core.units import format_length, format_with_unit
 from patterns.selectors import active_patterns
-
-EDITORS = (OWNER, FITTER)
 
 
 def _session(pk):
@@ -69,7 +69,7 @@ def plan_new(request, session_pk):
     # The garment being planned: the one carried over, else the client's last plan's, else the best size's.
     earlier = based_on.plan if based_on else session.client.plans.select_related("base_pattern").order_by("-created_at").first()
     garment = earlier.base_pattern.garment if earlier else None
-    suggestions = plan_services.suggestions_for_session(session, patterns, garment=garment)
+    suggestions = selectors.suggestions_for_session(session, patterns, garment=garment)
     unit = session.unit
     for_page = [
         {"label": s.label, "garment": s.garment, "largest": format_with_unit(s.largest_edge_mm, unit),
@@ -129,9 +129,9 @@ def plan_edit(request, pk):
             revision = plan_services.save_revision(
                 plan=plan, options=form.options(), user=request.user, expected_version=expected,
             )
-        except plan_services.ConcurrentEdit as exc:
+        except ConcurrentEdit as exc:
             plan.refresh_from_db()
-            return _plan_page(request, plan, plan_services.latest_revision(plan), form, block, values, None,
+            return _plan_page(request, plan, selectors.latest_revision(plan), form, block, values, None,
                               status=409, conflict=str(exc))
         messages.success(request, f"Saved as revision {revision.number}.")
         return redirect("fittings:revision_detail", plan.pk, revision.number)
@@ -156,7 +156,7 @@ def plan_recompute(request, pk):
                             "problems": _problems(form, block)})
             return render(request, "fittings/plan_edit.html#plan-result", context, status=422)
         return _plan_page(request, plan, latest, form, block, values, None, status=400)
-    result = plan_services.compute(block, values, form.options())
+    result = allot_measurements(block, values, form.options())
     if request.htmx:
         context = _result_context(request, plan, form, block, result, form.options())
         context.update({"oob": True, "option_fields": _option_fields(form)})
@@ -211,7 +211,7 @@ def _live_result(request, pk):
     form = PlanOptionsForm(request.GET, block=block, unit=options.unit)
     if form.is_valid():
         options = form.options()
-    return block, previews.computed(block, values, options)
+    return block, allot_measurements(block, values, options)
 
 
 def _svg_response(svg: str, cached: bool):
@@ -242,7 +242,7 @@ def _result_context(request, plan, form, block, result, options):
 
 def _plan_page(request, plan, latest, form, block, values, result, status=200, conflict=None, options=None):
     if result is None and form.is_bound and form.is_valid():
-        result = plan_services.compute(block, values, form.options())
+        result = allot_measurements(block, values, form.options())
         options = form.options()
     if result is None:
         result = selectors.revision_result(latest)
@@ -357,7 +357,7 @@ def revision_apply_pins(request, pk, number):
         return HttpResponse("The form was damaged; reload the page.", status=400)
     try:
         new = plan_services.revision_with_pins(revision=revision, user=request.user, expected_version=expected)
-    except plan_services.ConcurrentEdit as exc:
+    except ConcurrentEdit as exc:
         messages.error(request, str(exc))
         return redirect("fittings:revision_pins", plan.pk, revision.number)
     messages.success(request, f"Revision {new.number} carries the pins from revision {revision.number}.")

@@ -8,9 +8,9 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.utils.text import slugify
 from django.views.decorators.http import require_http_methods
 
-from atelier.roles import ROLES, WORKROOM, role_of, role_required
+from atelier.roles import EDITORS, ROLES, WORKROOM, role_of, role_required
 from fittings.models import PlanRevision, PrintJob, PrintKind, PrintPaper, PrintStatus
-from fittings.tasks import ISSUING_ROLES, PrintRefused, settle_abandoned, start_print, waiting_for_a_worker
+from fittings.tasks import PrintRefused, settle_abandoned, start_print, waiting_for_a_worker
 
 # The file a download link names, and the job's field that holds it.
 DOCUMENTS = {"work-order": "work_order", "cutting-sheet": "cutting_sheet"}
@@ -63,7 +63,7 @@ def print_start(request, plan_id, number):
         status = 400
     else:
         form = PrintForm(initial={"paper": default_paper(revision), "kind": PrintKind.BOTH})
-    cannot_print = not revision.is_issued and role_of(request.user) not in ISSUING_ROLES
+    cannot_print = not revision.is_issued and role_of(request.user) not in EDITORS
     context = {"revision": revision, "form": form, "cannot_print": cannot_print}
     return render(request, "fittings/print/start.html", context, status=status)
 

@@ -9,6 +9,7 @@ from django.db import models
 from django.db.models import F, Q
 
 from patterns.core import block as core
+from patterns.core.defaults import is_corset
 from patterns.core.measures import LEVEL_LABELS, LEVEL_CODES
 from patterns.core.units import STORE_PLACES
 
@@ -96,6 +97,10 @@ class BasePattern(models.Model):
 
     def __str__(self):
         return f"{self.name}, size {self.size_label}"
+
+    @property
+    def is_corset(self) -> bool:
+        return is_corset(self.garment)
 
 
 class PatternLevel(models.Model):

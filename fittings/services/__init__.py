@@ -1,1 +1,6 @@
-"""Writes for clients, sessions and plans (HackSoft-style services), one module per subject."""
+"""Writes for clients, sessions and plans, one module per subject; each write is one transaction
+with its audit entry.  Reads are in ``fittings.selectors``."""
+
+
+class ConcurrentEdit(Exception):
+    """Someone else saved this first; nothing was overwritten."""

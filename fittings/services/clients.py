@@ -15,11 +15,8 @@ from PIL import Image, ImageOps
 
 from fittings import audit
 from fittings.models import Client, Measurement, MeasurementSession, Photo, PhotoView
+from fittings.services import ConcurrentEdit
 from patterns.core.measures import MEASURES
-
-
-class ConcurrentEdit(Exception):
-    """Someone else saved this first; nothing was overwritten."""
 
 
 def today():

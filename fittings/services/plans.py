@@ -6,7 +6,7 @@ by the plan's ``version``: a save names the version it started from, and
 is refused when another save came first.
 """
 
-from dataclasses import dataclass, replace
+from dataclasses import replace
 
 from django.db import transaction
 from django.db.models import F
@@ -14,80 +14,22 @@ from django.utils import timezone
 
 from fittings import audit
 from fittings.models import PinAdjustment, Plan, PlanRevision, RevisionStatus
-from patterns.core.allot import Allotment, PlanOptions, allot, suggest_size
+from fittings.selectors import latest_revision, revision_inputs, session_values
+from fittings.services import ConcurrentEdit
 from patterns.core.allot import PinAdjustment as Pin
-from patterns.core.block import CB_LACED, Block
-from patterns.core.fitting import (
-    allotment_from_dict, block_from_dict, body_from_measurements, fitting_to_dict, options_from_dict, result_to_json,
-)
-from patterns.core.units import DEFAULT_STEP_MM
+from patterns.core.allot import PlanOptions
+from patterns.core.block import Block
+from patterns.core.defaults import block_for_unit, default_options
+from patterns.core.fitting import allot_measurements, fitting_to_dict, result_to_json
 from patterns.selectors import block_for
-
-# Starting ease per garment, changed by the fitter at every plan.  Common
-# practice: a corset sits close at bust and hip and reduces the waist, 5 cm
-# being a gentle first reduction; a fitted bodice keeps a few centimetres of
-# wearing ease (the bodice figures are from memory).
-CORSET_EASE_MM = {"bust": -20.0, "underbust": -20.0, "waist": -50.0, "abdomen": -20.0, "hip": 0.0}
-BODICE_EASE_MM = {"bust": 40.0, "underbust": 20.0, "waist": 20.0, "abdomen": 30.0, "hip": 30.0}
-LACING_GAP_MM = 50.0
-# Plans kept in inches start from the trade's inch values, not converted centimetres (common practice):
-# a 2 in lacing gap and a 5/8 in seam allowance where the base pattern has the metric 1.5 cm.
-LACING_GAP_INCH_MM = 50.8
-SEAM_ALLOWANCE_INCH_MM = 15.875
-METRIC_SEAM_ALLOWANCE_MM = 15.0
-
-
-class ConcurrentEdit(Exception):
-    """Someone else saved this first; nothing was overwritten."""
 
 
 class RevisionIssued(Exception):
     """An issued revision cannot be edited."""
 
 
-def session_values(session) -> dict[str, float]:
-    """The session's readings in mm, keyed by measurement code (uses prefetched rows)."""
-    return {m.code: float(m.value_mm) for m in session.measurements.all()}
-
-
-def block_for_unit(block: Block, unit: str) -> Block:
-    """The block a plan kept in ``unit`` is cut from: in inches, the metric 1.5 cm allowance becomes 5/8 in."""
-    if unit == "in" and abs(block.seam_allowance_mm - METRIC_SEAM_ALLOWANCE_MM) < 1e-9:
-        return replace(block, seam_allowance_mm=SEAM_ALLOWANCE_INCH_MM)
-    return block
-
-
-def default_options(block: Block, unit: str) -> PlanOptions:
-    ease = CORSET_EASE_MM if "corset" in block.garment else BODICE_EASE_MM
-    gap = LACING_GAP_INCH_MM if unit == "in" else LACING_GAP_MM
-    return PlanOptions(
-        ease={lv: ease.get(lv, 0.0) for lv in block.level_names},
-        lacing_gap_mm=gap if block.centre_back == CB_LACED else 0.0,
-        step_mm=DEFAULT_STEP_MM[unit],
-        unit=unit,
-    )
-
-
-def compute(block: Block, values: dict[str, float], options: PlanOptions) -> Allotment:
-    return allot(block, body_from_measurements(values), options)
-
-
-def revision_inputs(revision: PlanRevision) -> tuple[dict[str, float], Block, PlanOptions]:
-    data = revision.inputs
-    unit = data.get("unit", "cm")
-    return data["measurements"], block_from_dict(data["pattern"]), options_from_dict(data.get("plan", {}), unit)
-
-
-def revision_result(revision: PlanRevision) -> Allotment:
-    return allotment_from_dict(revision.result)
-
-
-def latest_revision(plan: Plan) -> PlanRevision | None:
-    return plan.revisions.order_by("-number").first()
-
-
 def _append(plan: Plan, block: Block, values: dict, options: PlanOptions, user, based_on=None) -> PlanRevision:
-    result = compute(block, values, options)
+    result = allot_measurements(block, values, options)
     meta = {"client": plan.client.reference, "garment": plan.garment}
     number = (plan.revisions.order_by("-number").values_list("number", flat=True).first() or 0) + 1
     return PlanRevision.objects.create(
@@ -183,55 +125,6 @@ def revision_with_pins(*, revision: PlanRevision, user, expected_version: int) -
     new = _append(plan, block, values, options, user, based_on=revision)
     _audit_revision(new, user, expected_version, f"made from the pins on revision {revision.number}")
     return new
-
-
-@dataclass(frozen=True)
-class Suggestion:
-    pattern_pk: int
-    label: str
-    reason: str
-    largest_edge_mm: float
-    total_edges_mm: float
-    errors: int
-    garment: str = ""
-    over_cap: int = 0
-
-
-def suggestions_for_session(session, patterns, garment: str | None = None) -> list[Suggestion]:
-    """For every run of base patterns, its sizes ranked for this session's readings, least alteration first.
-
-    The sizes of ``garment`` (a base pattern's garment kind) come first, in
-    the engine's order (problems, edges over their limit, largest edge, all
-    edges); the other garments' after them, in the same order.  Without
-    ``garment`` the garment of the best size overall is taken.
-    """
-    values = session_values(session)
-    patterns = list(patterns.prefetch_related("levels", "panels__lines", "seams"))
-    runs: dict[object, list] = {}
-    for pattern in patterns:
-        runs.setdefault(pattern.size_run_id or f"single-{pattern.pk}", []).append(pattern)
-    out = []
-    for members in runs.values():
-        blocks = {p.pk: block_for(p) for p in members}
-        pattern_of = {id(block): pk for pk, block in blocks.items()}
-        first = blocks[members[0].pk]
-        options = default_options(first, session.unit)
-        for choice in suggest_size(list(blocks.values()), body_from_measurements(values), options):
-            pk = pattern_of[id(choice.block)]
-            out.append(Suggestion(
-                pattern_pk=pk, label=f"{choice.block.name}, size {choice.block.size}",
-                reason=choice.reason, largest_edge_mm=choice.largest_edge_mm,
-                total_edges_mm=choice.total_edges_mm, errors=choice.errors, garment=choice.block.garment,
-                over_cap=choice.over_cap,
-            ))
-
-    def rank(s):
-        return (s.errors, s.over_cap, round(s.largest_edge_mm, 6), round(s.total_edges_mm, 6))
-
-    if garment is None and out:
-        garment = min(out, key=rank).garment
-    out.sort(key=lambda s: (s.garment != garment, *rank(s)))
-    return out
 
 
 @transaction.atomic

@@ -14,7 +14,7 @@ plan's step, then any toile pin adjustments on top.
 import math
 from dataclasses import asdict, dataclass, field, replace
 
-from patterns.core.block import BACK, CB_LACED, FRONT, Alteration, Block, PanelShift
+from patterns.core.block import BACK, CB_LACED, FRONT, MIN_PANEL_WIDTH_MM, Alteration, Block, PanelShift
 from patterns.core.findings import CAUTION, ERROR, WARNING, Finding
 from patterns.core.measures import LENGTH_MEASURES, LEVEL_LABELS
 from patterns.core.rounding import EPS, round_to_step, steps_of
@@ -28,7 +28,6 @@ POLICIES = {
 }
 
 # Thresholds, each with where it comes from.
-MIN_PANEL_WIDTH_MM = 20.0  # our choice: room for a boning channel and two seam allowances' turn (memory)
 STEEP_SLOPE = 0.2  # our choice: 1 mm of shift per 5 mm of seam between levels keeps the line smooth
 ABSURD_UNDERBUST_EXCESS_MM = 100.0  # our choice: underbust over bust by more than 10 cm is a mis-reading
 FIRST_CORSET_REDUCTION_MM = 100.0  # common practice: a first corset reduces the waist 5-10 cm

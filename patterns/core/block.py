@@ -18,6 +18,10 @@ CF_FOLD, CF_BUSK = "fold", "busk"
 CB_LACED, CB_SEAMED = "laced", "seamed"
 LEFT, RIGHT = "left", "right"
 
+# The narrowest a panel may be anywhere: room for a boning channel and two seam allowances' turn
+# (our choice, from memory).  The engine checks it at the levels, the outline along the whole panel.
+MIN_PANEL_WIDTH_MM = 20.0
+
 # How a seam is treated by the "side seams first" policy.
 SEAM_KINDS = ("side", "princess", "other")
 

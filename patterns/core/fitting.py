@@ -14,7 +14,7 @@ from pathlib import Path
 
 import jsonschema
 
-from patterns.core.allot import Allotment, Body, Override, PinAdjustment, PlanOptions
+from patterns.core.allot import Allotment, Body, Override, PinAdjustment, PlanOptions, allot
 from patterns.core.block import Block, Level, Panel, Point, Seam, block_errors
 from patterns.core.measures import FRONT_ARC_BY_LEVEL, GIRTH_BY_LEVEL, LENGTH_MEASURES, MEASURE_BY_CODE
 from patterns.core.units import DEFAULT_STEP_MM
@@ -97,6 +97,11 @@ def body_from_measurements(values: dict[str, float]) -> Body:
         lengths={m.code: float(values[m.code]) for m in LENGTH_MEASURES if values.get(m.code) is not None},
         bust_span=float(values["bust_span"]) if values.get("bust_span") is not None else None,
     )
+
+
+def allot_measurements(block: Block, measurements: dict[str, float], options: PlanOptions) -> Allotment:
+    """The engine on a fitting's readings (mm by measurement code), as every screen and print asks it."""
+    return allot(block, body_from_measurements(measurements), options)
 
 
 def options_to_dict(options: PlanOptions) -> dict:

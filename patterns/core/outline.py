@@ -23,7 +23,7 @@ import numpy as np
 import shapely
 from shapely.geometry import LineString, MultiPolygon, Polygon, box
 
-from patterns.core.block import LEFT, RIGHT, Alteration, Block, Panel, Seam
+from patterns.core.block import LEFT, MIN_PANEL_WIDTH_MM, RIGHT, Alteration, Block, Panel, Seam
 from patterns.core.findings import ERROR, WARNING, Finding
 from patterns.core.measures import LEVEL_LABELS
 
@@ -34,9 +34,6 @@ SAMPLE_STEP_MM = 5.0
 # Threads magazine no. 200, "10 patternwork skills" (1/16 in is the aim,
 # 1/8 in widely accepted).  1 in = 25.4 mm exactly.
 TRUING_TOLERANCE_MM = 25.4 / 8
-# Narrower than this a panel is hard to sew and cannot carry a bone channel
-# (common practice / our choice).
-MIN_PANEL_WIDTH_MM = 20.0
 # A stitch line bending more than this at a level point shows as a kink in
 # the finished garment (our choice).
 MAX_TURN_DEGREES = 30.0

@@ -42,7 +42,7 @@ from fittings.documents import (  # noqa: E402
     DocumentData, html_to_pdf, render_documents,
 )
 from fittings import previews  # noqa: E402
-from fittings.services.plans import default_options  # noqa: E402
+from patterns.core.defaults import default_options  # noqa: E402
 from patterns import demo  # noqa: E402
 from patterns.core.allot import allot  # noqa: E402
 from patterns.core.block import BACK, CB_LACED, CF_BUSK, FRONT, Block, Panel, Point, Seam  # noqa: E402

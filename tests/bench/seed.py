@@ -19,6 +19,7 @@ import sys
 import time
 from datetime import date, timedelta
 from pathlib import Path
+from fittings import selectors
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 os.environ.setdefault("DJANGO_SETTINGS_MODULE", "tests.bench.settings")
@@ -168,9 +169,8 @@ def add_long_history(fitter, pattern, sessions: int = 120, plans: int = 6):
 def plan_form_data(plan) -> dict:
     """What the plan page's form posts as it stands: every input, empty cells included, as the browser sends it."""
     from fittings.forms import PlanOptionsForm
-    from fittings.services import plans as plan_services
 
-    values, block, options = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    values, block, options = selectors.revision_inputs(selectors.latest_revision(plan))
     form = PlanOptionsForm(initial={**PlanOptionsForm.initial_for(options, block), "version": plan.version},
                            block=block, unit=options.unit)
     data = {field.html_name: "" if field.value() is None else str(field.value()) for field in form}

@@ -40,6 +40,7 @@ from patterns.core.fitting import body_from_measurements, load_fitting_text
 from patterns.core.measures import LEVEL_LABELS
 from patterns.core.tiling import OVERLAP_MM, PAGE_MARGIN_MM
 from patterns.core.units import format_length
+from fittings import selectors
 
 MM_PER_PT = 25.4 / 72  # ISO 32000-1 8.3.2.3 and the 1959 agreement
 EXAMPLES = Path(__file__).resolve().parents[2] / "patterns" / "examples"
@@ -458,7 +459,7 @@ def start_url(revision):
 @pytest.mark.django_db
 @pytest.mark.urls(__name__)
 def test_it_issues_a_draft_prints_it_and_serves_the_files(fitter_client, plan):
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     assert revision.status == RevisionStatus.DRAFT
     response = fitter_client.post(start_url(revision), {"paper": "letter", "kind": "both"})
     job = PrintJob.objects.get()
@@ -485,7 +486,7 @@ def test_it_issues_a_draft_prints_it_and_serves_the_files(fitter_client, plan):
 @pytest.mark.django_db
 @pytest.mark.urls(__name__)
 def test_it_shows_progress_as_an_htmx_fragment_that_polls_until_done(fitter_client, plan, quick_render):
-    revision = plan_services.issue_revision(revision=plan_services.latest_revision(plan), user=None)
+    revision = plan_services.issue_revision(revision=selectors.latest_revision(plan), user=None)
     waiting = PrintJob.objects.create(revision=revision, paper="a4")
     url = reverse("fittings:print_status", args=[waiting.pk])
     full = fitter_client.get(url)
@@ -503,7 +504,7 @@ def test_it_shows_progress_as_an_htmx_fragment_that_polls_until_done(fitter_clie
 @pytest.mark.django_db
 @pytest.mark.urls(__name__)
 def test_it_gives_up_on_a_job_its_worker_left_and_offers_to_print_again(fitter_client, plan):
-    revision = plan_services.issue_revision(revision=plan_services.latest_revision(plan), user=None)
+    revision = plan_services.issue_revision(revision=selectors.latest_revision(plan), user=None)
     now = timezone.now()
     left = PrintJob.objects.create(revision=revision, paper="a4", status="running", step="Drawing",
                                    started_at=now - tasks.WORKER_GONE_AFTER - timedelta(seconds=1))
@@ -521,7 +522,7 @@ def test_it_gives_up_on_a_job_its_worker_left_and_offers_to_print_again(fitter_c
 @pytest.mark.django_db
 @pytest.mark.urls(__name__)
 def test_it_says_when_no_worker_takes_the_job(fitter_client, plan):
-    revision = plan_services.issue_revision(revision=plan_services.latest_revision(plan), user=None)
+    revision = plan_services.issue_revision(revision=selectors.latest_revision(plan), user=None)
     fresh = PrintJob.objects.create(revision=revision, paper="a4")
     stuck = PrintJob.objects.create(revision=revision, paper="a4",
                                     created_at=timezone.now() - tasks.NO_WORKER_AFTER - timedelta(seconds=1))
@@ -536,7 +537,7 @@ def test_it_says_when_no_worker_takes_the_job(fitter_client, plan):
 @pytest.mark.django_db
 @pytest.mark.urls(__name__)
 def test_it_clears_old_files_but_keeps_the_jobs_and_offers_a_reprint(fitter_client, plan, quick_render, settings):
-    revision = plan_services.issue_revision(revision=plan_services.latest_revision(plan), user=None)
+    revision = plan_services.issue_revision(revision=selectors.latest_revision(plan), user=None)
     old, recent = (PrintJob.objects.create(revision=revision, paper="a4") for _ in range(2))
     for job in (old, recent):
         assert run_print_job(job.pk) == "done"
@@ -565,7 +566,7 @@ def test_it_clears_old_files_but_keeps_the_jobs_and_offers_a_reprint(fitter_clie
 @pytest.mark.django_db
 @pytest.mark.urls(__name__)
 def test_it_sends_anonymous_visitors_to_the_login(client, plan, quick_render):
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     job = PrintJob.objects.create(revision=revision, paper="a4")
     for url in (reverse("fittings:print_download", args=[job.pk, "work-order"]),
                 reverse("fittings:print_status", args=[job.pk]), start_url(revision)):
@@ -580,7 +581,7 @@ def test_it_sends_anonymous_visitors_to_the_login(client, plan, quick_render):
 @pytest.mark.django_db
 @pytest.mark.urls(__name__)
 def test_it_answers_404_for_what_does_not_exist(fitter_client, plan, quick_render):
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     assert fitter_client.get(reverse("fittings:print_status", args=[999999])).status_code == 404
     assert fitter_client.get(reverse("fittings:print_download", args=[999999, "work-order"])).status_code == 404
     assert fitter_client.get(reverse("fittings:print_start", args=[plan.pk, 99])).status_code == 404
@@ -595,7 +596,7 @@ def test_it_answers_404_for_what_does_not_exist(fitter_client, plan, quick_rende
 @pytest.mark.urls(__name__)
 @pytest.mark.parametrize("data", [{"paper": "a3", "kind": "both"}, {"paper": "a4", "kind": "poster"}, {}])
 def test_it_refuses_bad_choices_with_a_message(fitter_client, plan, quick_render, data):
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     response = fitter_client.post(start_url(revision), data)
     assert response.status_code == 400
     assert "Select a valid choice" in response.content.decode() or "This field is required" in response.content.decode()
@@ -606,7 +607,7 @@ def test_it_refuses_bad_choices_with_a_message(fitter_client, plan, quick_render
 @pytest.mark.django_db
 @pytest.mark.urls(__name__)
 def test_it_offers_the_print_form_and_refuses_other_methods(fitter_client, plan):
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     page = fitter_client.get(start_url(revision))
     html = page.content.decode()
     assert page.status_code == 200 and "Issue and print" in html
@@ -617,7 +618,7 @@ def test_it_offers_the_print_form_and_refuses_other_methods(fitter_client, plan)
 @pytest.mark.django_db
 @pytest.mark.urls(__name__)
 def test_it_lets_the_workroom_print_issued_revisions_only(workroom_client, fitter_user, plan, quick_render):
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     refused = workroom_client.get(start_url(revision))
     page = refused.content.decode()
     # A draft is refused in words, with the way to the workroom's queue (not a dead end).
@@ -640,7 +641,7 @@ def test_it_refuses_to_issue_a_draft_the_engine_found_errors_in(fitter_client, f
     session.measurements.create(code="bust_girth", value_mm=950)  # no waist, underbust, abdomen or hip
     plan = plan_services.start_plan(client=reducing_client, session=session, pattern=corset_12,
                                     garment="Corset", user=fitter_user)
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     response = fitter_client.post(start_url(revision), {"paper": "a4", "kind": "both"})
     assert response.status_code == 400
     assert "problems to resolve before it can be printed" in response.content.decode()
@@ -655,7 +656,7 @@ def test_it_records_a_failed_drawing_in_words(fitter_client, plan, monkeypatch):
         raise RuntimeError("the pen ran dry")
 
     monkeypatch.setattr("fittings.documents.render_work_order", broken)
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     response = fitter_client.post(start_url(revision), {"paper": "a4", "kind": "both"})
     job = PrintJob.objects.get()
     assert response.status_code == 302 and job.status == "failed" and job.finished_at is not None
@@ -668,7 +669,7 @@ def test_it_records_a_failed_drawing_in_words(fitter_client, plan, monkeypatch):
 @pytest.mark.django_db
 @pytest.mark.urls(__name__)
 def test_it_prints_the_client_name_only_where_the_atelier_allows_it(settings, plan):
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     client = plan.client
     assert client_label(client) == client.reference
     data = document_data(revision, BASE_URL)
@@ -681,7 +682,7 @@ def test_it_prints_the_client_name_only_where_the_atelier_allows_it(settings, pl
 @pytest.mark.django_db
 @pytest.mark.urls(__name__)
 def test_it_runs_a_job_once(plan, quick_render):
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     job = PrintJob.objects.create(revision=revision, paper="a4", kind="cutting_sheet")
     assert run_print_job(job.pk) == "done"
     assert run_print_job(job.pk) == "skipped"
@@ -698,7 +699,7 @@ def test_it_leaves_the_drawing_to_the_worker_when_tasks_are_queued(settings, fit
     from django.core.management import call_command
 
     settings.TASKS = {"default": {"BACKEND": "django_tasks_db.DatabaseBackend"}}
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     response = fitter_client.post(start_url(revision), {"paper": "a4", "kind": "both"})
     job = PrintJob.objects.get()
     # The request only queued the job: nothing drawn yet, and the page keeps asking.
@@ -715,7 +716,7 @@ def test_it_leaves_the_drawing_to_the_worker_when_tasks_are_queued(settings, fit
 @pytest.mark.django_db
 @pytest.mark.urls(__name__)
 def test_it_shows_print_jobs_read_only_in_the_admin(admin_client, plan, quick_render):
-    revision = plan_services.issue_revision(revision=plan_services.latest_revision(plan), user=None)
+    revision = plan_services.issue_revision(revision=selectors.latest_revision(plan), user=None)
     job = PrintJob.objects.create(revision=revision, paper="a4")
     run_print_job(job.pk)
     listing = admin_client.get(reverse("admin:fittings_printjob_changelist"))

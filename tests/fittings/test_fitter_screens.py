@@ -9,6 +9,8 @@ from fittings.forms import cell_name
 from fittings.services import plans as plan_services
 from patterns.core.measures import LEVEL_LABELS
 from tests.fittings.test_views_plans import options_post
+from fittings import selectors
+from patterns.core.fitting import allot_measurements
 
 pytestmark = pytest.mark.django_db
 
@@ -24,7 +26,7 @@ def test_it_lets_htmx_swap_a_refused_recompute_and_says_why(fitter_client, plan)
     assert first["swap"] is True and not first.get("error")
     assert "atelier/live" in page and "<script>" not in page  # the static file, no inline script
 
-    _, block, _ = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    _, block, _ = selectors.revision_inputs(selectors.latest_revision(plan))
     side = next(i for i, s in enumerate(block.seams) if s.kind == "side")
     data = options_post(plan, ease_waist="-2 1/", **{cell_name(side, "waist", 0): "abc"})
     fragment = fitter_client.post(reverse("fittings:plan_recompute", args=[plan.pk]), data, headers={"HX-Request": "true"})
@@ -40,18 +42,18 @@ def test_it_lets_htmx_swap_a_refused_recompute_and_says_why(fitter_client, plan)
 
 
 def test_it_heads_the_pin_form_with_the_levels_and_names_each_cell(fitter_client, plan):
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     url = reverse("fittings:revision_pins", args=[plan.pk, revision.number])
     html = fitter_client.get(url).content.decode()
     head = re.search(r"<thead>(.*?)</thead>", html, re.S).group(1)
     assert re.findall(r'<th scope="col">([^<]+)</th>', head) == ["Seam", *(LEVEL_LABELS[lv] for lv in ("bust", "underbust", "waist", "abdomen", "hip"))]
-    _, block, _ = plan_services.revision_inputs(revision)
+    _, block, _ = selectors.revision_inputs(revision)
     assert f'aria-label="{block.seams[0].name}, waist: pin, in"' in html
     assert "pin-0-waist" not in re.findall(r'aria-label="([^"]*)"', html)[0]
 
 
 def test_it_lists_recorded_pins_in_the_plan_unit(fitter_client, plan):
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     url = reverse("fittings:revision_pins", args=[plan.pk, revision.number])
     assert fitter_client.post(url, {"pin-0-waist": "-3/8", "note": "", "version": plan.version}).status_code == 302
     html = fitter_client.get(url).content.decode()
@@ -59,7 +61,7 @@ def test_it_lists_recorded_pins_in_the_plan_unit(fitter_client, plan):
 
 
 def _inch_plan_with_a_heavy_fixed_cell(plan):
-    _, block, _ = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    _, block, _ = selectors.revision_inputs(selectors.latest_revision(plan))
     side = next(i for i, s in enumerate(block.seams) if s.kind == "side")
     # 3 in taken in at one edge: 6 in of girth, more than the waist's need the same way.
     return options_post(plan, ease_waist="-6", **{cell_name(side, "waist", 0): "-3"})
@@ -79,7 +81,7 @@ def test_it_prints_the_findings_of_an_inch_plan_in_inches(fitter_client, plan):
 
     assert fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]),
                               _inch_plan_with_a_heavy_fixed_cell(plan)).status_code == 302
-    data = documents.document_data(plan_services.latest_revision(plan))
+    data = documents.document_data(selectors.latest_revision(plan))
     pattern = documents.altered_pattern(data)
     texts = [row["message"] for row in documents.finding_rows(data, pattern)] + documents.cautions(data)
     assert any("set by hand" in t for t in texts) and any("6 in" in t for t in texts)
@@ -120,8 +122,8 @@ def test_it_starts_an_inch_plan_from_the_trades_inch_values(fitter_client, plan)
     """5/8 in seam allowance and a 2 in lacing gap (common practice), not 1.5 cm and 5 cm converted."""
     from fittings import documents
 
-    revision = plan_services.latest_revision(plan)
-    values, block, options = plan_services.revision_inputs(revision)
+    revision = selectors.latest_revision(plan)
+    values, block, options = selectors.revision_inputs(revision)
     assert options.unit == "in"
     assert block.seam_allowance_mm == pytest.approx(15.875)  # 5/8 in = 15.875 mm
     if block.centre_back == "laced":
@@ -133,18 +135,18 @@ def test_it_starts_an_inch_plan_from_the_trades_inch_values(fitter_client, plan)
 
 
 def test_it_shows_pins_and_lacing_gap_so_the_girth_table_adds_up(fitter_client, plan):
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     pins_url = reverse("fittings:revision_pins", args=[plan.pk, revision.number])
     fitter_client.post(pins_url, {"pin-0-waist": "-1/2", "note": "", "version": plan.version})
     fitter_client.post(reverse("fittings:revision_apply_pins", args=[plan.pk, revision.number]), {"version": plan.version})
-    pinned = plan_services.latest_revision(plan)
+    pinned = selectors.latest_revision(plan)
     assert pinned.number == 2
     response = fitter_client.get(reverse("fittings:revision_detail", args=[plan.pk, 2]))
     html = response.content.decode()
     head = re.search(r'id="levels-heading".*?</thead>', html, re.S).group(0)
     assert re.findall(r'<th scope="col">([^<]+)</th>', head) == [
         "Level", "Body", "Ease", "Lacing gap", "Target", "Pattern", "Difference", "Seams give", "Pins", "Left over"]
-    result = plan_services.revision_result(pinned)
+    result = selectors.revision_result(pinned)
     waist = next(lv for lv in result.levels if lv.level == "waist")
     row = re.search(r"<tr><th scope=\"row\">Waist.*?</tr>", html, re.S).group(0)
     cells = re.findall(r"<td>([^<]*)</td>", row)
@@ -155,7 +157,7 @@ def test_it_shows_pins_and_lacing_gap_so_the_girth_table_adds_up(fitter_client, 
 
 
 def test_it_words_the_seam_checks_with_both_edges_before_and_after(fitter_client, plan):
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     html = fitter_client.get(reverse("fittings:revision_checks", args=[plan.pk, revision.number])).content.decode()
     head = re.search(r"<thead>(.*?)</thead>", html, re.S).group(1)
     headings = re.findall(r'<th scope="col">([^<]*)</th>', head)
@@ -163,8 +165,8 @@ def test_it_words_the_seam_checks_with_both_edges_before_and_after(fitter_client
     assert ">true<" not in html
     from fittings import previews
 
-    values, block, _ = plan_services.revision_inputs(revision)
-    t = previews.altered_for(block, plan_services.revision_result(revision)).seams[0]
+    values, block, _ = selectors.revision_inputs(revision)
+    t = previews.altered_for(block, selectors.revision_result(revision)).seams[0]
     from patterns.core.units import format_length as fl
 
     row = re.search(rf'<th scope="row">{re.escape(t.seam)}</th>(.*?)</tr>', html, re.S).group(1)
@@ -209,7 +211,7 @@ def test_it_opens_the_compare_chooser_with_two_different_choices_and_no_error(fi
 
 
 def test_it_serves_the_preview_so_it_renders_opened_alone(fitter_client, plan):
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     for url in (reverse("fittings:revision_preview", args=[plan.pk, revision.number]),
                 reverse("fittings:plan_preview", args=[plan.pk])):
         response = fitter_client.get(url)
@@ -269,12 +271,12 @@ def test_it_marks_a_hand_fixed_cell_on_its_own_panel_in_words_below_the_edge_lab
     from fittings.forms import PlanOptionsForm
     from patterns.core.preview import SHIFT_FONT_PT, build_figure
 
-    revision = plan_services.latest_revision(plan)
-    values, block, options = plan_services.revision_inputs(revision)
+    revision = selectors.latest_revision(plan)
+    values, block, options = selectors.revision_inputs(revision)
     side = next(i for i, s in enumerate(block.seams) if s.kind == "side")
     form = PlanOptionsForm(_inch_plan_with_a_heavy_fixed_cell(plan), block=block, unit="in")
     assert form.is_valid(), form.errors
-    result = plan_services.compute(block, values, form.options())
+    result = allot_measurements(block, values, form.options())
     assert any(f.code == "override_exceeds_difference" for f in result.findings)
     markers = [m for m in previews.preview_markers(block, result) if m[1] == "waist"]
     fixed_panel = block.seams[side].front_panel
@@ -324,8 +326,8 @@ def test_it_says_plainly_that_a_broken_file_cannot_be_read(fitter_client, plan, 
 
 
 def test_it_gives_the_workroom_a_queue_of_issued_revisions_and_no_contacts_or_drafts(workroom_client, fitter_user, plan):
-    issued = plan_services.issue_revision(revision=plan_services.latest_revision(plan), user=fitter_user)
-    draft = plan_services.save_revision(plan=plan, options=plan_services.revision_inputs(issued)[2], user=fitter_user,
+    issued = plan_services.issue_revision(revision=selectors.latest_revision(plan), user=fitter_user)
+    draft = plan_services.save_revision(plan=plan, options=selectors.revision_inputs(issued)[2], user=fitter_user,
                                         expected_version=plan.version)
     assert workroom_client.get(reverse("fittings:client_list"))["Location"] == reverse("fittings:workroom_queue")
     html = workroom_client.get(reverse("fittings:workroom_queue")).content.decode()
@@ -377,7 +379,7 @@ def test_it_proofs_a_draft_without_issuing_it_with_draft_on_every_page(fitter_cl
 
     import pypdf
 
-    revision = plan_services.latest_revision(plan)
+    revision = selectors.latest_revision(plan)
     assert revision.status == "draft"
     page = fitter_client.get(reverse("fittings:revision_detail", args=[plan.pk, revision.number])).content.decode()
     url = reverse("fittings:revision_proof", args=[plan.pk, revision.number, "work-order"])
@@ -400,8 +402,8 @@ def test_it_offers_a_reset_to_the_saved_revision_on_the_plan_page(fitter_client,
 
 
 def test_it_says_at_the_dot_why_a_seam_is_locked_at_a_level(fitter_client, plan):
-    revision = plan_services.latest_revision(plan)
-    _, block, _ = plan_services.revision_inputs(revision)
+    revision = selectors.latest_revision(plan)
+    _, block, _ = selectors.revision_inputs(revision)
     seam, level = next((s, lv) for s in block.seams for lv in block.level_names if lv not in s.alterable_at)
     html = fitter_client.get(reverse("fittings:plan_edit", args=[plan.pk])).content.decode()
     where = LEVEL_LABELS[level].lower()

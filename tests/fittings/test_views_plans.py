@@ -9,13 +9,15 @@ from fittings.forms import cell_name
 from fittings.models import Plan, PlanRevision
 from fittings.services import plans as plan_services
 from patterns.core.units import format_length
+from fittings import selectors
+from patterns.core.fitting import allot_measurements
 
 pytestmark = pytest.mark.django_db
 
 
 def options_post(plan, **changes):
     """The plan page's form as a browser would send it, with some fields changed."""
-    values, block, options = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    values, block, options = selectors.revision_inputs(selectors.latest_revision(plan))
     from fittings.forms import PlanOptionsForm
 
     data = {k: v for k, v in PlanOptionsForm.initial_for(options, block).items()}
@@ -61,24 +63,24 @@ def test_it_shows_what_the_engine_computed(fitter_client, plan):
     data = options_post(plan, ease_waist="-6")
     html = fitter_client.post(reverse("fittings:plan_recompute", args=[plan.pk]), data,
                               headers={"HX-Request": "true"}).content.decode()
-    values, block, _ = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    values, block, _ = selectors.revision_inputs(selectors.latest_revision(plan))
     from fittings.forms import PlanOptionsForm
 
     form = PlanOptionsForm(data, block=block, unit="in")
     assert form.is_valid(), form.errors
-    result = plan_services.compute(block, values, form.options())
+    result = allot_measurements(block, values, form.options())
     for s in result.shifts:
         assert f'placeholder="{format_length(s.shift_mm, "in", signed=True)}"' in html
 
 
 def test_it_keeps_a_fixed_cell_and_spreads_the_rest(fitter_client, plan):
-    values, block, options = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    values, block, options = selectors.revision_inputs(selectors.latest_revision(plan))
     side = next(i for i, s in enumerate(block.seams) if s.kind == "side")
     data = options_post(plan, **{cell_name(side, "waist", 0): "-1/2"})
     response = fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]), data)
     assert response.status_code == 302
-    revision = plan_services.latest_revision(plan)
-    result = plan_services.revision_result(revision)
+    revision = selectors.latest_revision(plan)
+    result = selectors.revision_result(revision)
     seam = block.seams[side]
     assert result.shift(seam.name, "waist", seam.front_panel) == pytest.approx(-12.7)  # 1/2 in = 12.7 mm exactly
     waist = result.level("waist")
@@ -140,15 +142,15 @@ def test_it_serves_the_preview_as_svg_and_draws_it_once(fitter_client, plan, mon
 
 
 def test_it_records_toile_pins_and_carries_them_into_the_next_revision(fitter_client, plan):
-    values, block, options = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    values, block, options = selectors.revision_inputs(selectors.latest_revision(plan))
     back = next(i for i, s in enumerate(block.seams) if s.name == "Back princess seam")
     url = reverse("fittings:revision_pins", args=[plan.pk, 1])
     assert fitter_client.post(url, {f"pin-{back}-waist": "-1/4", "version": plan.version}).status_code == 302
     response = fitter_client.post(reverse("fittings:revision_apply_pins", args=[plan.pk, 1]), {"version": plan.version})
     assert response.status_code == 302
-    new = plan_services.latest_revision(plan)
+    new = selectors.latest_revision(plan)
     assert new.number == 2 and new.based_on.number == 1
-    result = plan_services.revision_result(new)
+    result = selectors.revision_result(new)
     pinned = [s for s in result.shifts if s.pin_mm]
     # 1/4 in pinned in on one half = 6.35 mm, split over the seam's two raw edges, each rounded to 1/16 in.
     assert sorted(s.pin_mm for s in pinned) == pytest.approx([-3.175, -3.175])
@@ -219,7 +221,7 @@ def test_it_refuses_a_bad_fitting_file_and_saves_nothing(fitter_client, plan, co
 
 
 def test_it_checks_the_seam_lengths_after_the_alteration(fitter_client, plan):
-    values, block, options = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    values, block, options = selectors.revision_inputs(selectors.latest_revision(plan))
     side = next(i for i, s in enumerate(block.seams) if s.kind == "side")
     url = reverse("fittings:plan_checks", args=[plan.pk])
     even = fitter_client.get(url, options_post(plan))
@@ -273,7 +275,7 @@ def _field_value(html: str, name: str) -> str:
                                               ("plan", "-0.3", -7.62), ("plan", "-1 5/16", -33.3375)])
 def test_it_gives_back_a_hand_fixed_cell_exactly_as_typed(fitter_client, request, which, typed, mm):
     plan = request.getfixturevalue(which)
-    _, block, _ = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    _, block, _ = selectors.revision_inputs(selectors.latest_revision(plan))
     side = next(i for i, s in enumerate(block.seams) if s.kind == "side")
     cell, seam = cell_name(side, "waist", 0), block.seams[side]
     assert fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]), options_post(plan, **{cell: typed})).status_code == 302
@@ -283,6 +285,6 @@ def test_it_gives_back_a_hand_fixed_cell_exactly_as_typed(fitter_client, request
     # Saving the reopened page unchanged keeps the very same cell.
     plan.refresh_from_db()
     assert fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]), {**options_post(plan), cell: shown}).status_code == 302
-    fixed = [o for o in plan_services.revision_inputs(plan_services.latest_revision(plan))[2].overrides
+    fixed = [o for o in selectors.revision_inputs(selectors.latest_revision(plan))[2].overrides
              if (o.seam, o.level, o.panel) == (seam.name, "waist", seam.front_panel)]
     assert [round(o.shift_mm, 4) for o in fixed] == [round(mm, 4)]

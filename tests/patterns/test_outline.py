@@ -13,9 +13,9 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from shapely.geometry import LineString, Polygon
 
-from patterns.core.block import LEFT, RIGHT, Alteration, PanelShift
+from patterns.core.block import LEFT, MIN_PANEL_WIDTH_MM, RIGHT, Alteration, PanelShift
 from patterns.core.outline import (
-    MAX_TURN_DEGREES, MIN_PANEL_WIDTH_MM, TRUING_TOLERANCE_MM, alter_block, alter_pattern, base_outlines, pchip,
+    MAX_TURN_DEGREES, TRUING_TOLERANCE_MM, alter_block, alter_pattern, base_outlines, pchip,
     seam_truing,
 )
 from patterns.core.units import MM_PER_INCH

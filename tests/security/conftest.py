@@ -12,8 +12,8 @@ from django.utils import timezone
 from PIL import Image
 
 from fittings.models import Client, Photo, Plan, PlanRevision, PrintJob, PrintStatus
-from fittings.services import plans as plan_services
 from tests.fittings.conftest import corset_12, plan, reducing_client  # noqa: F401  (shared fixtures)
+from fittings import selectors
 
 # The tables a bad request must leave exactly as they were.
 MAIN_APPS = ("fittings", "patterns")
@@ -29,7 +29,7 @@ def options_post(plan, **changes):
     """The plan page's form as a browser sends it (the saved options, the plan's version), some fields changed."""
     from fittings.forms import PlanOptionsForm
 
-    values, block, options = plan_services.revision_inputs(plan_services.latest_revision(plan))
+    values, block, options = selectors.revision_inputs(selectors.latest_revision(plan))
     data = dict(PlanOptionsForm.initial_for(options, block))
     data["version"] = plan.version
     data.update(changes)

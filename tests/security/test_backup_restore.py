@@ -15,9 +15,10 @@ from django.core.management.base import CommandError
 from fittings.models import Client, Photo, Plan, PlanRevision
 from fittings.services import clients as client_services
 from fittings.services import plans as plan_services
-from fittings.services import safety
+from fittings.services import backups
 from patterns.models import BasePattern
 from tests.security.conftest import jpeg_bytes, private_files, table_rows
+from fittings import selectors
 
 # Restoring replaces the whole database, so these tests commit for real (the database is emptied afterwards).
 pytestmark = pytest.mark.django_db(transaction=True)
@@ -49,9 +50,9 @@ def busy_atelier(demo_atelier, fitter_user):
     plan = plan_services.start_plan(client=odalys, session=session, pattern=pattern, garment="Evening corset",
                                     user=fitter_user)
     for version in (1, 2):
-        options = plan_services.revision_inputs(plan_services.latest_revision(plan))[2]
+        options = selectors.revision_inputs(selectors.latest_revision(plan))[2]
         plan_services.save_revision(plan=plan, options=options, user=fitter_user, expected_version=version)
-    plan_services.issue_revision(revision=plan_services.latest_revision(plan), user=fitter_user)
+    plan_services.issue_revision(revision=selectors.latest_revision(plan), user=fitter_user)
     return plan
 
 
@@ -60,7 +61,7 @@ def test_it_restores_every_row_and_every_photo_after_a_wipe(busy_atelier, tmp_pa
     archive = tmp_path / "backups" / "atelier.tar.gz"
     call_command("backup", str(archive), portable=portable)
     member = "database.json" if portable or settings.DATABASES["default"]["ENGINE"].endswith("postgresql") else "database.sqlite3"
-    assert safety.read_manifest(archive)["database"] == member
+    assert backups.read_manifest(archive)["database"] == member
     before, files = every_table(), private_files()
     assert Photo.objects.count() == 2 and len(files) == 2
     assert PlanRevision.objects.filter(plan=busy_atelier).count() == 3
@@ -79,7 +80,7 @@ def test_it_restores_every_row_and_every_photo_after_a_wipe(busy_atelier, tmp_pa
 def test_it_writes_what_the_manifest_says(busy_atelier, tmp_path):
     archive = tmp_path / "atelier.tar.gz"
     call_command("backup", str(archive))
-    manifest = safety.read_manifest(archive)
+    manifest = backups.read_manifest(archive)
     with tarfile.open(archive) as tar:
         names = set(tar.getnames())
     assert names == {"manifest.json", *manifest["files"]}

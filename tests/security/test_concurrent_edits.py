@@ -10,8 +10,8 @@ from django.test import Client as BrowserClient
 from django.urls import reverse
 
 from fittings.models import AuditEntry, Client, MeasurementSession, PlanRevision, RevisionLocked
-from fittings.services import plans as plan_services
 from tests.security.conftest import form_fields
+from fittings import selectors
 
 pytestmark = pytest.mark.django_db
 
@@ -150,4 +150,4 @@ def test_it_can_still_reach_every_revision_after_many_saves(fitter_client, plan)
         assert fitter_client.get(reverse("fittings:revision_detail", args=[plan.pk, number])).status_code == 200
     waists = [r.inputs["plan"]["ease"]["waist"] for r in plan.revisions.order_by("number")[1:]]
     assert waists == pytest.approx([-25.4, -50.8, -76.2])  # 1, 2 and 3 in: the plan is kept in inches
-    assert plan_services.latest_revision(plan).number == 4
+    assert selectors.latest_revision(plan).number == 4

@@ -16,7 +16,7 @@ from django.db import connection
 from fittings.models import (
     AuditEntry, Client, Measurement, MeasurementSession, Photo, PinAdjustment, Plan, PlanRevision, PrintJob,
 )
-from fittings.services.safety import ERASED_SUMMARY
+from fittings.services.client_records import ERASED_SUMMARY
 from tests.security.conftest import private_files, snapshot, table_rows
 
 pytestmark = pytest.mark.django_db
@@ -113,12 +113,12 @@ def test_it_erases_a_client_already_removed_from_the_lists(her, owner_client):
 
 def test_it_takes_the_revisions_out_in_one_transaction(her, monkeypatch):
     """If anything fails half-way, nothing is erased (the raw delete of revisions included)."""
-    from fittings.services import safety
+    from fittings.services import client_records
 
     def fail(**kwargs):
         raise RuntimeError("power cut")
 
-    monkeypatch.setattr(safety.audit, "record", fail)
+    monkeypatch.setattr(client_records.audit, "record", fail)
     before, files = snapshot(), private_files()
     with pytest.raises(RuntimeError):
         call_command("erase_client", "WF-0102", "--yes")

@@ -39,6 +39,7 @@ from fittings.models import Client
 from fittings.services import clients as client_services
 from fittings.services import plans as plan_services
 from patterns.models import BasePattern
+from fittings import selectors
 
 number, sessions, saves, go = int(sys.argv[1]), int(sys.argv[2]), int(sys.argv[3]), Path(sys.argv[4])
 user = get_user_model().objects.get(username="demo")
@@ -60,7 +61,7 @@ for i in range(sessions):
         if plan is None:
             plan = plan_services.start_plan(client=client, session=session, pattern=pattern, garment="Load", user=user)
         elif i <= saves:
-            options = plan_services.revision_inputs(plan_services.latest_revision(plan))[2]
+            options = selectors.revision_inputs(selectors.latest_revision(plan))[2]
             plan_services.save_revision(plan=plan, options=options, user=user, expected_version=plan.version)
             plan.refresh_from_db()
     except Exception as exc:

@@ -1,6 +1,6 @@
 from django.core.management.base import BaseCommand, CommandError
 
-from fittings.services import safety
+from fittings.services import backups
 
 
 class Command(BaseCommand):
@@ -16,8 +16,8 @@ class Command(BaseCommand):
 
     def handle(self, *args, out, portable, **options):
         try:
-            receipt = safety.backup(out, portable=portable)
-        except safety.SafetyError as exc:
+            receipt = backups.backup(out, portable=portable)
+        except backups.SafetyError as exc:
             raise CommandError(str(exc)) from None
         self.stdout.write(self.style.SUCCESS(
             f"Backed up the {receipt.engine} database and {receipt.files} private file(s) to {receipt.path} "

@@ -2,7 +2,7 @@ import getpass
 
 from django.core.management.base import BaseCommand, CommandError
 
-from fittings.services import safety
+from fittings.services import client_records
 
 
 def actor(command):
@@ -25,8 +25,8 @@ class Command(BaseCommand):
 
     def handle(self, *args, reference, yes, **options):
         try:
-            records = safety.client_records(reference)
-        except safety.SafetyError as exc:
+            records = client_records.client_records(reference)
+        except client_records.SafetyError as exc:
             raise CommandError(str(exc)) from None
         listed = ", ".join(f"{count} {name}" for name, count in records.counts().items())
         if not yes:
@@ -34,7 +34,7 @@ class Command(BaseCommand):
                 f"This would erase {records.client.reference} for good: {listed}. Nothing was erased; "
                 "run again with --yes to erase (export_client first if the client wants a copy)."
             )
-        erasure = safety.erase_client(reference=reference, actor=actor("erase_client"))
+        erasure = client_records.erase_client(reference=reference, actor=actor("erase_client"))
         self.stdout.write(self.style.SUCCESS(
             f"Erased {reference}: {listed}; {erasure.files_removed} file(s) deleted from the data folder."
         ))

@@ -1,7 +1,7 @@
 from django.core.management.base import BaseCommand, CommandError
 
 from fittings.management.commands.erase_client import actor
-from fittings.services import safety
+from fittings.services import client_records
 
 
 class Command(BaseCommand):
@@ -16,8 +16,8 @@ class Command(BaseCommand):
 
     def handle(self, *args, reference, out, **options):
         try:
-            receipt = safety.export_client(reference=reference, out=out, actor=actor("export_client"))
-        except safety.SafetyError as exc:
+            receipt = client_records.export_client(reference=reference, out=out, actor=actor("export_client"))
+        except client_records.SafetyError as exc:
             raise CommandError(str(exc)) from None
         listed = ", ".join(f"{count} {name}" for name, count in receipt.counts.items())
         self.stdout.write(self.style.SUCCESS(f"Exported {reference} to {receipt.path}: {listed}."))

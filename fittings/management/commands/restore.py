@@ -1,6 +1,6 @@
 from django.core.management.base import BaseCommand, CommandError
 
-from fittings.services import safety
+from fittings.services import backups
 
 
 class Command(BaseCommand):
@@ -15,12 +15,12 @@ class Command(BaseCommand):
 
     def handle(self, *args, archive, yes, **options):
         try:
-            manifest = safety.read_manifest(archive)
-        except safety.SafetyError as exc:
+            manifest = backups.read_manifest(archive)
+        except backups.SafetyError as exc:
             raise CommandError(str(exc)) from None
         if not yes:
             try:
-                now = ", ".join(f"{count} {name}" for name, count in safety.database_summary().items())
+                now = ", ".join(f"{count} {name}" for name, count in backups.database_summary().items())
             except Exception:  # noqa: BLE001 - an empty or new database has nothing to count
                 now = "no readable data"
             raise CommandError(
@@ -28,8 +28,8 @@ class Command(BaseCommand):
                 "Stop the app, then run again with --yes."
             )
         try:
-            receipt = safety.restore(archive)
-        except safety.SafetyError as exc:
+            receipt = backups.restore(archive)
+        except backups.SafetyError as exc:
             raise CommandError(str(exc)) from None
         self.stdout.write(self.style.SUCCESS(
             f"Restored the backup made {receipt.created_at} into the {receipt.engine} database, "
