@@ -69,7 +69,7 @@ DXF_UNIT_NAMES = {0: "no unit (unitless)", 2: "feet", 3: "miles", 6: "metres", 7
                   22: "US survey inches", 23: "US survey yards", 24: "US survey miles"}
 SVG_UNITS_MM = {"mm": 1.0, "cm": float(MM_PER_CM), "in": float(MM_PER_INCH)}
 
-_IGNORED_NAMES = {"notch", "notches", "label", "labels", "defpoints"}
+_IGNORED_NAMES = {"notch", "notches", "label", "labels", "defpoints", "test-square"}
 _GRAIN_NAMES = {"grain", "grainline", "grain line"}
 
 
@@ -431,6 +431,7 @@ class _Piece:
     cut_count: int = 2
     on_fold: bool = False
     grain: tuple[tuple[float, float], tuple[float, float]] | None = None
+    label_area: Polygon | None = None
 
 
 _CUT = re.compile(r"^cut\s+(?P<n>\d+)(?P<fold>\s+on\s+(?:the\s+)?fold)?$", re.IGNORECASE)
@@ -492,6 +493,10 @@ def block_from_drawing(drawing: Drawing, options: ImportOptions = ImportOptions(
     inner = [i for i, poly in enumerate(polygons)
              if not any(j != i and poly.contains(polygons[j]) for j in range(len(polygons)))]
     pieces = [_Piece(rings[i].points, polygons[i], rings[i].where) for i in inner]
+    for pc in pieces:
+        # Texts between a stitch line and the cutting line round it belong to the piece too.
+        around = [poly for poly in polygons if poly is not pc.polygon and poly.contains(pc.polygon)]
+        pc.label_area = min(around, key=lambda poly: poly.area) if around else pc.polygon
     for a in range(len(pieces)):
         for b in range(a + 1, len(pieces)):
             if pieces[a].polygon.intersection(pieces[b].polygon).area > 1.0:
@@ -508,11 +513,12 @@ def block_from_drawing(drawing: Drawing, options: ImportOptions = ImportOptions(
 
     for pc in pieces:
         _read_labels(pc, drawing.texts)
-        for g in grains:
-            mid = ShapelyPoint(*(0.5 * (g[0] + g[-1])))
-            if pc.polygon.contains(mid):
-                a, b = (g[0], g[-1]) if g[0][1] <= g[-1][1] else (g[-1], g[0])
-                pc.grain = (tuple(map(float, a - shift)), tuple(map(float, b - shift)))
+        inside = [g for g in grains if pc.label_area.contains(ShapelyPoint(*(0.5 * (g[0] + g[-1]))))]
+        if inside:
+            # The longest line there (a drawn grainline may have arrowheads as short strokes).
+            g = max(inside, key=lambda g: float(np.hypot(*(g[-1] - g[0]))))
+            a, b = (g[0], g[-1]) if g[0][1] <= g[-1][1] else (g[-1], g[0])
+            pc.grain = (tuple(map(float, a - shift)), tuple(map(float, b - shift)))
         pc.ring = pc.ring - shift
         pc.polygon = Polygon(pc.ring)
     level_lines = [_LevelLine(ll.level, ll.y - y_origin, ll.x0 - x_origin, ll.x1 - x_origin) for ll in level_lines]
@@ -529,7 +535,7 @@ def block_from_drawing(drawing: Drawing, options: ImportOptions = ImportOptions(
 
 def _read_labels(piece: _Piece, texts) -> None:
     for text, x, y in texts:
-        if not text or not piece.polygon.contains(ShapelyPoint(x, y)) or level_of(text):
+        if not text or not piece.label_area.contains(ShapelyPoint(x, y)) or level_of(text):
             continue
         cut = _CUT.match(text)
         if cut:
