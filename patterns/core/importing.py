@@ -505,6 +505,9 @@ def block_from_drawing(drawing: Drawing, options: ImportOptions = ImportOptions(
     if len(pieces) > MAX_PIECES:
         raise BlockImportError(f"The drawing has {len(pieces)} pieces; a block has at most {MAX_PIECES}.")
     pieces.sort(key=lambda pc: (pc.polygon.bounds[0] + pc.polygon.bounds[2]) / 2)
+    if options.front_panels is not None and not 0 <= options.front_panels <= len(pieces):
+        raise BlockImportError(f"{options.front_panels} pieces were said to lie in front of the side seam, "
+                               f"but the drawing has {len(pieces)}.")
 
     # Pattern coordinates: the top of the highest piece at y 0, the leftmost point at x 0.
     x_origin = min(pc.polygon.bounds[0] for pc in pieces)
