@@ -56,6 +56,8 @@ LEVEL_SLOPE_MM = 0.5
 LEVEL_AGREEMENT_MM = 0.5
 # A text names the level line it sits on or just above, within this distance (mm).
 LEVEL_TEXT_DISTANCE_MM = 15.0
+# The kept stitch line may leave the drawn one by this much where it is thinned out (mm).
+SIMPLIFY_MM = 0.005
 # A side of a piece ends where its line turns by more than this (our choice).
 CORNER_DEGREES = 30.0
 MAX_PIECES = 20
@@ -717,7 +719,10 @@ def _panel(piece: _Piece, levels: tuple[Level, ...], index: int, count: int, opt
         raise BlockImportError(f"The top and bottom edges of {piece.name} could not be found.")
 
     def line(indices):
-        return tuple((float(x), float(y)) for x, y in ring[indices])
+        # Fewer points where the line is nearly straight, none of them further than SIMPLIFY_MM from the drawing.
+        thin = LineString(ring[indices]).simplify(SIMPLIFY_MM, preserve_topology=False) if len(indices) > 2 else None
+        points = np.asarray(thin.coords) if thin is not None and len(thin.coords) >= 2 else ring[indices]
+        return tuple((float(x), float(y)) for x, y in points)
 
     curves = PanelCurves(left=line(left), right=line(right), top=line(top), bottom=line(bottom),
                          grainline=piece.grain)
