@@ -176,9 +176,15 @@ def read_dxf_drawing(data: bytes) -> Drawing:
 
     _check_size(data)
     try:
-        doc, _auditor = recover.read(io.BytesIO(data))
-    except Exception as exc:  # ezdxf raises its own structure errors and plain ones for garbage
-        raise BlockImportError(f"This is not a DXF file that can be read ({exc.__class__.__name__}).") from exc
+        # The plain reader is several times quicker; the recovering one takes binary DXF and damaged files.
+        doc = ezdxf.read(io.StringIO(data.decode("utf-8"))) if not data.startswith(b"AutoCAD Binary DXF") else None
+    except Exception:
+        doc = None
+    if doc is None:
+        try:
+            doc, _auditor = recover.read(io.BytesIO(data))
+        except Exception as exc:  # ezdxf raises its own structure errors and plain ones for garbage
+            raise BlockImportError(f"This is not a DXF file that can be read ({exc.__class__.__name__}).") from exc
     code = int(doc.header.get("$INSUNITS", 0) or 0)
     if code not in DXF_UNITS_MM:
         unit = DXF_UNIT_NAMES.get(code, f"unit code {code}")
@@ -337,11 +343,11 @@ def _sample_svg(segments, se, scale: float) -> tuple[list[tuple[float, float]], 
         elif isinstance(seg, se.Line):
             points.append((float(seg.end.x), float(seg.end.y)))
         else:
-            length = float(seg.length(error=1e-6)) * scale
+            rough = np.asarray(seg.npoint(np.linspace(0, 1, 65)), dtype=float)
+            length = float(np.hypot(*np.diff(rough, axis=0).T).sum()) * scale
             n = int(min(max(math.ceil(length / 0.5), 8), 4000))
-            for t in np.linspace(0, 1, n + 1)[1:]:
-                p = seg.point(float(t))
-                points.append((float(p.x), float(p.y)))
+            fine = np.asarray(seg.npoint(np.linspace(0, 1, n + 1)[1:]), dtype=float)
+            points.extend(map(tuple, fine.tolist()))
     return points, closed
 
 
