@@ -13,6 +13,7 @@ import math
 import ezdxf
 import numpy as np
 import pytest
+from hypothesis import given, settings, strategies as st
 
 from patterns.core.block import Alteration, PanelShift, block_errors
 from patterns.core.export import dxf_bytes, svg_text
@@ -320,3 +321,32 @@ def test_it_names_levels_by_code_label_or_layer_style():
     assert level_of("Underbust") == "underbust"
     assert level_of("Side back") is None
     assert level_of("line") is None
+
+
+# --- property: straight-sided pieces of any shape read back at the widths of their corners ---------
+
+@settings(max_examples=40, deadline=None)
+@given(
+    pieces=st.lists(st.tuples(st.floats(40, 160), st.floats(40, 160), st.floats(-20, 20), st.floats(-20, 20)),
+                    min_size=1, max_size=4),
+    levels=st.tuples(st.floats(20, 120), st.floats(160, 260), st.floats(300, 380)),
+)
+def test_it_reads_straight_sided_pieces_at_the_widths_worked_out_from_their_corners(pieces, levels):
+    """Each piece: top width a, bottom width b, left side leaning by d1, right side by d2 over 400 mm."""
+    paths, origin = [], 0.0
+    for a, b, d1, d2 in pieces:
+        tl, tr = (origin + 20, 0.0), (origin + 20 + a, 0.0)
+        bl, br = (origin + 20 + d1, 400.0), (origin + 20 + d1 + b + d2, 400.0)
+        paths.append(f'<path d="M {tl[0]} 0 L {tr[0]} 0 L {br[0]} 400 L {bl[0]} 400 Z"/>')
+        origin += 20 + max(a, b + d1 + d2) + 40 + 25
+    names = ("bust", "waist", "hip")
+    lines = "".join(f'<line id="{n}" x1="-50" y1="{y}" x2="{origin + 50}" y2="{y}"/>' for n, y in zip(names, levels))
+    svg = (f'<svg xmlns="http://www.w3.org/2000/svg" width="{origin + 100}mm" height="500mm" '
+           f'viewBox="0 0 {origin + 100} 500">{"".join(paths)}{lines}</svg>').encode()
+    block = import_block(svg, "x.svg")
+    assert len(block.panels) == len(pieces)
+    for panel, (a, b, d1, d2) in zip(block.panels, pieces):
+        for name, y in zip(names, levels):
+            t = y / 400.0  # the sides are straight: x moves in proportion to the height
+            expected = a + t * ((b + d1 + d2) - a) - t * d1
+            assert panel.width(name) == pytest.approx(expected, abs=TOL)
