@@ -22,7 +22,7 @@ from patterns.core.importing import (
     BlockImportError, ImportOptions, LevelsError, OpenOutlineError, UnknownUnitError, import_block, level_of,
 )
 from patterns.core.outline import alter_block, alter_pattern, base_outlines
-from patterns.demo import bodice_block
+from patterns.demo import bodice_block, corset_block
 from tests.patterns.geometry_helpers import width_at
 
 TOL = 0.1  # mm, the accuracy the import must keep
@@ -212,7 +212,7 @@ def test_it_reads_a_dxf_written_as_raw_text_in_millimetres():
 
 
 def test_it_round_trips_a_dxf_export_to_the_same_block():
-    for block in (bodice_block(), import_block(SVG_ARC, "block.svg")):
+    for block in (corset_block("10"), bodice_block(), import_block(SVG_ARC, "block.svg")):
         front_count = sum(p.side == "front" for p in block.panels)
         data = dxf_bytes(base_outlines(block), level_lines=True)
         back = import_block(data, "export.dxf", ImportOptions(front_panels=front_count))
