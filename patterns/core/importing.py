@@ -244,6 +244,8 @@ def _full_ellipse(entity) -> bool:
 _SVG_NS = "{http://www.w3.org/2000/svg}"
 _INKSCAPE_LABEL = "{http://www.inkscape.org/namespaces/inkscape}label"
 _NAMES_ATTR = "data-block-import-names"
+_TEXT_ATTR = "data-block-import-text"
+_TEXT_ID_ATTR = "data-block-import-text-id"
 _LENGTH = re.compile(r"^\s*(?P<value>[+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*(?P<unit>[a-zA-Z%]*)\s*$")
 _SHAPES = {"path", "line", "polyline", "polygon", "rect", "circle", "ellipse"}
 
@@ -294,9 +296,15 @@ def read_svg_drawing(data: bytes) -> Drawing:
         tag = element.tag.replace(_SVG_NS, "")
         if tag in _SHAPES or tag == "text":
             element.set(_NAMES_ATTR, "|".join(here))
+        if tag == "text":
+            # The whole text, its <tspan> parts together, read once (svgelements gives each part apart).
+            element.set(_TEXT_ATTR, " ".join("".join(element.itertext()).split()))
+            element.set(_TEXT_ID_ATTR, str(len(text_ids)))
+            text_ids.append(None)
         for child in element:
             walk(child, here)
 
+    text_ids: list = []
     walk(root, ())
     marked = ET.tostring(root)
     try:
@@ -308,14 +316,18 @@ def read_svg_drawing(data: bytes) -> Drawing:
     scale = width_mm / float(width_px)
     drawing = Drawing(unit={"mm": "millimetres", "cm": "centimetres", "in": "inches"}[wunit])
 
+    texts_seen: set[str] = set()
     for element in svg.elements():
         values = getattr(element, "values", {}) or {}
         names = tuple(n for n in str(values.get(_NAMES_ATTR, "")).split("|") if n)
         if isinstance(element, se.Text):
+            text_id = values.get(_TEXT_ID_ATTR)
+            if text_id is None or text_id in texts_seen:
+                continue
+            texts_seen.add(text_id)
             x, y = element.x or 0.0, element.y or 0.0
             at = element.transform.point_in_matrix_space((x, y)) if element.transform else (x, y)
-            drawing.texts.append((" ".join(str(element.text or "").split()), float(at[0]) * scale,
-                                  float(at[1]) * scale))
+            drawing.texts.append((str(values.get(_TEXT_ATTR, "")), float(at[0]) * scale, float(at[1]) * scale))
             continue
         if not isinstance(element, se.Shape) or isinstance(element, se.Text):
             continue

@@ -350,3 +350,26 @@ def test_it_reads_straight_sided_pieces_at_the_widths_worked_out_from_their_corn
             t = y / 400.0  # the sides are straight: x moves in proportion to the height
             expected = a + t * ((b + d1 + d2) - a) - t * d1
             assert panel.width(name) == pytest.approx(expected, abs=TOL)
+
+
+def test_it_reads_a_drawing_laid_out_in_named_layers_with_text_parts():
+    """Layers as groups with a label (as Inkscape writes them), names split over <tspan> parts, a cutting
+    line drawn round the stitch line, and a frame round the whole sheet: the stitch line is the piece."""
+    svg = b"""<svg xmlns="http://www.w3.org/2000/svg" xmlns:inkscape="http://www.inkscape.org/namespaces/inkscape"
+         width="30cm" height="50cm" viewBox="0 0 300 500">
+      <rect x="1" y="1" width="298" height="498"/>
+      <g inkscape:groupmode="layer" inkscape:label="Pieces" id="layer1">
+        <rect x="50" y="20" width="120" height="400"/>
+        <rect x="35" y="5" width="150" height="430"/>
+        <text x="60" y="60"><tspan x="60" y="60">Side</tspan> <tspan>back</tspan></text>
+        <text x="60" y="70"><tspan>cut 2</tspan></text>
+      </g>
+      <g inkscape:groupmode="layer" inkscape:label="Underbust" id="layer2"><path d="M 10 120 H 290"/></g>
+      <g inkscape:groupmode="layer" inkscape:label="Hip" id="layer3"><path d="M 10 380 H 290"/></g>
+    </svg>"""
+    block = import_block(svg, "layers.svg")
+    (panel,) = block.panels
+    assert panel.name == "Side back" and panel.cut_count == 2
+    assert block.level_names == ("underbust", "hip")
+    assert panel.width("underbust") == pytest.approx(120.0, abs=TOL)
+    assert block.level_y("underbust") == pytest.approx(100.0, abs=TOL)  # the stitch line's top is y = 0
