@@ -7,6 +7,7 @@ from django.views.decorators.http import require_GET
 from atelier.roles import FITTER, OWNER, ROLES, role_required
 from fittings import piece_files
 from fittings.views_pieces import file_response
+from patterns.core.measures import LEVEL_LABELS
 from patterns.forms_block_files import BlockImportForm
 from patterns.models import BasePattern
 from patterns.selectors import block_for
@@ -36,7 +37,8 @@ def pattern_files(request, pk):
     """A base pattern's levels and panel widths, with its pieces to download."""
     pattern = get_object_or_404(BasePattern, pk=pk)
     block = block_for(pattern)
-    rows = [(lv, [round(p.width(lv.name), 1) for p in block.panels]) for lv in block.levels]
+    rows = [(LEVEL_LABELS.get(lv.name, lv.name), lv.y, [round(p.width(lv.name), 1) for p in block.panels])
+            for lv in block.levels]
     return render(request, "patterns/pattern_files.html", {"pattern": pattern, "block": block, "rows": rows})
 
 
