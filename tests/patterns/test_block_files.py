@@ -58,7 +58,10 @@ def test_it_imports_a_drawing_as_a_new_base_pattern(fitter_client):
         assert block.panels[1].width(lv.name) == pytest.approx(arc_width(lv.y), abs=TOL)
     page = fitter_client.get(response["Location"])
     assert page.status_code == 200
-    assert "Drawn test block" in page.content.decode()
+    text = page.content.decode()
+    assert "Drawn test block" in text and "Waist" in text
+    assert f"<td>{round(arc_width(block.level_y('waist')), 1)}</td>" in text  # the arc piece's width, in mm
+    assert reverse("block_files:pattern_pieces_dxf", args=[pattern.pk]) in text
 
 
 def test_it_refuses_a_bad_drawing_with_its_reason_and_keeps_nothing(fitter_client):
