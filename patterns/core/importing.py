@@ -283,7 +283,7 @@ def read_svg_drawing(data: bytes) -> Drawing:
     if root.tag not in (f"{_SVG_NS}svg", "svg"):
         raise BlockImportError("This file is XML but not SVG (its first element is not <svg>).")
     width, wunit = _svg_length(root.get("width"), "width")
-    height, hunit = _svg_length(root.get("height"), "height")
+    height, _ = _svg_length(root.get("height"), "height")
     if width <= 0 or height <= 0:
         raise UnknownUnitError("The SVG file's width and height must be more than nothing.")
     width_mm = width * SVG_UNITS_MM[wunit]
@@ -384,8 +384,7 @@ class _LevelLine:
 def _straight_horizontal(points: np.ndarray) -> bool:
     if len(points) < 2:
         return False
-    (x0, y0), (x1, y1) = points[0], points[-1]
-    if abs(x1 - x0) < 1.0:
+    if abs(points[-1][0] - points[0][0]) < 1.0:
         return False
     return float(np.ptp(points[:, 1])) <= LEVEL_SLOPE_MM
 
@@ -704,7 +703,6 @@ def _panel(piece: _Piece, levels: tuple[Level, ...], index: int, count: int, opt
     if len(top_cross) != 2 or len(bottom_cross) != 2:
         raise BlockImportError(f"The outline of {piece.name} runs along a level line; move the level line "
                                "or the outline a little.")
-    n = len(ring)
     lt, rt = sorted(top_cross, key=lambda i: ring[i][0])
     lb, rb = sorted(bottom_cross, key=lambda i: ring[i][0])
 
