@@ -124,6 +124,10 @@ class Drawing:
     paths: list[_Path] = field(default_factory=list)
     texts: list[tuple[str, float, float]] = field(default_factory=list)
     unit: str = "millimetres"
+    y_up: bool = False  # the file's own y runs upwards (DXF): messages give y as the file has it
+
+    def where(self, x: float, y: float) -> str:
+        return f"x {x:.1f} mm, y {(-y if self.y_up else y):.1f} mm"
 
 
 _LEVEL_WORDS = {code: code for code in LEVEL_CODES}
@@ -193,7 +197,7 @@ def read_dxf_drawing(data: bytes) -> Drawing:
             "centimetres or inches as its unit, so its lengths can be read at true size."
         )
     unit, scale = DXF_UNITS_MM[code]
-    drawing = Drawing(unit=unit)
+    drawing = Drawing(unit=unit, y_up=True)
 
     def to_mm(x, y):
         return (float(x) * scale, -float(y) * scale)
@@ -499,7 +503,7 @@ def block_from_drawing(drawing: Drawing, options: ImportOptions = ImportOptions(
         p = still_open[0]
         (ax, ay), (bx, by) = p.points[0], p.points[-1]
         raise OpenOutlineError(
-            f"An outline is open: {p.where} ends at x {ax:.1f}, y {ay:.1f} mm and at x {bx:.1f}, y {by:.1f} mm, "
+            f"An outline is open: {p.where} ends at {drawing.where(ax, ay)} and at {drawing.where(bx, by)}, "
             f"{math.hypot(bx - ax, by - ay):.1f} mm apart, and nothing joins the ends. Close it in the drawing "
             "program (each piece must be one closed stitch line)."
             + (f" ({len(still_open) - 1} more open line{'s' if len(still_open) > 2 else ''}.)" if len(still_open) > 1 else "")
@@ -687,7 +691,6 @@ def _extend(ring: np.ndarray, path: list[int], step: int, upwards: bool) -> list
 
 def _panel(piece: _Piece, levels: tuple[Level, ...], index: int, count: int, options: ImportOptions) -> Panel:
     ring = piece.ring
-    # Counter-clockwise on paper (y down): left side runs downwards when walking forwards.
     top_y, bottom_y = levels[0].y, levels[-1].y
     for y in {top_y, bottom_y}:
         ring, crossings = _with_crossing(ring, y)

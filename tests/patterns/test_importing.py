@@ -260,7 +260,7 @@ LEVELS = '<line id="bust" x1="0" y1="50" x2="300" y2="50"/><line id="waist" x1="
 
 
 def test_it_refuses_an_open_outline_and_says_where_the_gap_is():
-    with pytest.raises(OpenOutlineError, match=r"open.*x 12\.0, y 300\.0 mm, 300\.2 mm apart"):
+    with pytest.raises(OpenOutlineError, match=r"open.*x 12\.0 mm, y 300\.0 mm, 300\.2 mm apart"):
         import_block(_svg('<path d="M 0 0 L 100 0 L 100 300 L 12 300"/>' + LEVELS), "open.svg")
 
 
@@ -373,3 +373,14 @@ def test_it_reads_a_drawing_laid_out_in_named_layers_with_text_parts():
     assert block.level_names == ("underbust", "hip")
     assert panel.width("underbust") == pytest.approx(120.0, abs=TOL)
     assert block.level_y("underbust") == pytest.approx(100.0, abs=TOL)  # the stitch line's top is y = 0
+
+
+def test_it_says_where_a_dxf_outline_is_open_in_the_files_own_coordinates():
+    doc = _dxf_doc(units=4)
+    msp = doc.modelspace()
+    msp.add_lwpolyline([(0, 0), (100, 0), (100, -300), (5, -300)])  # open: the last side is missing
+    msp.add_line((-5, -50), (120, -50), dxfattribs={"layer": "BUST"})
+    msp.add_line((-5, -250), (120, -250), dxfattribs={"layer": "WAIST"})
+    with pytest.raises(OpenOutlineError, match=r"LWPOLYLINE on layer 0 ends at x 0\.0 mm, y 0\.0 mm and at "
+                                               r"x 5\.0 mm, y -300\.0 mm, 300\.0 mm apart"):
+        import_block(_dxf(doc), "open.dxf")
