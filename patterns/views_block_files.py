@@ -34,12 +34,13 @@ def block_import(request):
 @require_GET
 @role_required(*ROLES)
 def pattern_files(request, pk):
-    """A base pattern's levels and panel widths, with its pieces to download."""
+    """A base pattern's levels and panel widths, with its pieces to download (``block`` is taken by the
+    template language inside ``{% block %}``, hence ``pattern_block``)."""
     pattern = get_object_or_404(BasePattern, pk=pk)
     block = block_for(pattern)
     rows = [(LEVEL_LABELS.get(lv.name, lv.name), lv.y, [round(p.width(lv.name), 1) for p in block.panels])
             for lv in block.levels]
-    return render(request, "patterns/pattern_files.html", {"pattern": pattern, "block": block, "rows": rows})
+    return render(request, "patterns/pattern_files.html", {"pattern": pattern, "pattern_block": block, "rows": rows})
 
 
 @require_GET

@@ -59,7 +59,8 @@ def test_it_imports_a_drawing_as_a_new_base_pattern(fitter_client):
     page = fitter_client.get(response["Location"])
     assert page.status_code == 200
     text = page.content.decode()
-    assert "Drawn test block" in text and "Waist" in text
+    assert "Drawn test block" in text and "Waist" in text and "2 panels, half pattern" in text
+    assert '<th scope="col">Back</th>' in text
     assert f"<td>{round(arc_width(block.level_y('waist')), 1)}</td>" in text  # the arc piece's width, in mm
     assert reverse("block_files:pattern_pieces_dxf", args=[pattern.pk]) in text
 
