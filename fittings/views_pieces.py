@@ -17,5 +17,5 @@ def file_response(found: piece_files.PieceFile) -> HttpResponse:
 @require_GET
 @role_required(*ROLES)
 def revision_pieces(request, pk, number, fmt):
-    revision = _revision(_plan(pk), number)
+    revision = _revision(_plan(pk), number, request.user)  # the workroom: issued revisions only
     return file_response(piece_files.revision_pieces(revision, fmt))

@@ -75,7 +75,8 @@ def test_it_refuses_a_bad_drawing_with_its_reason_and_keeps_nothing(fitter_clien
 def test_it_offers_the_import_to_fitters_but_not_to_the_workroom(fitter_client, workroom_user, client):
     assert reverse("block_files:block_import") in fitter_client.get(reverse("fittings:client_list")).content.decode()
     client.force_login(workroom_user)
-    assert reverse("block_files:block_import") not in client.get(reverse("fittings:client_list")).content.decode()
+    assert reverse("block_files:block_import") not in client.get(reverse("fittings:client_list"), follow=True
+                                                                 ).content.decode()
     assert client.get(reverse("block_files:block_import")).status_code == 403
 
 
@@ -92,9 +93,14 @@ def test_it_downloads_a_base_pattern_that_reads_back_to_the_same_widths(fitter_c
                 assert b.width(lv) == pytest.approx(a.width(lv), abs=TOL)
 
 
-def test_it_downloads_a_revisions_altered_pieces_as_the_plan_shifted_them(demo_atelier, client, workroom_user):
-    client.force_login(workroom_user)  # the workroom cuts from these
+def test_it_downloads_a_revisions_altered_pieces_as_the_plan_shifted_them(demo_atelier, client, fitter_user,
+                                                                          workroom_user):
     plan = Plan.objects.get(client__reference="WF-0102")
+    # The workroom cuts from an issued revision's pieces, and sees no draft's.
+    client.force_login(workroom_user)
+    assert client.get(reverse("fittings:revision_pieces_dxf", args=[plan.pk, 1])).status_code == 200
+    assert client.get(reverse("fittings:revision_pieces_dxf", args=[plan.pk, 2])).status_code == 403
+    client.force_login(fitter_user)
     revision = plan.revisions.get(number=2)
     _, block, _ = selectors.revision_inputs(revision)
     altered = previews.altered_for(block, selectors.revision_result(revision)).altered
