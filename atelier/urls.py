@@ -17,5 +17,6 @@ urlpatterns = [
     ),
     path("logout/", auth_views.LogoutView.as_view(), name="logout"),
     path("admin/", admin.site.urls),
+    path("patterns/", include("patterns.urls_block_files")),
     path("", include("fittings.urls")),
 ]

@@ -1,6 +1,6 @@
 from django.urls import include, path
 
-from fittings import views, views_clients, views_plans
+from fittings import views, views_clients, views_pieces, views_plans
 
 app_name = "fittings"
 
@@ -26,6 +26,10 @@ urlpatterns = [
     path("plans/<int:pk>/revisions/<int:number>/preview.svg", views_plans.revision_preview, name="revision_preview"),
     path("plans/<int:pk>/revisions/<int:number>/checks/", views_plans.revision_checks, name="revision_checks"),
     path("plans/<int:pk>/revisions/<int:number>/fitting.json", views_plans.revision_fitting_file, name="revision_fitting_file"),
+    path("plans/<int:pk>/revisions/<int:number>/pieces.svg", views_pieces.revision_pieces, {"fmt": "svg"},
+         name="revision_pieces_svg"),
+    path("plans/<int:pk>/revisions/<int:number>/pieces.dxf", views_pieces.revision_pieces, {"fmt": "dxf"},
+         name="revision_pieces_dxf"),
     path("plans/<int:pk>/revisions/<int:number>/issue/", views_plans.revision_issue, name="revision_issue"),
     path("plans/<int:pk>/revisions/<int:number>/proof/<slug:document>.pdf", views_plans.revision_proof, name="revision_proof"),
     path("plans/<int:pk>/revisions/<int:number>/pins/", views_plans.revision_pins, name="revision_pins"),

@@ -10,6 +10,7 @@ adds the reduction or ease per level.
 """
 
 from fractions import Fraction
+from pathlib import Path
 
 from patterns.core.block import (
     BACK, CB_LACED, CB_SEAMED, CF_BUSK, CF_FOLD, FRONT, Block, Level, Panel, Point, Seam,
@@ -172,6 +173,21 @@ def bodice_block() -> Block:
         levels=levels, panels=panels, seams=seams,
         centre_front=CF_FOLD, centre_back=CB_SEAMED, seam_allowance_mm=15.0, size_order=0,
     )
+
+
+DRAWN_BLOCK_FILE = Path(__file__).resolve().parent / "examples" / "wrenfield-underbust-drawn.svg"
+
+
+def drawn_underbust_block() -> Block:
+    """The demo's imported block: an invented four-panel underbust corset, size 10, drawn as SVG with
+    curved stitch lines (patterns/examples/wrenfield-underbust-drawn.svg) and read by the block importer.
+    Drafted, like the corset run, to the demo size 10 girths less a 5 cm lacing gap."""
+    from patterns.core.importing import ImportOptions, import_block
+
+    return import_block(DRAWN_BLOCK_FILE.read_bytes(), DRAWN_BLOCK_FILE.name, ImportOptions(
+        name="Underbust corset, four panels (drawn)", size="10", garment="underbust corset",
+        front_panels=2, centre_front=CF_BUSK, centre_back=CB_LACED, seam_allowance_mm=15.0,
+    ))
 
 
 # Invented clients.  Measurements in mm.

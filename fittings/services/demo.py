@@ -58,7 +58,8 @@ def ensure_demo_login(password: str | None = None) -> DemoLogin:
 
 @transaction.atomic
 def load_demo_atelier(password: str | None = None) -> DemoAtelier | None:
-    """Load the demo size run, bodice, clients and their sessions, and the demo login.
+    """Load the demo size run, bodice, the drawn (imported) underbust block, clients and their sessions,
+    and the demo login.
 
     Does nothing and returns None unless the atelier is empty, so it is safe
     to call on every start.
@@ -73,6 +74,7 @@ def load_demo_atelier(password: str | None = None) -> DemoAtelier | None:
     run = SizeRun.objects.create(name=run_blocks[0].name, garment=GarmentKind(run_blocks[0].garment))
     loaded.patterns = [save_block(block, size_run=run) for block in run_blocks]
     loaded.patterns.append(save_block(demo.bodice_block()))
+    loaded.patterns.append(save_block(demo.drawn_underbust_block()))
 
     today = timezone.localdate()
     for spec in demo.DEMO_CLIENTS:

@@ -39,6 +39,23 @@ class Point:
 
 
 @dataclass(frozen=True)
+class PanelCurves:
+    """The drawn stitch line of a panel, kept as it was imported (each side a fine polyline).
+
+    ``left`` and ``right`` run top to bottom (from the top corner to the
+    bottom corner of that side, y increasing); ``top`` and ``bottom`` run
+    from the left corner to the right corner.  The corners are shared by the
+    sides that meet there.  ``grainline`` is the drawn grainline, if any.
+    """
+
+    left: tuple[tuple[float, float], ...]
+    right: tuple[tuple[float, float], ...]
+    top: tuple[tuple[float, float], ...]
+    bottom: tuple[tuple[float, float], ...]
+    grainline: tuple[tuple[float, float], tuple[float, float]] | None = None
+
+
+@dataclass(frozen=True)
 class Panel:
     """One panel of the half pattern, as drafted.
 
@@ -56,6 +73,9 @@ class Panel:
     bottom_right: Point
     cut_count: int = 2
     on_fold: bool = False
+    # The imported stitch line, when the panel came from a drawing; None for a
+    # panel known only by its corners and level points.
+    curves: PanelCurves | None = None
 
     def width(self, level: str) -> float:
         return self.right[level] - self.left[level]
@@ -158,6 +178,8 @@ def block_errors(block: Block) -> list[str]:
             if bottom.y <= top.y:
                 errors.append(f"Panel {p.name}: the bottom of its {edge} stitch line lies above its top "
                               "(y grows downwards from the top of the block).")
+        if p.curves is not None:
+            errors += curve_errors(p, {lv.name: lv.y for lv in block.levels})
     if len(block.seams) != max(len(block.panels) - 1, 0):
         errors.append("There must be one seam between each pair of neighbouring panels.")
     for seam, (a, b) in zip(block.seams, zip(block.panels, block.panels[1:])):
@@ -170,3 +192,41 @@ def block_errors(block: Block) -> list[str]:
         if seam.cap_mm < 0:
             errors.append(f"Seam {seam.name} has a negative cap.")
     return errors
+
+
+def curve_errors(panel: Panel, level_y: dict[str, float], tolerance: float = 0.05) -> list[str]:
+    """Problems with a panel's imported stitch line: sides that do not meet at the corners,
+    sides that do not run downwards, level points that are not on the line."""
+    c = panel.curves
+    if min(len(c.left), len(c.right), len(c.top), len(c.bottom)) < 2:
+        return [f"Panel {panel.name}: each side of the drawn stitch line needs two points at least."]
+    errors = []
+    corners = {
+        "top left": (panel.top_left, (c.left[0], c.top[0])),
+        "top right": (panel.top_right, (c.right[0], c.top[-1])),
+        "bottom left": (panel.bottom_left, (c.left[-1], c.bottom[0])),
+        "bottom right": (panel.bottom_right, (c.right[-1], c.bottom[-1])),
+    }
+    for where, (corner, ends) in corners.items():
+        if any(abs(e[0] - corner.x) > tolerance or abs(e[1] - corner.y) > tolerance for e in ends):
+            errors.append(f"Panel {panel.name}: the drawn stitch line does not meet its {where} corner.")
+    for edge, line, at_level in ((LEFT, c.left, panel.left), (RIGHT, c.right, panel.right)):
+        ys = [y for _, y in line]
+        if any(b <= a for a, b in zip(ys, ys[1:])):
+            errors.append(f"Panel {panel.name}: the drawn {edge} side must run downwards all the way.")
+            continue
+        for level, x in at_level.items():
+            found = curve_x_at(line, level_y.get(level))
+            if found is not None and abs(found - x) > tolerance:
+                errors.append(f"Panel {panel.name}: the {edge} stitch line at {level} is not on the drawn line.")
+    return errors
+
+
+def curve_x_at(line, y: float | None) -> float | None:
+    """x of a downward-running polyline at height y (None outside it)."""
+    if y is None or not line or y < line[0][1] - 1e-9 or y > line[-1][1] + 1e-9:
+        return None
+    for (x0, y0), (x1, y1) in zip(line, line[1:]):
+        if y0 - 1e-9 <= y <= y1 + 1e-9:
+            return x0 if y1 == y0 else x0 + (x1 - x0) * (y - y0) / (y1 - y0)
+    return None

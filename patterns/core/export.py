@@ -14,6 +14,7 @@ from dataclasses import dataclass
 from xml.etree import ElementTree as ET
 
 import ezdxf
+import numpy as np
 from ezdxf import units as dxf_units
 
 from patterns.core.outline import PanelOutline, Pt
@@ -32,6 +33,27 @@ LAYER_CUT, LAYER_STITCH, LAYER_NOTCH, LAYER_GRAIN, LAYER_LABEL = "CUT", "STITCH"
 _LAYERS = ((LAYER_CUT, 7, "CONTINUOUS"), (LAYER_STITCH, 5, "DASHED"), (LAYER_NOTCH, 1, "CONTINUOUS"),
            (LAYER_GRAIN, 3, "CONTINUOUS"), (LAYER_LABEL, 8, "CONTINUOUS"))
 INSUNITS_MILLIMETRES = 4
+# Level lines (when asked for) sit on a layer per level, LEVEL_BUST, LEVEL_WAIST ..., and reach this
+# far into the seam allowance on each side, so a drawing read back finds its levels (patterns.core.importing).
+LEVEL_LAYER_PREFIX = "LEVEL_"
+LEVEL_LINE_COLOUR = 8
+LEVEL_OVERHANG_MM = 5.0
+
+
+def level_layer(level: str) -> str:
+    return f"{LEVEL_LAYER_PREFIX}{level.upper()}"
+
+
+def level_segments(outline: PanelOutline) -> tuple[tuple[str, Pt, Pt], ...]:
+    """Each level the panel crosses as a horizontal line from stitch line to stitch line, a little beyond."""
+    left, right = np.asarray(outline.left_line), np.asarray(outline.right_line)
+    reach = min(LEVEL_OVERHANG_MM, 0.5 * outline.seam_allowance_mm) if outline.seam_allowance_mm > 0 else 0.0
+    segments = []
+    for level, y in outline.level_y.items():
+        x0 = float(np.interp(y, left[:, 1], left[:, 0]))
+        x1 = float(np.interp(y, right[:, 1], right[:, 0]))
+        segments.append((level, (x0 - reach, y), (x1 + reach, y)))
+    return tuple(segments)
 
 
 @dataclass(frozen=True)
@@ -133,8 +155,11 @@ def _grain_path(grain: tuple[Pt, Pt]) -> str:
 
 
 def svg_text(outlines: tuple[PanelOutline, ...], *, title: str = "", gap_mm: float = PANEL_GAP_MM,
-             margin_mm: float = SHEET_MARGIN_MM, test_square: str | None = "cm") -> str:
-    """The panels at true size: width and height in mm, one user unit = 1 mm."""
+             margin_mm: float = SHEET_MARGIN_MM, test_square: str | None = "cm", level_lines: bool = False) -> str:
+    """The panels at true size: width and height in mm, one user unit = 1 mm.
+
+    With ``level_lines`` each panel also carries its levels as thin grey lines of class
+    ``level level-<name>``, which the importer reads back as the block's levels."""
     layout = sheet_layout(outlines, gap_mm=gap_mm, margin_mm=margin_mm, test_square=test_square)
     root = ET.Element("svg", {
         "xmlns": "http://www.w3.org/2000/svg",
@@ -157,6 +182,10 @@ def svg_text(outlines: tuple[PanelOutline, ...], *, title: str = "", gap_mm: flo
                                       "stroke-width": "0.4", **line})
         ET.SubElement(g, "path", {"class": "grain", "d": _grain_path(o.grainline), "stroke": "#000000",
                                   "stroke-width": "0.3", **line})
+        if level_lines:
+            for level, a, b in level_segments(o):
+                ET.SubElement(g, "path", {"class": f"level level-{level}", "d": _path([a, b], False),
+                                          "stroke": "#777777", "stroke-width": "0.2", **line})
         for text, (x, y), angle in _label_lines(o):
             el = ET.SubElement(g, "text", {
                 "class": "label", "x": _n(x), "y": _n(y), "font-size": _n(LABEL_HEIGHT_MM),
@@ -191,14 +220,20 @@ def _flip(p: Pt) -> tuple[float, float]:
     return (p[0], -p[1])
 
 
-def dxf_bytes(outlines: tuple[PanelOutline, ...], *, gap_mm: float = PANEL_GAP_MM) -> bytes:
-    """One DXF block per panel, on the layers CUT, STITCH, NOTCH, GRAIN, LABEL; units millimetres."""
+def dxf_bytes(outlines: tuple[PanelOutline, ...], *, gap_mm: float = PANEL_GAP_MM, level_lines: bool = False) -> bytes:
+    """One DXF block per panel, on the layers CUT, STITCH, NOTCH, GRAIN, LABEL; units millimetres.
+
+    With ``level_lines`` each block also holds a horizontal line per level on the layer
+    LEVEL_<NAME>, so the file reads back into the same block (patterns.core.importing)."""
     doc = ezdxf.new("R2010", setup=["linetypes"])
     doc.units = dxf_units.MM
     doc.header["$INSUNITS"] = INSUNITS_MILLIMETRES
     doc.header["$MEASUREMENT"] = 1
     for name, colour, linetype in _LAYERS:
         doc.layers.add(name, color=colour, linetype=linetype)
+    if level_lines:
+        for level in dict.fromkeys(lv for o in outlines for lv in o.level_y):
+            doc.layers.add(level_layer(level), color=LEVEL_LINE_COLOUR, linetype="DASHED")
     layout = sheet_layout(outlines, gap_mm=gap_mm, margin_mm=0.0)
     msp = doc.modelspace()
     for i, (o, (dx, dy)) in enumerate(zip(outlines, layout.offsets), start=1):
@@ -208,6 +243,9 @@ def dxf_bytes(outlines: tuple[PanelOutline, ...], *, gap_mm: float = PANEL_GAP_M
         for a, b in notch_segments(o):
             blk.add_line(_flip(a), _flip(b), dxfattribs={"layer": LAYER_NOTCH})
         blk.add_line(_flip(o.grainline[0]), _flip(o.grainline[1]), dxfattribs={"layer": LAYER_GRAIN})
+        if level_lines:
+            for level, a, b in level_segments(o):
+                blk.add_line(_flip(a), _flip(b), dxfattribs={"layer": level_layer(level)})
         for text, at, angle in _label_lines(o):
             blk.add_text(text, height=LABEL_HEIGHT_MM, rotation=angle,
                          dxfattribs={"layer": LAYER_LABEL, "insert": _flip(at)})

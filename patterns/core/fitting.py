@@ -15,13 +15,14 @@ from pathlib import Path
 import jsonschema
 
 from patterns.core.allot import Allotment, Body, Override, PinAdjustment, PlanOptions, allot
-from patterns.core.block import Block, Level, Panel, Point, Seam, block_errors
+from patterns.core.block import Block, Level, Panel, PanelCurves, Point, Seam, block_errors
 from patterns.core.measures import FRONT_ARC_BY_LEVEL, GIRTH_BY_LEVEL, LENGTH_MEASURES, MEASURE_BY_CODE
 from patterns.core.units import DEFAULT_STEP_MM
 
 SCHEMA_DIR = Path(__file__).resolve().parent.parent / "schemas"
 FORMAT = "atelier-fitting"
 VERSION = 1
+CURVE_SIDES = ("left", "right", "top", "bottom")
 
 
 # Error messages quote what the file holds; a file of megabytes must not come back as one.
@@ -55,6 +56,11 @@ def schema(name: str) -> dict:
 def block_to_dict(block: Block) -> dict:
     data = asdict(block)
     data["levels"] = [{"name": lv.name, "y": lv.y} for lv in block.levels]
+    for panel, out in zip(block.panels, data["panels"]):
+        # A panel without a drawn stitch line is written exactly as before drawn panels existed.
+        out.pop("curves")
+        if panel.curves is not None:
+            out["curves"] = curves_to_dict(panel.curves)
     for seam in data["seams"]:
         seam["alterable_at"] = [lv for lv in block.level_names if lv in seam["alterable_at"]]
     return data
@@ -75,6 +81,7 @@ def block_from_dict(data: dict) -> Block:
                 top_left=point(p["top_left"]), top_right=point(p["top_right"]),
                 bottom_left=point(p["bottom_left"]), bottom_right=point(p["bottom_right"]),
                 cut_count=int(p.get("cut_count", 2)), on_fold=bool(p.get("on_fold", False)),
+                curves=curves_from_dict(p["curves"]) if p.get("curves") else None,
             )
             for p in data["panels"]
         ),
@@ -88,6 +95,23 @@ def block_from_dict(data: dict) -> Block:
         centre_front=data.get("centre_front", "busk"), centre_back=data.get("centre_back", "laced"),
         seam_allowance_mm=float(data.get("seam_allowance_mm", 15.0)), size_order=int(data.get("size_order", 0)),
     )
+
+
+def curves_to_dict(curves: PanelCurves) -> dict:
+    """A drawn stitch line as JSON: each side a list of [x, y] in mm."""
+    data = {side: [[float(x), float(y)] for x, y in getattr(curves, side)] for side in CURVE_SIDES}
+    if curves.grainline is not None:
+        data["grainline"] = [[float(x), float(y)] for x, y in curves.grainline]
+    return data
+
+
+def curves_from_dict(data: dict) -> PanelCurves:
+    def line(points):
+        return tuple((float(x), float(y)) for x, y in points)
+
+    grain = data.get("grainline")
+    return PanelCurves(**{side: line(data[side]) for side in CURVE_SIDES},
+                       grainline=line(grain) if grain else None)
 
 
 def body_from_measurements(values: dict[str, float]) -> Body:

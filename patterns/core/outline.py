@@ -9,6 +9,12 @@ points.  A shift given at the levels is carried along the line by a monotone
 cubic of shift against height, so it never overshoots the values the fitter
 chose; above the top level and below the bottom level the nearest level's
 shift holds.
+
+A panel imported from a drawing keeps its drawn stitch line
+(``Panel.curves``): each side is then the drawn polyline itself, moved
+sideways by the same interpolated shift, and the top and bottom edges are the
+drawn edges carried along by their corners.  Nothing is redrawn through the
+level points.
 """
 
 from __future__ import annotations
@@ -244,6 +250,11 @@ class _Edge:
     level_index: dict[str, int]  # sample index of each level on this edge
     knots: np.ndarray  # altered corner and level points, shape (k, 2)
     knot_levels: tuple[str | None, ...]
+    base_y: np.ndarray | None = None  # base height of each sample (drawn panels only)
+    dx: np.ndarray | None = None  # sideways move of each sample (drawn panels only)
+
+    def dx_at(self, y) -> np.ndarray:
+        return np.interp(y, self.base_y, self.dx)
 
 
 def _edge(block: Block, panel: Panel, edge: str, alteration: Alteration, to_altered, step: float) -> _Edge:
@@ -251,6 +262,11 @@ def _edge(block: Block, panel: Panel, edge: str, alteration: Alteration, to_alte
     if bottom.y <= top.y:
         raise ValueError(f"Panel {panel.name}: the {edge} edge must run downwards.")
     at_level = panel.left if edge == LEFT else panel.right
+    drawn = None
+    if panel.curves is not None:
+        drawn = np.asarray(panel.curves.left if edge == LEFT else panel.curves.right, dtype=float)
+        at_level = {name: float(np.interp(y, drawn[:, 1], drawn[:, 0])) for name, y in
+                    ((lv.name, lv.y) for lv in block.levels) if name in at_level}
     knot_y, knot_x, knot_levels = [top.y], [top.x], [None]
     for level in block.levels:
         if top.y - _EPS <= level.y <= bottom.y + _EPS:
@@ -268,7 +284,12 @@ def _edge(block: Block, panel: Panel, edge: str, alteration: Alteration, to_alte
     shifts = [_edge_shift(alteration, panel.name, lv.name, edge) for lv in block.levels]
     sign = -1.0 if edge == LEFT else 1.0
 
-    seam_x, shift_at = Pchip(knot_y, knot_x), Pchip(level_ys, shifts)
+    shift_at = Pchip(level_ys, shifts)
+    if drawn is None:
+        seam_x = Pchip(knot_y, knot_x)
+    else:
+        def seam_x(ys, _y=drawn[:, 1], _x=drawn[:, 0]):
+            return np.interp(ys, _y, _x)
 
     def place(ys):
         xs = seam_x(ys) + sign * shift_at(ys)
@@ -276,12 +297,20 @@ def _edge(block: Block, panel: Panel, edge: str, alteration: Alteration, to_alte
 
     grid = np.arange(knot_y[0], knot_y[-1], step)
     grid = grid[np.min(np.abs(grid[:, None] - np.asarray(knot_y)[None, :]), axis=1) > 0.5 * step]
+    if drawn is not None:
+        # Every drawn vertex stays a sample, so the drawn line is followed exactly.
+        inner = drawn[1:-1, 1]
+        inner = inner[np.min(np.abs(inner[:, None] - np.asarray(knot_y)[None, :]), axis=1) > 1e-3]
+        grid = np.concatenate([grid[np.min(np.abs(grid[:, None] - drawn[None, :, 1]), axis=1) > 0.05 * step]
+                               if len(grid) else grid, inner])
     ys = np.sort(np.concatenate([grid, knot_y]))
     ys, points = _refine(ys, place)
 
     index = {name: int(np.searchsorted(ys, y)) for name, y in zip(knot_levels, knot_y) if name}
     knot_points = points[[int(np.searchsorted(ys, y)) for y in knot_y]]
-    return _Edge(points, index, knot_points, tuple(knot_levels))
+    if drawn is None:
+        return _Edge(points, index, knot_points, tuple(knot_levels))
+    return _Edge(points, index, knot_points, tuple(knot_levels), base_y=ys, dx=points[:, 0] - seam_x(ys))
 
 
 def _turning(points: np.ndarray) -> np.ndarray:
@@ -349,6 +378,15 @@ def _grainline(stitch: Polygon, x: float) -> tuple[Pt, Pt]:
     return (x, y0 + margin), (x, y1 - margin)
 
 
+def _carried(line, move_first, move_last) -> np.ndarray:
+    """A drawn top or bottom edge moved with its two corners: each point by the corners'
+    moves blended by how far along the edge it lies."""
+    pts = np.asarray(line, dtype=float)
+    along = _cumulative_length(pts)
+    t = (along / along[-1])[:, None] if along[-1] > 0 else np.zeros((len(pts), 1))
+    return pts + (1 - t) * np.asarray(move_first, dtype=float) + t * np.asarray(move_last, dtype=float)
+
+
 def _seam_of(block: Block, panel: str, edge: str) -> str | None:
     for seam in block.seams:
         if (edge == RIGHT and seam.front_panel == panel) or (edge == LEFT and seam.back_panel == panel):
@@ -364,7 +402,13 @@ def _panel_labels(block: Block, panel: Panel) -> tuple[str, ...]:
 def _outline(block, panel, alteration, to_altered, allowance, step) -> tuple[PanelOutline, dict[str, _Edge], Polygon]:
     edges = {edge: _edge(block, panel, edge, alteration, to_altered, step) for edge in (LEFT, RIGHT)}
     left, right = edges[LEFT].points, edges[RIGHT].points
-    ring = np.concatenate([left, right[::-1]])
+    if panel.curves is None:
+        ring = np.concatenate([left, right[::-1]])
+    else:
+        c = panel.curves
+        top = _carried(c.top, left[0] - c.left[0], right[0] - c.right[0])
+        bottom = _carried(c.bottom, left[-1] - c.left[-1], right[-1] - c.right[-1])
+        ring = np.concatenate([left, bottom[1:-1], right[::-1], top[-2:0:-1]])
     stitch = Polygon(ring)
     fold_x = float(left[:, 0].min()) if panel.on_fold else None
     cutting = _cutting(stitch, allowance, fold_x)
@@ -386,7 +430,13 @@ def _outline(block, panel, alteration, to_altered, allowance, step) -> tuple[Pan
         x_mid = 0.5 * (left[edges[LEFT].level_index[mid], 0] + right[edges[RIGHT].level_index[mid], 0])
     else:
         x_mid = 0.5 * (left[:, 0].mean() + right[:, 0].mean())
-    grain = _grainline(stitch, float(x_mid))
+    if panel.curves is not None and panel.curves.grainline is not None:
+        grain = tuple(
+            (float(x + 0.5 * (edges[LEFT].dx_at(y) + edges[RIGHT].dx_at(y))), float(to_altered(y)))
+            for x, y in panel.curves.grainline
+        )
+    else:
+        grain = _grainline(stitch, float(x_mid))
     level_y = {}
     for e in edges.values():
         for name, i in e.level_index.items():

@@ -19,12 +19,13 @@ from tests.conftest import DEMO_PASSWORD
 pytestmark = pytest.mark.django_db
 
 
-def test_it_loads_three_clients_and_six_patterns(demo_atelier):
+def test_it_loads_three_clients_and_seven_patterns(demo_atelier):
     assert Client.objects.count() == 3
-    assert BasePattern.objects.count() == 6
+    assert BasePattern.objects.count() == 7
     run = SizeRun.objects.get()
     assert list(run.patterns.order_by("size_order").values_list("size_label", flat=True)) == ["6", "8", "10", "12", "14"]
-    assert BasePattern.objects.get(size_run=None).garment == "bodice"
+    assert set(BasePattern.objects.filter(size_run=None).values_list("garment", flat=True)) == {
+        "bodice", "underbust corset"}
     assert MeasurementSession.objects.count() == 4
     assert Measurement.objects.count() == sum(len(s["values"]) for c in demo.DEMO_CLIENTS for s in c["sessions"])
 
@@ -63,7 +64,25 @@ def test_it_takes_the_demo_password_from_the_environment(monkeypatch):
 def test_it_loads_only_once(demo_atelier):
     assert load_demo_atelier() is None
     assert Client.objects.count() == 3
-    assert BasePattern.objects.count() == 6
+    assert BasePattern.objects.count() == 7
+
+
+def test_it_includes_a_block_imported_from_its_drawing(demo_atelier):
+    """The drawn underbust block comes through the importer from patterns/examples/, its widths as drawn."""
+    from patterns.selectors import block_for
+
+    stored = block_for(BasePattern.objects.get(garment="underbust corset"))
+    drawn = demo.drawn_underbust_block()
+    assert all(p.curves is not None for p in drawn.panels)
+    assert stored.level_names == ("underbust", "waist", "abdomen", "hip")
+    # Drafted to the demo size 10 less the 5 cm lacing gap: half of (31 in - 50 mm) at the underbust.
+    assert stored.half_girth("underbust") == pytest.approx((31 * 25.4 - 50) / 2, abs=0.1)
+    assert stored.half_girth("waist") == pytest.approx((29 * 25.4 - 50) / 2, abs=0.1)
+    assert stored.half_girth("hip") == pytest.approx((39.5 * 25.4 - 50) / 2, abs=0.1)
+    for a, b in zip(stored.panels, drawn.panels):
+        assert a.name == b.name
+        for lv in stored.level_names:
+            assert a.width(lv) == pytest.approx(b.width(lv), abs=0.001)
 
 
 def test_it_leaves_an_atelier_with_its_own_patterns_alone():

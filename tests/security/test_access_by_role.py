@@ -85,6 +85,13 @@ RULES = {
     "fittings:revision_preview": Rule(REV1, READ_ONLY),
     "fittings:revision_checks": Rule(REV1, READ_ONLY),
     "fittings:revision_fitting_file": Rule(REV1, READ_ONLY),
+    "fittings:revision_pieces_svg": Rule(REV1, READ_ONLY),
+    "fittings:revision_pieces_dxf": Rule(REV1, READ_ONLY),
+    # Base patterns as drawing files: any role downloads the pieces; owner and fitters import.
+    "block_files:block_import": Rule(lambda w: {}, EDIT_PAGE),
+    "block_files:pattern_files": Rule(lambda w: {"pk": w.plan.base_pattern_id}, READ_ONLY),
+    "block_files:pattern_pieces_svg": Rule(lambda w: {"pk": w.plan.base_pattern_id}, READ_ONLY),
+    "block_files:pattern_pieces_dxf": Rule(lambda w: {"pk": w.plan.base_pattern_id}, READ_ONLY),
     "fittings:revision_issue": Rule(lambda w: {"pk": w.plan.pk, "number": 2}, {**POST_ONLY, "POST": editors(302)}),
     "fittings:revision_pins": Rule(REV1, EDIT_PAGE),
     # A proof is drawn at once and issues nothing: for those who may change the plan.
@@ -191,7 +198,7 @@ def test_it_answers_404_for_ids_that_do_not_exist_and_still_refuses_the_wrong_ro
 def test_it_answers_404_for_a_revision_number_beyond_the_plans(world, actors):
     beyond = world.plan.revisions.count() + 1
     for name in ("fittings:revision_detail", "fittings:revision_preview", "fittings:revision_fitting_file",
-                 "fittings:revision_checks"):
+                 "fittings:revision_checks", "fittings:revision_pieces_svg", "fittings:revision_pieces_dxf"):
         response = actors[WORKROOM].get(reverse(name, args=[world.plan.pk, beyond]))
         assert response.status_code == 404, name
     response = actors[FITTER].post(reverse("fittings:revision_issue", args=[world.plan.pk, beyond]))

@@ -5,6 +5,7 @@ page is shown, and leaves every table of the fittings and patterns apps
 (rows and contents) and the private files exactly as they were.
 """
 
+import io
 import copy
 import json
 import re
@@ -136,6 +137,35 @@ def renamed_seam(data):
     data["pattern"]["seams"][0]["name"] = "Imaginary seam"
 
 
+def _svg_block(pieces='<rect x="0" y="0" width="100" height="300"/><rect x="150" y="0" width="80" height="300"/>',
+               levels='<line id="bust" x1="-5" y1="50" x2="250" y2="50"/><line id="waist" x1="-5" y1="200" x2="250" y2="200"/>',
+               size='width="300mm" height="500mm" viewBox="0 0 300 500"') -> bytes:
+    """A block drawn by hand as SVG: two rectangles and two level lines, each part replaceable."""
+    return f'<svg xmlns="http://www.w3.org/2000/svg" {size}>{pieces}{levels}</svg>'.encode()
+
+
+def _dxf_block(units: int) -> bytes:
+    import ezdxf
+
+    doc = ezdxf.new("R2010")
+    doc.header["$INSUNITS"] = units
+    doc.modelspace().add_lwpolyline([(0, 0), (100, 0), (100, -300), (0, -300)], close=True)
+    stream = io.StringIO()
+    doc.write(stream)
+    return stream.getvalue().encode()
+
+
+def drawing(content, filename="block.svg", **fields):
+    """The block import form as sent, with a drawing file (None: no file)."""
+    def build(w):
+        data = {"name": "Drawn block", "size_label": "M", "garment": "overbust corset", "front_panels": "",
+                "centre_back": "laced", "seam_allowance": "1.5", **fields}
+        if content is not None:
+            data["file"] = SimpleUploadedFile(filename, content)
+        return data
+    return build
+
+
 def bigger(n):
     return lambda: jpeg_bytes() + b"\x00" * n
 
@@ -252,6 +282,28 @@ CASES = [
     Case("import-deeply-nested", "post", u("fittings:fitting_import", CLIENT), fitting(raw=b"[" * 100_000 + b"]" * 100_000), words="damaged or is not a fitting file"),
     Case("import-file-too-large", "post", u("fittings:fitting_import", CLIENT), fitting(raw=b" " * (600 * 1024) + b"{}"), words="larger than 512 KB"),
     Case("import-garment-too-long", "post", u("fittings:fitting_import", CLIENT), lambda w: {**fitting(setitem(["unit"], "in"))(w), "garment": "g" * 201}, words="too long"),
+    # --- a block drawing (DXF or SVG) for a new base pattern ---------------------------------------
+    Case("block-no-file", "post", u("block_files:block_import"), drawing(None), words="This field is required"),
+    Case("block-empty-file", "post", u("block_files:block_import"), drawing(b"", "empty.svg"), words="The submitted file is empty"),
+    Case("block-open-outline", "post", u("block_files:block_import"), drawing(_svg_block('<path d="M 0 0 L 100 0 L 100 300 L 0 300"/>')), words="An outline is open"),
+    Case("block-svg-without-unit", "post", u("block_files:block_import"), drawing(_svg_block(size='width="300" height="500"')), words="true size is unknown"),
+    Case("block-svg-in-pixels", "post", u("block_files:block_import"), drawing(_svg_block(size='width="300px" height="500px"')), words="true size is unknown"),
+    Case("block-dxf-unitless", "post", u("block_files:block_import"), drawing(_dxf_block(0), "block.dxf"), words="unitless"),
+    Case("block-dxf-in-feet", "post", u("block_files:block_import"), drawing(_dxf_block(2), "block.dxf"), words="feet"),
+    Case("block-without-levels", "post", u("block_files:block_import"), drawing(_svg_block(levels="")), words="no level lines"),
+    Case("block-piece-short-of-a-level", "post", u("block_files:block_import"), drawing(_svg_block('<rect x="0" y="0" width="100" height="300"/><rect x="150" y="0" width="80" height="150"/>')), words="does not reach the waist"),
+    Case("block-not-a-dxf", "post", u("block_files:block_import"), drawing(b"0\nSECTION\n2\nNONSENSE", "block.dxf"), words="DXF"),
+    Case("block-not-svg", "post", u("block_files:block_import"), drawing(b"<html><body>hello</body></html>", "block.svg"), words="not SVG"),
+    Case("block-broken-xml", "post", u("block_files:block_import"), drawing(b"<svg xmlns='http://www.w3.org/2000/svg'><g>", "block.svg"), words="not an SVG file that can be read"),
+    Case("block-xml-entities", "post", u("block_files:block_import"), drawing(b'<!DOCTYPE svg [<!ENTITY a "aaaaaaaa"><!ENTITY b "&a;&a;&a;&a;">]><svg xmlns="http://www.w3.org/2000/svg">&b;</svg>', "block.svg"), words="declares its own entities"),
+    Case("block-neither-format", "post", u("block_files:block_import"), drawing(b"\x89PNG\r\n\x1a\n", "block.png"), words="neither DXF nor SVG"),
+    Case("block-file-too-large", "post", u("block_files:block_import"), drawing(b"<svg>" + b" " * (5 * 1024 * 1024) + b"</svg>"), words="larger than 5 MB"),
+    Case("block-name-taken", "post", u("block_files:block_import"), drawing(_svg_block(), name="Overbust corset, six panels", size_label="10"), words="already keeps"),
+    Case("block-too-many-front-pieces", "post", u("block_files:block_import"), drawing(_svg_block(), front_panels="3"), words="in front of the side seam"),
+    Case("block-negative-allowance", "post", u("block_files:block_import"), drawing(_svg_block(), seam_allowance="-1"), words="is not a length in centimetres"),
+    Case("block-allowance-too-wide", "post", u("block_files:block_import"), drawing(_svg_block(), seam_allowance="6"), words="Must be between"),
+    Case("block-unknown-garment", "post", u("block_files:block_import"), drawing(_svg_block(), garment="cape"), words="Select a valid choice"),
+    Case("block-name-blank", "post", u("block_files:block_import"), drawing(_svg_block(), name="   "), words="This field is required"),
     # --- URL parameters: other clients' objects, ids that do not exist, junk ---------------------
     Case("compare-another-clients-session", "get", q("fittings:compare", lambda w: f"a=s{w.other_client.sessions.get().pk}&b=s{w.session.pk}", CLIENT), words="not in this client"),
     Case("compare-another-clients-revision", "get", q("fittings:compare", lambda w: f"a=r{w.other_plan.revisions.get().pk}&b=r{w.issued.pk}", CLIENT), words="not in this client"),
