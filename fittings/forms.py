@@ -9,7 +9,8 @@ from django.utils import timezone
 from PIL import Image
 
 from fittings.models import UNIT_CHOICES, Client, MeasurementSession, PhotoView, SessionKind
-from patterns.core.allot import POLICIES, Override, PlanOptions
+from patterns.core.allot import Override, PlanOptions
+from patterns.core.policies import POLICY_CHOICES
 from patterns.core.block import Block
 from patterns.core.measures import LEVEL_LABELS, MEASURES
 from patterns.core.units import (
@@ -225,7 +226,7 @@ def cell_name(seam_index: int, level: str, edge: int) -> str:
 class PlanOptionsForm(UnitFormMixin, forms.Form):
     """The fitter's choices for a plan: ease per level, lacing gap, centre front, spread, rounding, fixed cells."""
 
-    policy = forms.ChoiceField(choices=list(POLICIES.items()), label="Spread the change")
+    policy = forms.ChoiceField(choices=POLICY_CHOICES, label="Spread the change")
     lacing_gap = LengthField(label="Lacing gap", required=False, limits=(0, 200))
     centre_front_width = LengthField(label="Centre-front width", required=False, limits=(10, 600),
                                      help_text="Across the whole front panel. Leave empty to keep the pattern's.")

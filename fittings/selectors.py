@@ -12,7 +12,7 @@ from django.db.models import Count, Prefetch, Q
 from atelier.memo import Recent
 from fittings.models import Client, MeasurementSession, Plan, PlanRevision
 from fittings.search import search_expressions
-from patterns.core.allot import suggest_size
+from patterns.core.sizing import suggest_size
 from patterns.core.defaults import default_options
 from patterns.core.fitting import (
     allotment_from_dict, block_from_dict, body_from_measurements, options_from_dict,

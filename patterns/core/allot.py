@@ -14,25 +14,13 @@ plan's step, then any toile pin adjustments on top.
 import math
 from dataclasses import asdict, dataclass, field, replace
 
-from patterns.core.block import BACK, CB_LACED, FRONT, MIN_PANEL_WIDTH_MM, Alteration, Block, PanelShift
-from patterns.core.findings import CAUTION, ERROR, WARNING, Finding
+from patterns.core.block import BACK, CB_LACED, FRONT, Alteration, Block, PanelShift
+from patterns.core.checks import input_findings, overshoot_finding, overshoots, shape_findings
+from patterns.core.findings import ERROR, WARNING, Finding
 from patterns.core.measures import LENGTH_MEASURES, LEVEL_LABELS
+from patterns.core.policies import EVEN, distribute
 from patterns.core.rounding import EPS, round_to_step, steps_of
-from patterns.core.units import format_with_unit
 
-EVEN, SIDES_FIRST, BY_WIDTH = "even", "sides_first", "by_width"
-POLICIES = {
-    EVEN: "Evenly over every free raw edge",
-    SIDES_FIRST: "Side seams first, then princess seams, then the rest",
-    BY_WIDTH: "In proportion to each panel's width",
-}
-
-# Thresholds, each with where it comes from.
-STEEP_SLOPE = 0.2  # our choice: 1 mm of shift per 5 mm of seam between levels keeps the line smooth
-ABSURD_UNDERBUST_EXCESS_MM = 100.0  # our choice: underbust over bust by more than 10 cm is a mis-reading
-FIRST_CORSET_REDUCTION_MM = 100.0  # common practice: a first corset reduces the waist 5-10 cm
-FIRST_CORSET_REDUCTION_SHARE = 0.10  # common practice: about 10 % of the natural waist
-GAP_WARNING_MM = 80.0  # common practice: about 5 cm is usual; much wider strains the back unevenly
 
 
 @dataclass(frozen=True)
@@ -196,7 +184,7 @@ def allot(block: Block, body: Body, options: PlanOptions) -> Allotment:
     findings: list[Finding] = []
     step = options.step_mm
     gap = options.lacing_gap_mm if block.centre_back == CB_LACED else 0.0
-    findings += _input_findings(block, body, options, gap)
+    findings += input_findings(block, body, options, gap)
 
     cf_shift = 0.0
     if options.centre_front_width_mm is not None:
@@ -238,7 +226,7 @@ def allot(block: Block, body: Body, options: PlanOptions) -> Allotment:
                     fixed=key in fixed, pin_mm=_clean(pin),
                 ))
 
-    findings += _shape_findings(block, edge_shifts, cf_shift)
+    findings += shape_findings(block, edge_shifts, cf_shift)
     bands = _bands(block, body, step) if options.apply_lengths else ()
     return Allotment(
         block=block.name, size=block.size, unit=options.unit, step_mm=step, policy=options.policy,
@@ -297,9 +285,9 @@ def _allot_level(block, body, options, level, gap, cf_shift, fixed, panels):
         to_spread = part_difference - cf_change - fixed_change
         where = f"{label} ({side})" if side else label
         need = part_difference - cf_change
-        if _overshoots(fixed_change, need, step):
-            findings.append(_overshoot_finding(where, level, fixed_change, need, options.unit))
-        exact = _spread(level, to_spread / 2, free, options.policy, panels) if free and abs(to_spread) > EPS else {}
+        if overshoots(fixed_change, need, step):
+            findings.append(overshoot_finding(where, level, fixed_change, need, options.unit))
+        exact = distribute(level, to_spread / 2, free, options.policy, panels) if free and abs(to_spread) > EPS else {}
         work.append((side, part_target, part_pattern, cf_change, part_edges, free, part_difference, fixed_change,
                      to_spread, where, exact))
 
@@ -375,181 +363,6 @@ def _part_steps(halves: list[float | None], step: float) -> list[int]:
     return [choices[0], total - choices[0]]
 
 
-def _overshoots(fixed_change: float, need: float, step: float) -> bool:
-    """Cells fixed by hand that already change the girth more than the level needs, the same way.
-
-    Fixing some edges one way and letting the free ones go the other (the side seams let out
-    by hand, the princess seams taken in) is ordinary work and says nothing.
-    """
-    return fixed_change * need > 0 and abs(fixed_change) > abs(need) + step + EPS
-
-
-def _overshoot_finding(where: str, level: str, fixed_change: float, need: float, unit: str) -> Finding:
-    verb = "let out" if need > 0 else "take in"
-    opposite = "take in" if need > 0 else "let out"
-    extra = abs(fixed_change) - abs(need)
-    return Finding(
-        "override_exceeds_difference", WARNING,
-        f"{where}: the edges you set by hand {verb} {format_with_unit(abs(fixed_change), unit)} of girth, "
-        f"{format_with_unit(extra, unit)} more than this level needs ({format_with_unit(abs(need), unit)}). "
-        f"The edges left free {opposite} {format_with_unit(extra, unit)} to make up for it; clear a hand-set "
-        f"cell if that is not what you meant.",
-        level=level,
-    )
-
-
-def _spread(level, half, free, policy, panels) -> dict[tuple[str, str, str], float]:
-    """Spread one body half's share over the free raw edges, within caps where possible."""
-    keys = [(s.name, level, p) for s, p in free]
-    caps = {k: s.cap_mm for k, (s, p) in zip(keys, free)}
-    if policy == BY_WIDTH:
-        weights = {k: max(panels[p].width(level), EPS) for k, (s, p) in zip(keys, free)}
-    else:
-        weights = {k: 1.0 for k in keys}
-    if policy == SIDES_FIRST:
-        kinds = {k: s.kind for k, (s, p) in zip(keys, free)}
-        tiers = [[k for k in keys if kinds[k] == kind] for kind in ("side", "princess", "other")]
-    else:
-        tiers = [keys]
-    result = {k: 0.0 for k in keys}
-    remaining = half
-    for tier in tiers:
-        if abs(remaining) <= EPS:
-            break
-        remaining = _fill(tier, remaining, weights, caps, result)
-    if abs(remaining) > EPS:
-        # Every edge is at its cap: go beyond, evenly by weight, and let the warning say so.
-        total_weight = sum(weights.values())
-        for k in keys:
-            result[k] += remaining * weights[k] / total_weight
-    return result
-
-
-def _fill(tier, amount, weights, caps, result) -> float:
-    """Water-filling: share ``amount`` by weight, capping edges that would pass their cap."""
-    active = [k for k in tier if abs(result[k]) < caps[k] - EPS]
-    remaining = amount
-    while active and abs(remaining) > EPS:
-        total_weight = sum(weights[k] for k in active)
-        shares = {k: remaining * weights[k] / total_weight for k in active}
-        capped = [k for k in active if abs(result[k] + shares[k]) > caps[k] + EPS]
-        if not capped:
-            for k in active:
-                result[k] += shares[k]
-            return 0.0
-        for k in capped:
-            target = math.copysign(caps[k], remaining)
-            remaining -= target - result[k]
-            result[k] = target
-        active = [k for k in active if k not in capped]
-    return remaining
-
-
-def _input_findings(block, body, options, gap) -> list[Finding]:
-    findings = []
-    for level in block.level_names:
-        girth = body.girths.get(level)
-        label = LEVEL_LABELS.get(level, level)
-        if girth is None:
-            findings.append(Finding("missing_girth", ERROR, f"No {label.lower()} girth was measured; the pattern needs it.", level=level))
-        elif not math.isfinite(girth) or girth <= 0:
-            findings.append(Finding("impossible_girth", ERROR, f"The {label.lower()} girth must be a positive length.", level=level))
-        arc = body.front_arcs.get(level)
-        if arc is not None and girth is not None and not (0 < arc < girth):
-            findings.append(Finding("impossible_front_arc", ERROR, f"The {label.lower()} front arc must be shorter than the whole girth.", level=level))
-    for level in block.levels:
-        label = LEVEL_LABELS.get(level.name, level.name)
-        above = [p.name for p in block.panels if max(p.top_left.y, p.top_right.y) > level.y]
-        below = [p.name for p in block.panels if min(p.bottom_left.y, p.bottom_right.y) < level.y]
-        for names, where in ((above, "above the top of"), (below, "below the bottom of")):
-            if names:
-                findings.append(Finding(
-                    "level_beyond_panel", WARNING,
-                    f"{label}: the {label.lower()} line lies {where} {_panel_list(names)}, so what is worked out "
-                    f"there for {'it' if len(names) == 1 else 'them'} is not cut. Check the pattern's levels, "
-                    "and check this level on the toile.",
-                    level=level.name,
-                ))
-    bust, underbust = body.girths.get("bust"), body.girths.get("underbust")
-    if bust and underbust and underbust - bust > ABSURD_UNDERBUST_EXCESS_MM:
-        findings.append(Finding(
-            "underbust_exceeds_bust", ERROR,
-            f"The underbust girth is {(underbust - bust) / 10:.1f} cm larger than the bust girth. One of them is likely misread.",
-            level="underbust",
-        ))
-    if options.step_mm <= 0 or not math.isfinite(options.step_mm):
-        findings.append(Finding("bad_step", ERROR, "The rounding step must be a positive length."))
-    if options.policy not in POLICIES:
-        findings.append(Finding("unknown_policy", ERROR, f"Unknown distribution {options.policy!r}."))
-    if gap > GAP_WARNING_MM:
-        findings.append(Finding(
-            "wide_lacing_gap", WARNING,
-            f"A lacing gap of {gap / 10:.1f} cm is wide; about 5 cm is usual, and a much wider gap puts uneven pressure on the back.",
-        ))
-    seams = {s.name: s for s in block.seams}
-    for item in (*options.overrides, *options.pins):
-        if item.seam not in seams:
-            findings.append(Finding("unknown_seam", ERROR, f"There is no seam called {item.seam!r} in this pattern."))
-        if item.level not in block.level_names:
-            findings.append(Finding("unknown_level", ERROR, f"The pattern has no level {item.level!r}."))
-    for o in options.overrides:
-        if o.seam in seams and o.panel not in (seams[o.seam].front_panel, seams[o.seam].back_panel):
-            findings.append(Finding("unknown_edge", ERROR, f"The {o.seam} has no raw edge on panel {o.panel!r}.", seam=o.seam))
-    waist = body.girths.get("waist")
-    reduction = -options.ease.get("waist", 0.0)
-    if waist and reduction > 0 and (
-        reduction > FIRST_CORSET_REDUCTION_MM or reduction > FIRST_CORSET_REDUCTION_SHARE * waist
-    ):
-        findings.append(Finding(
-            "strong_waist_reduction", CAUTION,
-            f"A waist reduction of {reduction / 10:.1f} cm ({100 * reduction / waist:.0f} % of the natural waist) is more "
-            "than is usual for a first corset (5 to 10 cm, about 10 %). Strong reduction restricts breathing and can "
-            "injure: plan gradual wear, check the client's comfort at every fitting, and follow the fitter's judgment.",
-            level="waist",
-        ))
-    return findings
-
-
-def _panel_list(names: list[str]) -> str:
-    words = names[0] if len(names) == 1 else ", ".join(names[:-1]) + " and " + names[-1]
-    return f"the {words} panel{'s' if len(names) > 1 else ''}"
-
-
-def _shape_findings(block, edge_shifts, cf_shift) -> list[Finding]:
-    findings = []
-    by_edge: dict[tuple[str, str], dict[str, float]] = {}
-    for s in edge_shifts:
-        by_edge.setdefault((s.seam, s.panel), {})[s.level] = s.shift_mm
-    levels = block.levels
-    for (seam, panel), per_level in by_edge.items():
-        for upper, lower in zip(levels, levels[1:]):
-            a, b = per_level.get(upper.name, 0.0), per_level.get(lower.name, 0.0)
-            slope = abs(b - a) / (lower.y - upper.y)
-            if slope > STEEP_SLOPE:
-                findings.append(Finding(
-                    "steep_seam", WARNING,
-                    f"The {panel} edge of the {seam} changes by {abs(b - a):.1f} mm between {LEVEL_LABELS.get(upper.name)} "
-                    f"and {LEVEL_LABELS.get(lower.name)}, only {lower.y - upper.y:.0f} mm apart: the seam line will not run smoothly.",
-                    seam=seam, panel=panel, level=lower.name,
-                ))
-    widening: dict[tuple[str, str], float] = {}
-    for s in edge_shifts:
-        widening[(s.panel, s.level)] = widening.get((s.panel, s.level), 0.0) + s.shift_mm
-    for panel in block.panels:
-        for level in block.level_names:
-            width = panel.width(level) + widening.get((panel.name, level), 0.0)
-            if panel is block.panels[0]:
-                width += cf_shift
-            if width < MIN_PANEL_WIDTH_MM:
-                findings.append(Finding(
-                    "panel_too_narrow", ERROR,
-                    f"The {panel.name} panel would be only {width:.0f} mm wide at {LEVEL_LABELS.get(level, level).lower()} "
-                    f"(at least {MIN_PANEL_WIDTH_MM:.0f} mm is needed). Choose another base size or spread the change differently.",
-                    level=level, panel=panel.name,
-                ))
-    return findings
-
-
 def body_level_positions(lengths: dict[str, float]) -> dict[str, float]:
     """Where each level sits on the body, in mm below the waist (upwards negative), from measured lengths."""
     positions = {"waist": 0.0}
@@ -582,45 +395,3 @@ def _bands(block, body, step) -> tuple[BandChange, ...]:
     return tuple(bands)
 
 
-@dataclass(frozen=True)
-class SizeChoice:
-    block: Block
-    allotment: Allotment
-    errors: int
-    over_cap: int
-    largest_edge_mm: float
-    total_edges_mm: float
-    reason: str = ""
-
-
-def suggest_size(blocks: list[Block], body: Body, options: PlanOptions) -> list[SizeChoice]:
-    """Rank the sizes of a run by how little they need altering; the first is the suggestion.
-
-    Hand-fixed cells and pins belong to one size and are left out of the comparison.
-    """
-    plain = replace(options, overrides=(), pins=(), centre_front_width_mm=options.centre_front_width_mm)
-    choices = []
-    for block in blocks:
-        result = allot(block, body, plain)
-        choices.append(SizeChoice(
-            block=block, allotment=result, errors=len(result.errors),
-            over_cap=sum(1 for f in result.findings if f.code == "edge_over_cap"),
-            largest_edge_mm=result.largest_edge_mm(), total_edges_mm=result.total_edges_mm(),
-        ))
-    choices.sort(key=lambda c: (c.errors, c.over_cap, round(c.largest_edge_mm, 6), round(c.total_edges_mm, 6), c.block.size_order))
-    if choices:
-        best = choices[0]
-        text = (f"Size {best.block.size} needs the least alteration: the largest single raw edge moves "
-                f"{best.largest_edge_mm:.0f} mm and all raw edges together {best.total_edges_mm:.0f} mm")
-        if best.errors:
-            text += f", though it still has {best.errors} problem(s) to resolve"
-        elif best.over_cap == 0:
-            text += ", with every edge within its limit"
-        if len(choices) > 1:
-            nxt = choices[1]
-            text += (f". Next: size {nxt.block.size} (largest edge {nxt.largest_edge_mm:.0f} mm, "
-                     f"all edges {nxt.total_edges_mm:.0f} mm).")
-        else:
-            text += "."
-        choices[0] = replace(best, reason=text)
-    return choices

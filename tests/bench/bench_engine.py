@@ -15,7 +15,9 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
-from patterns.core.allot import SIDES_FIRST, Body, PlanOptions, allot  # noqa: E402
+from patterns.core.allot import Body, PlanOptions, allot  # noqa: E402
+
+from patterns.core.policies import SIDES_FIRST
 from patterns.core.block import BACK, FRONT, Block, Level, Panel, Point, Seam  # noqa: E402
 
 

@@ -8,7 +8,9 @@ moved s mm changes the girth by 2 s mm.
 
 import pytest
 
-from patterns.core.allot import BY_WIDTH, EVEN, SIDES_FIRST, Body, Override, PinAdjustment, PlanOptions, allot
+from patterns.core.allot import Body, Override, PinAdjustment, PlanOptions, allot
+
+from patterns.core.policies import BY_WIDTH, EVEN, SIDES_FIRST
 from patterns.core.units import parse_length
 from tests.patterns.engine_helpers import three_panel_block
 

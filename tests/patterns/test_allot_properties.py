@@ -5,7 +5,9 @@ from dataclasses import replace
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
-from patterns.core.allot import POLICIES, Body, Override, PlanOptions, allot
+from patterns.core.allot import Body, Override, PlanOptions, allot
+
+from patterns.core.policies import POLICIES
 from patterns.core.block import BACK, FRONT, Block, Level, Panel, Point, Seam
 from patterns.core.rounding import EPS
 

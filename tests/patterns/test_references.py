@@ -2,7 +2,9 @@
 
 from fractions import Fraction
 
-from patterns.core.allot import Body, PlanOptions, allot, suggest_size
+from patterns.core.allot import Body, PlanOptions, allot
+
+from patterns.core.sizing import suggest_size
 from patterns.core.units import MM_PER_INCH
 from patterns.demo import CORSET_SIZES, LACING_GAP_MM, corset_run
 from tests.patterns.engine_helpers import three_panel_block

@@ -8,7 +8,7 @@ policy or unit in the core fails here until the schema says it too.
 
 import pytest
 
-from patterns.core.allot import POLICIES
+from patterns.core.policies import POLICIES
 from patterns.core.block import BACK, CB_LACED, CB_SEAMED, CF_BUSK, CF_FOLD, FRONT, SEAM_KINDS
 from patterns.core.findings import CAUTION, ERROR, WARNING
 from patterns.core.fitting import schema
