@@ -10,7 +10,7 @@ from django.db import connection
 from django.db.models import Count, Prefetch, Q
 
 from atelier.memo import Recent
-from fittings.models import Client, MeasurementSession, Plan, PlanRevision
+from fittings.models import Client, MeasurementSession, Photo, Plan, PlanRevision
 from fittings.search import search_expressions
 from patterns.core.sizing import suggest_size
 from patterns.core.defaults import default_options
@@ -329,3 +329,45 @@ def suggestions_for_session(session, patterns, garment: str | None = None) -> li
     return out
 
 
+
+
+# --- one record for a screen: None where there is none (the views answer 404) ---------------------
+# Clients removed from the lists (soft-deleted) are not opened: the owner restores them in the admin.
+
+
+def active_client(pk: int) -> Client | None:
+    return Client.objects.filter(pk=pk).first()
+
+
+def session_with_readings(pk: int, client: Client | None = None) -> MeasurementSession | None:
+    sessions = MeasurementSession.objects.select_related("client").prefetch_related("measurements")
+    if client is not None:
+        sessions = sessions.filter(client=client)
+    return sessions.filter(pk=pk, client__is_deleted=False).first()
+
+
+def plan_for_page(pk: int) -> Plan | None:
+    return Plan.objects.select_related("client", "session", "base_pattern").filter(pk=pk, client__is_deleted=False).first()
+
+
+def plan_revision(plan: Plan, number: int) -> PlanRevision | None:
+    """A revision with its pins; its inputs and result stay in the database unless not decoded yet."""
+    return PlanRevision.objects.defer("inputs", "result").prefetch_related("pins").filter(plan=plan, number=number).first()
+
+
+def revision_for_print(plan: Plan, number: int) -> PlanRevision | None:
+    """A revision with everything its printed pages name (client, who measured, who issued, what it came from)."""
+    return (PlanRevision.objects.select_related("plan__client", "plan__session__measured_by", "issued_by", "based_on")
+            .filter(plan=plan, number=number).first())
+
+
+def client_revision(client: Client, pk: int) -> PlanRevision | None:
+    return PlanRevision.objects.select_related("plan").filter(pk=pk, plan__client=client).first()
+
+
+def latest_plan(client: Client) -> Plan | None:
+    return client.plans.select_related("base_pattern").order_by("-created_at").first()
+
+
+def photo(pk: int) -> Photo | None:
+    return Photo.objects.select_related("session__client").filter(pk=pk, session__client__is_deleted=False).first()

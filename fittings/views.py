@@ -4,14 +4,13 @@ from django.core.paginator import Paginator
 from django import forms
 from django.contrib import messages
 from django.http import FileResponse, Http404
-from django.shortcuts import get_object_or_404, redirect, render
+from django.shortcuts import redirect, render
 from django.utils.http import url_has_allowed_host_and_scheme
 from django.views.decorators.http import require_POST
 
 from atelier.roles import EDITORS, ROLES, WORKROOM, role_of, role_required
 from fittings import selectors
 from fittings.forms import PhotoField
-from fittings.models import Photo
 from fittings.services import clients as client_services
 
 CLIENTS_PER_PAGE = 25
@@ -39,7 +38,7 @@ def client_list(request):
 # Photos of clients' bodies are for the fitters and the owner; the workroom cuts from the work order.
 @role_required(*EDITORS)
 def photo_file(request, pk):
-    photo = get_object_or_404(Photo.objects.select_related("session__client"), pk=pk, session__client__is_deleted=False)
+    photo = _photo(pk)
     try:
         handle = photo.image.open("rb")
     except FileNotFoundError:
@@ -53,7 +52,10 @@ def photo_file(request, pk):
 
 
 def _photo(pk):
-    return get_object_or_404(Photo.objects.select_related("session__client"), pk=pk, session__client__is_deleted=False)
+    photo = selectors.photo(pk)
+    if photo is None:
+        raise Http404("No such photo.")
+    return photo
 
 
 def _back(request, photo):

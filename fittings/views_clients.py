@@ -1,14 +1,13 @@
 """Clients, their measurement sessions and the comparison of two fittings."""
 
 from django.contrib import messages
-from django.http import HttpResponseBadRequest
-from django.shortcuts import get_object_or_404, redirect, render
+from django.http import Http404, HttpResponseBadRequest
+from django.shortcuts import redirect, render
 from django.views.decorators.http import require_POST
 
 from atelier.roles import EDITORS, OWNER, role_of, role_required
 from fittings import selectors, tables
 from fittings.forms import ClientForm, SessionForm
-from fittings.models import Client, MeasurementSession
 from fittings.services import clients as client_services
 from patterns.core.measures import MEASURES, plausibility_notes
 from fittings.wording import in_unit
@@ -16,8 +15,10 @@ from patterns.core.units import UNITS
 
 
 def _client(pk):
-    # Client.objects: a client removed from the lists is not opened or added to (the admin restores them).
-    return get_object_or_404(Client.objects, pk=pk)
+    client = selectors.active_client(pk)  # a client removed from the lists is not opened (the admin restores them)
+    if client is None:
+        raise Http404("No such client.")
+    return client
 
 
 @role_required(*EDITORS)
@@ -80,8 +81,9 @@ def session_new(request, client_pk):
 
 @role_required(*EDITORS)
 def session_edit(request, pk):
-    session = get_object_or_404(MeasurementSession.objects.prefetch_related("measurements"), pk=pk,
-                                client__is_deleted=False)
+    session = selectors.session_with_readings(pk)
+    if session is None:
+        raise Http404("No such session.")
     client = session.client
     previous = selectors.latest_session(client, before=session)
     conflict = None
@@ -156,8 +158,8 @@ def session_check(request, client_pk):
     client = _client(client_pk)
     session_pk = request.POST.get("session")
     current = None
-    if session_pk and session_pk.isascii() and session_pk.isdigit():
-        current = MeasurementSession.objects.filter(pk=session_pk, client=client).first()
+    if session_pk and session_pk.isascii() and session_pk.isdigit() and len(session_pk) < 19:
+        current = selectors.session_with_readings(int(session_pk), client=client)
     previous = selectors.latest_session(client, before=current)
     form = SessionForm(request.POST)
     notes = _notes(form, previous)

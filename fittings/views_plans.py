@@ -3,7 +3,7 @@
 from django.contrib import messages
 from django.core.exceptions import PermissionDenied
 from django.http import Http404, HttpResponse
-from django.shortcuts import get_object_or_404, redirect, render
+from django.shortcuts import redirect, render
 from django.urls import reverse
 from django.utils.http import urlencode
 from django.utils.csp import CSP
@@ -13,7 +13,6 @@ from django.views.decorators.http import require_GET, require_POST
 from atelier.roles import EDITORS, ROLES, WORKROOM, role_of, role_required
 from fittings import previews, selectors
 from fittings.forms import NewPlanForm, PinForm, PlanOptionsForm, cell_name
-from fittings.models import MeasurementSession, Plan, PlanRevision
 from fittings.services import ConcurrentEdit
 from fittings.services import plans as plan_services
 from fittings.tables import plan_table
@@ -25,17 +24,18 @@ from patterns.core.units import format_length, format_with_unit
 from patterns.selectors import active_patterns
 
 
+def _found(obj, what: str):
+    if obj is None:
+        raise Http404(f"No such {what}.")
+    return obj
+
+
 def _session(pk):
-    return get_object_or_404(
-        MeasurementSession.objects.select_related("client").prefetch_related("measurements"),
-        pk=pk, client__is_deleted=False,
-    )
+    return _found(selectors.session_with_readings(pk), "session")
 
 
 def _plan(pk):
-    return get_object_or_404(
-        Plan.objects.select_related("client", "session", "base_pattern"), pk=pk, client__is_deleted=False,
-    )
+    return _found(selectors.plan_for_page(pk), "plan")
 
 
 def _plan_and_latest(pk, page=True):
@@ -48,8 +48,7 @@ def _plan_and_latest(pk, page=True):
 
 def _revision(plan, number, user=None):
     # Inputs and result stay in the database unless the decoded copy is missing (selectors.revision_inputs).
-    revision = get_object_or_404(PlanRevision.objects.defer("inputs", "result").prefetch_related("pins"),
-                                 plan=plan, number=number)
+    revision = _found(selectors.plan_revision(plan, number), "revision")
     if user is not None and revision.status != "issued" and role_of(user) == WORKROOM:
         raise PermissionDenied("This revision is a draft: the workroom sees a revision once it is issued.")
     return revision
@@ -61,13 +60,11 @@ def plan_new(request, session_pk):
     session = _session(session_pk)
     based_on = None
     if request.GET.get("from") or request.POST.get("from"):
-        based_on = get_object_or_404(
-            PlanRevision.objects.select_related("plan"),
-            pk=_int(request.GET.get("from") or request.POST.get("from")), plan__client=session.client,
-        )
+        based_on = _found(selectors.client_revision(session.client, _int(request.GET.get("from") or request.POST.get("from"))),
+                          "revision")
     patterns = active_patterns().order_by("name", "size_order")
     # The garment being planned: the one carried over, else the client's last plan's, else the best size's.
-    earlier = based_on.plan if based_on else session.client.plans.select_related("base_pattern").order_by("-created_at").first()
+    earlier = based_on.plan if based_on else selectors.latest_plan(session.client)
     garment = earlier.base_pattern.garment if earlier else None
     suggestions = selectors.suggestions_for_session(session, patterns, garment=garment)
     unit = session.unit
@@ -384,9 +381,7 @@ MAX_FITTING_FILE_BYTES = 512 * 1024
 @role_required(*EDITORS)
 def fitting_import(request, client_pk):
     """Take in a fitting file for this client: a new session and a new plan from it."""
-    from fittings.models import Client
-
-    client = get_object_or_404(Client.objects, pk=client_pk)  # not a client removed from the lists
+    client = _found(selectors.active_client(client_pk), "client")
     error = other = None
     garment = ""
     if request.method == "POST":
@@ -498,8 +493,7 @@ def revision_proof(request, pk, number, document):
     if document not in PROOFS:
         raise Http404("No such document.")
     plan = _plan(pk)
-    revision = get_object_or_404(PlanRevision.objects.select_related(
-        "plan__client", "plan__session__measured_by", "issued_by", "based_on"), plan=plan, number=number)
+    revision = _found(selectors.revision_for_print(plan, number), "revision")
     data = documents.document_data(revision, request.build_absolute_uri("/"))
     try:
         documents.check_printable(data)
