@@ -10,7 +10,7 @@ from django.views.decorators.http import require_http_methods
 
 from atelier.roles import EDITORS, ROLES, WORKROOM, role_of, role_required
 from fittings.models import PlanRevision, PrintJob, PrintKind, PrintPaper, PrintStatus
-from fittings.tasks import PrintRefused, settle_abandoned, start_print, waiting_for_a_worker
+from fittings.services.printing import PrintRefused, settle_abandoned, start_print, waiting_for_a_worker
 
 # The file a download link names, and the job's field that holds it.
 DOCUMENTS = {"work-order": "work_order", "cutting-sheet": "cutting_sheet"}

@@ -26,7 +26,8 @@ from django.utils import timezone
 import atelier.urls
 import fittings.urls
 import fittings.urls_print
-from fittings import documents, tasks
+from fittings import documents
+from fittings.services import printing
 from fittings.documents import (
     PANEL_GAP_MM, SHEET_MARGIN_MM, WAIST_REDUCTION_CAUTION, DocumentData, altered_pattern, client_label,
     document_data, render_cutting_sheet, render_work_order, work_order_pdf,
@@ -34,7 +35,7 @@ from fittings.documents import (
 from fittings.models import MeasurementSession, PrintJob, RevisionStatus
 from fittings.wording import in_unit
 from fittings.services import plans as plan_services
-from fittings.tasks import run_print_job
+from fittings.services.printing import run_print_job
 from patterns.core.allot import allot
 from patterns.core.fitting import body_from_measurements, load_fitting_text
 from patterns.core.measures import LEVEL_LABELS
@@ -507,9 +508,9 @@ def test_it_gives_up_on_a_job_its_worker_left_and_offers_to_print_again(fitter_c
     revision = plan_services.issue_revision(revision=selectors.latest_revision(plan), user=None)
     now = timezone.now()
     left = PrintJob.objects.create(revision=revision, paper="a4", status="running", step="Drawing",
-                                   started_at=now - tasks.WORKER_GONE_AFTER - timedelta(seconds=1))
+                                   started_at=now - printing.WORKER_GONE_AFTER - timedelta(seconds=1))
     busy = PrintJob.objects.create(revision=revision, paper="a4", status="running", step="Drawing",
-                                   started_at=now - tasks.WORKER_GONE_AFTER + timedelta(seconds=30))
+                                   started_at=now - printing.WORKER_GONE_AFTER + timedelta(seconds=30))
     html = fitter_client.get(reverse("fittings:print_status", args=[left.pk]), headers={"HX-Request": "true"})
     left.refresh_from_db()
     assert left.status == "failed" and left.finished_at is not None and "worker stopped" in left.error
@@ -525,7 +526,7 @@ def test_it_says_when_no_worker_takes_the_job(fitter_client, plan):
     revision = plan_services.issue_revision(revision=selectors.latest_revision(plan), user=None)
     fresh = PrintJob.objects.create(revision=revision, paper="a4")
     stuck = PrintJob.objects.create(revision=revision, paper="a4",
-                                    created_at=timezone.now() - tasks.NO_WORKER_AFTER - timedelta(seconds=1))
+                                    created_at=timezone.now() - printing.NO_WORKER_AFTER - timedelta(seconds=1))
     page = {job: fitter_client.get(reverse("fittings:print_status", args=[job.pk])).content.decode()
             for job in (fresh, stuck)}
     assert "No document worker" not in page[fresh] and "No document worker" in page[stuck]

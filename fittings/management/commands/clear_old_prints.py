@@ -3,7 +3,7 @@ from datetime import timedelta
 from django.conf import settings
 from django.core.management.base import BaseCommand, CommandError
 
-from fittings.tasks import clear_old_files
+from fittings.services.printing import clear_old_files
 
 
 class Command(BaseCommand):
