@@ -12,8 +12,7 @@ from django.core.management import call_command
 from django.core.management.base import BaseCommand, CommandError
 
 from atelier.warmup import warm_up
-from fittings.management.commands.load_demo import report_demo
-from fittings.services.demo import atelier_is_empty, load_demo_atelier
+from fittings.services.demo import atelier_is_empty
 
 DEFAULT_BIND = "127.0.0.1:8000"
 WILDCARDS = {"0.0.0.0", "::", ""}
@@ -83,7 +82,7 @@ class Command(BaseCommand):
         call_command("check")
         call_command("migrate", interactive=False, verbosity=1)
         if not no_demo and atelier_is_empty():
-            report_demo(self.stdout, self.style, load_demo_atelier())
+            call_command("load_demo", stdout=self.stdout, stderr=self.stderr)
         call_command("collectstatic", interactive=False, verbosity=0)
         call_command("clear_old_prints")
         self.stdout.write("Warming up (the first start builds a font cache and takes longer)...")
