@@ -328,3 +328,28 @@ class PinForm(UnitFormMixin, forms.Form):
                 if value:
                     out.append((seam.name, level, value))
         return out
+
+
+MAX_FITTING_FILE_BYTES = 512 * 1024
+
+
+class FittingImportForm(forms.Form):
+    """A fitting file to take into one client's record, read as text (what the engine reads is checked there)."""
+
+    file = forms.FileField(allow_empty_file=True, error_messages={"required": "Choose a fitting file (JSON) to import."})
+    garment = forms.CharField(max_length=200, required=False, strip=True,
+                              error_messages={"max_length": "The garment name is too long (200 characters at most)."})
+    other_client = forms.BooleanField(required=False)
+
+    def clean_file(self) -> str:
+        upload = self.cleaned_data["file"]
+        if upload.size > MAX_FITTING_FILE_BYTES:
+            raise ValidationError(f"The file is larger than {MAX_FITTING_FILE_BYTES // 1024} KB; "
+                                  "a fitting file is far smaller.")
+        try:
+            return upload.read().decode("utf-8")
+        except UnicodeDecodeError:
+            raise ValidationError("The file is not text (UTF-8); a fitting file is JSON.") from None
+
+    def first_error(self) -> str:
+        return next(iter(e for errors in self.errors.values() for e in errors), "")

@@ -12,7 +12,7 @@ from django.views.decorators.http import require_GET, require_POST
 
 from atelier.roles import EDITORS, ROLES, WORKROOM, role_of, role_required
 from fittings import previews, selectors
-from fittings.forms import NewPlanForm, PinForm, PlanOptionsForm, cell_name
+from fittings.forms import FittingImportForm, NewPlanForm, PinForm, PlanOptionsForm, cell_name
 from fittings.services import ConcurrentEdit
 from fittings.services import plans as plan_services
 from fittings.tables import plan_table
@@ -375,47 +375,37 @@ def revision_fitting_file(request, pk, number):
     return response
 
 
-MAX_FITTING_FILE_BYTES = 512 * 1024
 
 
 @role_required(*EDITORS)
 def fitting_import(request, client_pk):
     """Take in a fitting file for this client: a new session and a new plan from it."""
     client = _found(selectors.active_client(client_pk), "client")
-    error = other = None
-    garment = ""
-    if request.method == "POST":
-        upload = request.FILES.get("file")
-        garment = (request.POST.get("garment") or "").strip()
-        if upload is None:
-            error = "Choose a fitting file (JSON) to import."
-        elif upload.size > MAX_FITTING_FILE_BYTES:
-            error = f"The file is larger than {MAX_FITTING_FILE_BYTES // 1024} KB; a fitting file is far smaller."
-        elif len(garment) > 200:
-            error = "The garment name is too long (200 characters at most)."
+    if request.method != "POST":
+        return render(request, "fittings/fitting_import.html", {"client": client})
+    form = FittingImportForm(request.POST, request.FILES)
+    other = None
+    if not form.is_valid():
+        error = form.first_error()
+    else:
+        text, garment = form.cleaned_data["file"], form.cleaned_data["garment"]
+        made_for = _file_client(text)
+        if made_for and made_for != client.reference and not form.cleaned_data["other_client"]:
+            other = made_for
+            error = (f"This fitting file was made for client {made_for}, not {client.reference}. "
+                     f"Nothing was imported. To take its readings into {client.reference}'s record anyway, "
+                     "tick the box below and choose the file again.")
         else:
             try:
-                text = upload.read().decode("utf-8")
-            except UnicodeDecodeError:
-                error = "The file is not text (UTF-8); a fitting file is JSON."
+                plan = plan_services.import_fitting(client=client, text=text, user=request.user, garment=garment)
+            except plan_services.ImportRefused as exc:
+                error = import_refusal(exc.field, exc.message)
             else:
-                made_for = _file_client(text)
-                if made_for and made_for != client.reference and not request.POST.get("other_client"):
-                    other = made_for
-                    error = (f"This fitting file was made for client {made_for}, not {client.reference}. "
-                             f"Nothing was imported. To take its readings into {client.reference}'s record anyway, "
-                             "tick the box below and choose the file again.")
-                else:
-                    try:
-                        plan = plan_services.import_fitting(client=client, text=text, user=request.user, garment=garment)
-                    except plan_services.ImportRefused as exc:
-                        error = import_refusal(exc.field, exc.message)
-                    else:
-                        messages.success(request, "Fitting file imported as a new session and plan.")
-                        return redirect("fittings:plan_edit", plan.pk)
-        return render(request, "fittings/fitting_import.html",
-                      {"client": client, "error": error, "other": other, "garment": garment}, status=400)
-    return render(request, "fittings/fitting_import.html", {"client": client})
+                messages.success(request, "Fitting file imported as a new session and plan.")
+                return redirect("fittings:plan_edit", plan.pk)
+    return render(request, "fittings/fitting_import.html", {
+        "client": client, "error": error, "other": other, "garment": (request.POST.get("garment") or "").strip()[:200],
+    }, status=400)
 
 
 def _file_client(text: str) -> str:
