@@ -89,35 +89,6 @@ def client_search(query: str = "") -> ClientMatches:
     return ClientMatches(Client.objects.all(), len(rows), more=more, order=[pk for _, _, pk in rows])
 
 
-@dataclass(frozen=True)
-class ClientHistory:
-    client: Client
-    sessions: list[MeasurementSession]  # newest first, with measurements and photos
-    plans: list[Plan]  # newest first, with revisions (oldest first) and their pins
-
-
-def client_history(client: Client) -> ClientHistory:
-    """Everything recorded for a client, in one query per table.
-
-    Sessions, measurements, photos, plans (with their pattern and session),
-    revisions and pins: six queries however long the history.
-    """
-    sessions = list(
-        MeasurementSession.objects.filter(client=client)
-        .select_related("measured_by")
-        .prefetch_related("measurements", "photos")
-        .order_by("-taken_on", "-id")
-    )
-    revisions = PlanRevision.objects.select_related("author", "issued_by").prefetch_related("pins").order_by("number")
-    plans = list(
-        Plan.objects.filter(client=client)
-        .select_related("base_pattern", "session", "created_by")
-        .prefetch_related(Prefetch("revisions", queryset=revisions))
-        .order_by("-created_at", "-id")
-    )
-    return ClientHistory(client=client, sessions=sessions, plans=plans)
-
-
 # --- plan revisions, decoded once ---------------------------------------------------------
 
 KEEP_DECODED = 256

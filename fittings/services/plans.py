@@ -24,10 +24,6 @@ from patterns.core.fitting import allot_measurements, fitting_to_dict, result_to
 from patterns.selectors import block_for
 
 
-class RevisionIssued(Exception):
-    """An issued revision cannot be edited."""
-
-
 def _append(plan: Plan, block: Block, values: dict, options: PlanOptions, user, based_on=None) -> PlanRevision:
     result = allot_measurements(block, values, options)
     meta = {"client": plan.client.reference, "garment": plan.garment}

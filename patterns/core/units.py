@@ -90,14 +90,6 @@ def quantize_mm(mm) -> Decimal:
     return value.quantize(STORE_PLACES, rounding=ROUND_HALF_EVEN)
 
 
-def mm_to_cm(mm) -> Decimal:
-    return Decimal(str(mm)) / MM_PER_CM
-
-
-def mm_to_inches(mm) -> Decimal:
-    return Decimal(str(mm)) / MM_PER_INCH
-
-
 def nearest_sixteenth(mm) -> Fraction:
     """The reading in inches, to the nearest 1/16 in, as a fraction."""
     inches = Fraction(Decimal(str(mm))) / Fraction(MM_PER_INCH)

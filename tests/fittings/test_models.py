@@ -12,7 +12,7 @@ from django.utils import timezone
 from fittings.models import (
     Client, Measurement, MeasurementSession, PinAdjustment, Plan, PlanRevision, RevisionLocked,
 )
-from fittings.selectors import client_history
+from fittings.selectors import client_timeline
 
 pytestmark = pytest.mark.django_db
 
@@ -225,37 +225,37 @@ def add_history(client_obj, pattern, user, sessions=2, plans=2):
         PinAdjustment.objects.create(revision=first, seam="Side seam", level="waist", amount_mm=Decimal("-4"))
 
 
-def read_everything(history):
+def read_everything(timeline):
     return [
-        (s.measured_by.username, sorted(m.code for m in s.measurements.all()), list(s.photos.all())) for s in history.sessions
-    ] + [
-        (p.base_pattern.name, p.session.taken_on, [(r.number, r.author.username, [pin.amount_mm for pin in r.pins.all()]) for r in p.revisions.all()])
-        for p in history.plans
+        (item.obj.measured_by.username, item.obj.measure_count, item.obj.photo_count) if item.kind == "session" else
+        (item.obj.base_pattern.name, item.obj.session.taken_on, [r.number for r in item.obj.revisions.all()])
+        for item in timeline
     ]
 
 
-def test_it_lists_a_clients_data_in_one_query_per_table(hester, bodice_pattern, fitter_user, django_assert_num_queries):
+def test_it_lists_a_clients_history_in_one_query_per_table(hester, bodice_pattern, fitter_user, django_assert_num_queries):
     add_history(hester, bodice_pattern, fitter_user, sessions=2, plans=2)
-    # sessions, measurements, photos, plans, revisions, pins
-    with django_assert_num_queries(6):
-        history = client_history(hester)
-        read_everything(history)
-    assert [len(s.measurements.all()) for s in history.sessions] == [3, 3]
-    assert [s.taken_on for s in history.sessions] == [date(2025, 1, 2), date(2025, 1, 1)]
-    assert [[r.number for r in p.revisions.all()] for p in history.plans] == [[1, 2], [1, 2]]
+    # sessions (with their counts of readings and photos), plans, revisions
+    with django_assert_num_queries(3):
+        timeline = client_timeline(hester)
+        read_everything(timeline)
+    sessions = [item.obj for item in timeline if item.kind == "session"]
+    plans = [item.obj for item in timeline if item.kind == "plan"]
+    assert [s.measure_count for s in sessions] == [3, 3]
+    assert [s.taken_on for s in sessions] == [date(2025, 1, 2), date(2025, 1, 1)]
+    assert [sorted(r.number for r in p.revisions.all()) for p in plans] == [[1, 2], [1, 2]]
 
 
 def test_it_needs_no_more_queries_for_a_longer_history(hester, bodice_pattern, fitter_user, django_assert_num_queries):
     add_history(hester, bodice_pattern, fitter_user, sessions=7, plans=5)
-    with django_assert_num_queries(6):
-        history = client_history(hester)
-        read_everything(history)
-    assert len(history.sessions) == 7
-    assert len(history.plans) == 5
+    with django_assert_num_queries(3):
+        timeline = client_timeline(hester)
+        read_everything(timeline)
+    assert [item.kind for item in timeline].count("session") == 7
+    assert [item.kind for item in timeline].count("plan") == 5
 
 
 def test_it_keeps_other_clients_out_of_the_history(hester, bodice_pattern, fitter_user):
     other = Client.objects.create(reference="T-0100", name="Someone Else")
     add_history(other, bodice_pattern, fitter_user)
-    history = client_history(hester)
-    assert history.sessions == [] and history.plans == []
+    assert client_timeline(hester) == []
