@@ -42,10 +42,10 @@ from patterns.core.outline import PanelOutline, line_length
 # Clearance of a bone from the bound top and bottom edges, both ends
 # together: about 12 mm is common practice.
 BONE_CLEARANCE_MM = 12.0
-# Busks are sold in whole inches, commonly 8 to 14 in (common practice,
+# Busks are sold in whole inches, commonly 8 to 16 in (common practice,
 # from memory of suppliers' lists; 1 in = 25.4 mm exactly).  The owner keeps
 # the atelier's own list in its settings.
-DEFAULT_BUSK_STOCK_MM = tuple(round(25.4 * inches, 1) for inches in range(8, 15))
+DEFAULT_BUSK_STOCK_MM = tuple(round(25.4 * inches, 1) for inches in range(8, 17))
 # Bones are cut to this step, rounded down.
 BONE_CUT_STEP_MM = 1.0
 # A busk shorter than the room by more than this leaves the front unsupported

@@ -2,7 +2,7 @@
 
 Facts used:
 - A bone is its channel less about 12 mm in all, clear of the bound edges: common practice.
-- Busks sold in whole inches, 8-14 in: common practice, from memory; 1 in = 25.4 mm exactly
+- Busks sold in whole inches, 8-16 in: common practice, from memory; 1 in = 25.4 mm exactly
   (international yard and pound agreement, 1959).
 """
 
@@ -139,8 +139,8 @@ def test_it_counts_bones_for_the_demo_corset():
     assert len(result.channels) == len(block.seams) == 5
     assert result.bone_count == 10
     assert result.total_bone_mm == pytest.approx(sum(2 * c.cut_mm for c in result.channels))
-    # The default stock is 8 to 14 whole inches.
-    assert DEFAULT_BUSK_STOCK_MM == (203.2, 228.6, 254.0, 279.4, 304.8, 330.2, 355.6)
+    # The default stock is 8 to 16 whole inches.
+    assert DEFAULT_BUSK_STOCK_MM == (203.2, 228.6, 254.0, 279.4, 304.8, 330.2, 355.6, 381.0, 406.4)
     assert result.busk.length_mm in DEFAULT_BUSK_STOCK_MM
     assert result.busk.length_mm <= result.busk.centre_front_mm - 12
 
