@@ -52,7 +52,7 @@ def _len(mm, unit) -> str:
 def boning_context(data: DocumentData, pattern: AlteredPattern) -> dict:
     bones, _ = workroom_lists(data, pattern)
     unit = data.unit
-    rows = [{"name": c.name, "where": "on the seam's stitch line" if c.kind == "seam" else "marked on the block",
+    rows = [{"name": c.name, "where": "seam" if c.kind == "seam" else "marked",
              "channel": _len(c.channel_mm, unit), "bone": _len(c.cut_mm, unit) if c.cut_mm > 0 else "none",
              "count": c.count} for c in bones.channels]
     busk = None
@@ -60,8 +60,9 @@ def boning_context(data: DocumentData, pattern: AlteredPattern) -> dict:
         b = bones.busk
         busk = {"centre_front": _len(b.centre_front_mm, unit), "room": _len(b.room_mm, unit),
                 "length": _len(b.length_mm, unit) if b.length_mm is not None else "",
-                "length_cm": format_with_unit(b.length_mm, "cm") if b.length_mm is not None else "",
-                "length_in": format_with_unit(b.length_mm, "in") if b.length_mm is not None else "",
+                # The same busk in the other unit, as suppliers sell in either.
+                "length_other": format_with_unit(b.length_mm, "cm" if unit == "in" else "in")
+                if b.length_mm is not None else "",
                 "short_by": _len(b.short_by_mm, unit) if b.short_by_mm is not None else "",
                 "clearance": _len(bones.rules.busk_clearance, unit)}
     return {
