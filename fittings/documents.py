@@ -469,9 +469,9 @@ def work_order_html(data: DocumentData, paper: str, pattern: AlteredPattern | No
 
 def workroom_context(data: DocumentData, pattern: AlteredPattern) -> dict:
     """The boning and lacing sections (fittings/workroom.py)."""
-    from fittings.workroom import boning_context, lacing_context
+    from fittings.workroom import workroom_sections
 
-    return {"boning": boning_context(data, pattern), "lacing": lacing_context(data, pattern)}
+    return workroom_sections(data, pattern)
 
 
 def render_work_order(data: DocumentData, paper: str, pattern: AlteredPattern | None = None) -> bytes:

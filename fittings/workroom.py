@@ -49,8 +49,8 @@ def _len(mm, unit) -> str:
     return format_with_unit(mm, unit)
 
 
-def boning_context(data: DocumentData, pattern: AlteredPattern) -> dict:
-    bones, _ = workroom_lists(data, pattern)
+def boning_context(data: DocumentData, pattern: AlteredPattern, bones: BoningList | None = None) -> dict:
+    bones = bones or workroom_lists(data, pattern)[0]
     unit = data.unit
     rows = [{"name": c.name, "where": "seam" if c.kind == "seam" else "marked",
              "channel": _len(c.channel_mm, unit), "bone": _len(c.cut_mm, unit) if c.cut_mm > 0 else "none",
@@ -76,8 +76,9 @@ def boning_context(data: DocumentData, pattern: AlteredPattern) -> dict:
     }
 
 
-def lacing_context(data: DocumentData, pattern: AlteredPattern) -> dict | None:
-    _, laces = workroom_lists(data, pattern)
+def lacing_context(data: DocumentData, pattern: AlteredPattern, laces: Lacing | None = None) -> dict | None:
+    if laces is None:
+        _, laces = workroom_lists(data, pattern)
     if laces is None:
         return None
     unit = data.unit
@@ -97,6 +98,13 @@ def lacing_context(data: DocumentData, pattern: AlteredPattern) -> dict | None:
 
 
 # --- marks on the drawn pieces ------------------------------------------------------------------
+
+
+def workroom_sections(data: DocumentData, pattern: AlteredPattern) -> dict:
+    """Both sections of the work order, from one working-out of the lists."""
+    bones, laces = workroom_lists(data, pattern)
+    return {"boning": boning_context(data, pattern, bones),
+            "lacing": lacing_context(data, pattern, laces) if laces is not None else None}
 
 
 def _workroom_marks(parent, data: DocumentData, pattern: AlteredPattern, offsets: dict[str, tuple[float, float]]) -> None:
