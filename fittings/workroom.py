@@ -66,6 +66,9 @@ def boning_context(data: DocumentData, pattern: AlteredPattern, bones: BoningLis
                 "short_by": _len(b.short_by_mm, unit) if b.short_by_mm is not None else "",
                 "clearance": _len(bones.rules.busk_clearance, unit)}
     return {
+        # Columns that would say the same on every row are left out (each cell costs drawing time).
+        "any_marked": any(c.kind != "seam" for c in bones.channels),
+        "all_pairs": all(c.count == 2 for c in bones.channels),
         "rows": rows, "busk": busk, "count": bones.bone_count, "total": _len(bones.total_bone_mm, unit),
         "clearance": _len(bones.rules.clearance_mm, unit),
         "stock": ", ".join(format_with_unit(v, unit) for v in sorted(bones.rules.busk_stock_mm)) or "none",
@@ -88,7 +91,8 @@ def lacing_context(data: DocumentData, pattern: AlteredPattern, laces: Lacing | 
     usual = max(spacings) if spacings else 0.0
     return {
         "panel": laces.panel, "count": laces.count, "total": laces.total_count, "edge": _len(laces.edge_mm, unit),
-        "eyelets": [(eyelets[i:i + 3] + [None, None])[:3] for i in range(0, len(eyelets), 3)],
+        # Four to a row, one cell each: WeasyPrint's time goes by the box.
+        "eyelets": [(eyelets[i:i + 4] + [None] * 3)[:4] for i in range(0, len(eyelets), 4)],
         "spacing": _len(r.spacing_mm, unit), "widest": _len(usual, unit), "pair": _len(min(r.waist_pair_mm, r.spacing_mm), unit),
         "margin": _len(r.top_margin_mm, unit), "inset": _len(r.inset_mm, unit),
         "gap": _len(laces.lacing_gap_mm, unit), "columns": _len(laces.column_gap_mm, unit),

@@ -173,8 +173,8 @@ def test_it_puts_boning_and_lacing_on_the_work_order_in_the_plans_unit(strong):
     assert "Boning and busk (in)" in text and "Lacing (in)" in text
     for channel in bones.channels:
         # Inches to 1/16, the bone rounded down to a whole 1/16 in.
-        assert f"{channel.name} seam {format_with_unit(channel.channel_mm, 'in')} " \
-               f"{format_with_unit(channel.cut_mm, 'in')} 2" in text
+        assert f"{channel.name} {format_with_unit(channel.channel_mm, 'in')} " \
+               f"{format_with_unit(channel.cut_mm, 'in')}" in text
         assert channel.cut_mm <= channel.channel_mm - 12 + 1e-9
     assert f"Busk: {format_with_unit(bones.busk.length_mm, 'in')} ({format_with_unit(bones.busk.length_mm, 'cm')})" in text
     assert "eyelets on each back edge" in text and "Lace: about" in text
@@ -185,7 +185,9 @@ def test_it_shows_the_lacing_count_and_lace_in_centimetres(gentle):
     context = workroom.lacing_context(gentle, altered_pattern(gentle))
     assert f"{context['count']} eyelets on each back edge, {2 * context['count']} in all" in text
     assert f"Lace: about {context['lace']}" in text and context["lace"].endswith(" cm")
-    assert "(waist)" in text
+    assert "(waist):" in text
+    first = workroom.lacing_context(gentle, altered_pattern(gentle))["eyelets"][0][0]
+    assert f"1: {first['from_top']}" in text
 
 
 def test_it_has_no_busk_or_lacing_for_a_bodice_on_the_fold_with_a_seamed_back(bodice):
