@@ -292,6 +292,7 @@ def test_it_serves_the_pieces_for_the_projector_at_one_unit_to_the_millimetre(fi
     html = page.content.decode()
     assert page.status_code == 200 and "projector.js" in html and "<script>" not in html and "style=" not in html
     assert "Draft" in html  # not issued yet
+    assert "restricts breathing" in html  # the corset caution, as on the revision page
     svg = fitter_client.get(reverse("fittings:projector_pieces", args=[plan.pk, revision.number]))
     assert svg.status_code == 200 and svg["Content-Type"].startswith("image/svg+xml")
     text = svg.content.decode()
