@@ -211,6 +211,13 @@ def main(argv=None):
             rows[name][f"ratio_{key}_median"] = rows[name][f"{key}_median_s"] / rows["minimal_page"][f"{key}_median_s"]
             rows[name][f"ratio_{key}_median_default_call"] = (
                 rows[name][f"{key}_median_s"] / rows["minimal_page_default_call"][f"{key}_median_s"])
+    # One-sheet large formats of the six-panel corset, drawn when a print's page asks for them.
+    from fittings.workroom import render_large_sheet
+    from patterns.core.tiling import LARGE_FORMATS
+
+    for fmt in LARGE_FORMATS:
+        render_large_sheet(cases["six_panel"], fmt)
+        rows[f"large_{fmt}"] = timed(lambda fmt=fmt: render_large_sheet(cases["six_panel"], fmt), args.runs)
     rows["max_rss_mib"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
     rows["max_rss_children_mib"] = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss / 1024
     rows["load_average"] = os.getloadavg()[0]
@@ -234,6 +241,10 @@ def main(argv=None):
         peak = f"{r['peak_python_mib']:.1f}" if "peak_python_mib" in r else ""
         print(f"{label:<44}{r.get('pages', 1):>6}{r['wall_median_s']:>10.3f}{r['wall_p95_s']:>10.3f}"
               f"{r['cpu_median_s']:>10.3f}{r['cpu_p95_s']:>10.3f}{same:>8}{same_cpu:>11}{ratio:>11}{peak:>10}")
+    for fmt in ("a0", "roll-914", "roll-610"):
+        r = rows[f"large_{fmt}"]
+        print(f"{'6-panel, all pieces on one sheet, ' + fmt:<44}{1:>6}{r['wall_median_s']:>10.3f}{r['wall_p95_s']:>10.3f}"
+              f"{r['cpu_median_s']:>10.3f}{r['cpu_p95_s']:>10.3f}")
     print(f"peak resident size of the process: {rows['max_rss_mib']:.0f} MiB; of the largest child drawing a "
           f"cutting sheet: {rows['max_rss_children_mib']:.0f} MiB (mostly pages shared with the parent)")
     six, twelve = rows["six_panel"], rows["twelve_panel"]
