@@ -302,3 +302,16 @@ def test_it_serves_the_pieces_for_the_projector_at_one_unit_to_the_millimetre(fi
     assert text.count('class="cut"') == len(revision.inputs["pattern"]["panels"])
     assert 'class="eyelet"' in text
     assert fitter_client.get(reverse("fittings:projector", args=[plan.pk, 99])).status_code == 404
+
+
+@pytest.mark.django_db
+def test_it_says_plainly_when_the_pieces_do_not_fit_one_a0_sheet(workroom_client, done_job, monkeypatch):
+    monkeypatch.setattr("fittings.documents.render_work_order", lambda data, paper, pattern=None: b"%PDF-1.7\n")
+    assert run_print_job(done_job.pk) == "done"
+
+    def too_large(*args, **kwargs):
+        raise TilingError("The pieces do not fit on one A0 sheet; print them on a plotter roll.")
+
+    monkeypatch.setattr("fittings.workroom.large_sheet", too_large)
+    response = workroom_client.get(reverse("fittings:print_large", args=[done_job.pk, "a0"]))
+    assert response.status_code == 409 and "plotter roll" in response.content.decode()

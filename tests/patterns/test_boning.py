@@ -10,10 +10,11 @@ import json
 import math
 
 import pytest
+from hypothesis import given, settings, strategies as st
 
 from patterns import demo
 from patterns.core.allot import PlanOptions
-from patterns.core.block import Alteration, CF_FOLD, ChannelMark, block_errors
+from patterns.core.block import Alteration, CF_FOLD, ChannelMark, PanelShift, block_errors
 from patterns.core.boning import (
     DEFAULT_BUSK_STOCK_MM, MARKED, SEAM, BoningRules, boning_list, choose_busk, floor_to,
 )
@@ -164,3 +165,23 @@ def test_it_finds_marks_on_panels_that_do_not_exist():
     block = hand_block((ChannelMark("Nowhere", fraction=0.5), ChannelMark("Side", fraction=1.5)))
     errors = block_errors(block)
     assert any("Nowhere" in e for e in errors) and any("0 to 1" in e for e in errors)
+
+
+@settings(max_examples=60, deadline=None)
+@given(band=st.floats(-60, 60), shift=st.floats(-8, 8), clearance=st.floats(0, 40),
+       step=st.sampled_from([1.0, 25.4 / 16]))
+def test_it_never_cuts_a_bone_longer_than_its_channel_allows(band, shift, clearance, step):
+    block = hand_block(MARKS)
+    shifts = {p.name: {lv: PanelShift(shift, shift) for lv in block.level_names} for p in block.panels}
+    altered = alter_block(block, Alteration(shifts=shifts, bands={("waist", "hip"): band}))
+    result = boning_list(block, altered, BoningRules(clearance_mm=clearance, cut_step_mm=step))
+    for c in result.channels:
+        assert c.bone_mm == pytest.approx(c.channel_mm - clearance)
+        assert 0 <= c.cut_mm <= max(c.bone_mm, 0) + 1e-9
+        assert c.cut_mm == pytest.approx(round(c.cut_mm / step) * step)
+        assert c.bone_mm - c.cut_mm < step + 1e-9 or c.cut_mm == 0
+    # The centre front stretches with the band: 300 mm plus the band's change.
+    assert result.busk.centre_front_mm == pytest.approx(300.0 + band, abs=0.01)
+    if result.busk.length_mm is not None:
+        assert result.busk.length_mm <= result.busk.room_mm + 1e-9
+        assert not any(result.busk.length_mm < v <= result.busk.room_mm for v in result.rules.busk_stock_mm)
