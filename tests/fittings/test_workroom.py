@@ -17,6 +17,7 @@ from pathlib import Path
 import pdfplumber
 import pypdf
 import pytest
+from django.core.exceptions import ValidationError
 from django.urls import reverse
 
 from atelier.models import AtelierSettings, parse_stock
@@ -211,7 +212,7 @@ def test_it_follows_the_atelier_settings(gentle):
 def test_it_reads_busk_stock_as_the_owner_types_it():
     assert [float(v) for v in parse_stock("10 in; 11 1/2 in\n28 cm; 254")] == [254.0, 280.0, 292.1]
     for bad in ("ten inches", "10 in; -3", "5", "4000 mm", "; ".join(["300"] * 2 + [str(100 + i) for i in range(40)])):
-        with pytest.raises(Exception):
+        with pytest.raises(ValidationError):
             parse_stock(bad)
 
 
