@@ -306,6 +306,16 @@ def test_it_serves_the_pieces_for_the_projector_at_one_unit_to_the_millimetre(fi
 
 
 @pytest.mark.django_db
+def test_it_projects_only_issued_revisions_for_the_workroom(workroom_client, plan):
+    draft = plan_services.latest_revision(plan)
+    for name in ("fittings:projector", "fittings:projector_pieces"):
+        assert workroom_client.get(reverse(name, args=[plan.pk, draft.number])).status_code == 403
+    plan_services.issue_revision(revision=draft, user=None)
+    for name in ("fittings:projector", "fittings:projector_pieces"):
+        assert workroom_client.get(reverse(name, args=[plan.pk, draft.number])).status_code == 200
+
+
+@pytest.mark.django_db
 def test_it_says_plainly_when_the_pieces_do_not_fit_one_a0_sheet(workroom_client, done_job, monkeypatch):
     monkeypatch.setattr("fittings.documents.render_work_order", lambda data, paper, pattern=None: b"%PDF-1.7\n")
     assert run_print_job(done_job.pk) == "done"
