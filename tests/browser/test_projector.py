@@ -63,6 +63,8 @@ def test_it_calibrates_the_projector_and_draws_the_pieces_to_that_scale(tablet, 
     assert square_side(page) == pytest.approx(calibrated, abs=0.5)
 
     # Dragging the corner until the square measures 10 cm on the mat: here to 400 px.
+    page.locator("#calibration-square").scroll_into_view_if_needed()
+    page.evaluate("window.scrollBy(0, 200)")
     box = page.locator("#calibration-square").bounding_box()
     handle = page.locator("#calibration-handle").bounding_box()
     page.mouse.move(handle["x"] + handle["width"] / 2, handle["y"] + handle["height"] / 2)

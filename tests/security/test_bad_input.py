@@ -304,8 +304,8 @@ CASES = [
     Case("block-allowance-too-wide", "post", u("block_files:block_import"), drawing(_svg_block(), seam_allowance="6"), words="Must be between"),
     Case("block-unknown-garment", "post", u("block_files:block_import"), drawing(_svg_block(), garment="cape"), words="Select a valid choice"),
     Case("block-name-blank", "post", u("block_files:block_import"), drawing(_svg_block(), name="   "), words="This field is required"),
-    Case("import-channel-beyond-the-panel", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["pattern", "channels"], [{"panel": "Back", "fraction": 2}])), words="pattern/channels/0/fraction"),
-    Case("import-channel-unknown-edge", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["pattern", "channels"], [{"panel": "Back", "edge": "middle", "offset_mm": 10}])), words="pattern/channels/0/edge"),
+    Case("import-channel-beyond-the-panel", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["pattern", "channels"], [{"panel": "Back", "fraction": 2}])), words="pattern › channels › 0 › fraction"),
+    Case("import-channel-unknown-edge", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["pattern", "channels"], [{"panel": "Back", "edge": "middle", "offset_mm": 10}])), words="pattern › channels › 0 › edge"),
     Case("import-channel-on-no-panel", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["pattern", "channels"], [{"panel": "Nowhere", "fraction": 0.5}])), words="names a panel the block does not have"),
     # --- URL parameters: other clients' objects, ids that do not exist, junk ---------------------
     Case("compare-another-clients-session", "get", q("fittings:compare", lambda w: f"a=s{w.other_client.sessions.get().pk}&b=s{w.session.pk}", CLIENT), words="not in this client"),
