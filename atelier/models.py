@@ -8,7 +8,12 @@ from django.db import models
 
 from patterns.core.boning import BONE_CLEARANCE_MM, BoningRules
 from patterns.core.lacing import (
-    END_MARGIN_MM, EYELET_INSET_MM, EYELET_SPACING_MM, LACE_TAIL_MM, WAIST_PAIR_MM, LacingRules,
+    END_MARGIN_MM,
+    EYELET_INSET_MM,
+    EYELET_SPACING_MM,
+    LACE_TAIL_MM,
+    WAIST_PAIR_MM,
+    LacingRules,
 )
 from patterns.core.units import LengthError, parse_length, quantize_mm
 from patterns.models import mm_field

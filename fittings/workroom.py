@@ -16,8 +16,27 @@ from xml.etree import ElementTree as ET
 from django.template.loader import render_to_string
 
 from fittings.documents import (
-    CUT_COLOUR, FONT_FAMILY, SQUARE_PAD_MM, TEST_SQUARES, DocumentData, Sheet, SheetPiece, _d, _draw_piece, _header,
-    _line, _n, _svg_root, _text, _thin, altered_pattern, cautions, html_to_pdf, lay_out, piece_labels, square_svg,
+    CUT_COLOUR,
+    FONT_FAMILY,
+    SQUARE_PAD_MM,
+    TEST_SQUARES,
+    DocumentData,
+    Sheet,
+    SheetPiece,
+    _d,
+    _draw_piece,
+    _header,
+    _line,
+    _n,
+    _svg_root,
+    _text,
+    _thin,
+    altered_pattern,
+    cautions,
+    html_to_pdf,
+    lay_out,
+    piece_labels,
+    square_svg,
     svg_data_uri,
 )
 from patterns.core.boning import BoningList, boning_list

@@ -10,13 +10,20 @@ import json
 import math
 
 import pytest
-from hypothesis import given, settings, strategies as st
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from patterns import demo
 from patterns.core.allot import PlanOptions
-from patterns.core.block import Alteration, CF_FOLD, ChannelMark, PanelShift, block_errors
+from patterns.core.block import CF_FOLD, Alteration, ChannelMark, PanelShift, block_errors
 from patterns.core.boning import (
-    DEFAULT_BUSK_STOCK_MM, MARKED, SEAM, BoningRules, boning_list, choose_busk, floor_to,
+    DEFAULT_BUSK_STOCK_MM,
+    MARKED,
+    SEAM,
+    BoningRules,
+    boning_list,
+    choose_busk,
+    floor_to,
 )
 from patterns.core.fitting import block_from_dict, block_to_dict, fitting_to_dict, read_fitting
 from patterns.core.outline import alter_block, base_outlines

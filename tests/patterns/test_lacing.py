@@ -10,12 +10,18 @@ Facts used:
 import math
 
 import pytest
-from hypothesis import given, settings, strategies as st
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from patterns import demo
 from patterns.core.block import CB_SEAMED
 from patterns.core.lacing import (
-    EYELET_SPACING_MM, WAIST_PAIR_MM, LacingRules, eyelet_positions, lace_length, lacing,
+    EYELET_SPACING_MM,
+    WAIST_PAIR_MM,
+    LacingRules,
+    eyelet_positions,
+    lace_length,
+    lacing,
 )
 from patterns.core.outline import base_outlines
 from tests.patterns.workroom_helpers import hand_block
