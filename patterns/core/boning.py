@@ -260,7 +260,7 @@ def boning_list(block: Block, altered: tuple[PanelOutline, ...], rules: BoningRu
                 f"No stocked busk fits a centre front of {busk.centre_front_mm:.0f} mm "
                 f"(room {busk.room_mm:.0f} mm after the clearance; {stock}). Order one to length.",
                 panel=block.panels[0].name))
-        elif busk.short_by_mm > BUSK_SHORT_BY_MM:
+        elif busk.short_by_mm is not None and busk.short_by_mm > BUSK_SHORT_BY_MM:
             findings.append(Finding(
                 "busk_short", WARNING,
                 f"The longest stocked busk that fits ({busk.length_mm:.0f} mm) is {busk.short_by_mm:.0f} mm "
