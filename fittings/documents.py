@@ -50,6 +50,8 @@ from fittings.previews import altered_for, preview_markers
 from patterns.core.allot import Allotment, PlanOptions
 from patterns.core.block import Block
 from patterns.core.defaults import is_corset
+from patterns.core.boning import BoningRules
+from patterns.core.lacing import LacingRules
 from patterns.core.export import notch_segments, sheet_layout
 from fittings.wording import in_unit
 from patterns.core.findings import CAUTION, ERROR, WARNING
@@ -129,6 +131,9 @@ class DocumentData:
     block: Block
     options: PlanOptions
     result: Allotment
+    # How this atelier bones and laces (atelier.models.AtelierSettings), read when printing.
+    boning_rules: BoningRules = BoningRules()
+    lacing_rules: LacingRules = LacingRules()
 
     @property
     def unit(self) -> str:
@@ -223,8 +228,11 @@ def document_data(revision, base_url: str = "") -> DocumentData:
 
     plan = revision.plan
     session = plan.session
+    from atelier.models import AtelierSettings
+
     measurements, block, options = revision_inputs(revision)
     result = revision_result(revision)
+    workroom = AtelierSettings.current()
     return DocumentData(
         atelier_name=settings.ATELIER_NAME,
         client_label=client_label(plan.client),
@@ -241,6 +249,8 @@ def document_data(revision, base_url: str = "") -> DocumentData:
         block=block,
         options=options,
         result=result,
+        boning_rules=workroom.boning_rules(),
+        lacing_rules=workroom.lacing_rules(),
     )
 
 
@@ -452,8 +462,16 @@ def work_order_html(data: DocumentData, paper: str, pattern: AlteredPattern | No
         "cuts": cuts,
         "lacing_gap": format_with_unit(gap, data.unit) if gap else "",
         "seam_allowance": format_with_unit(data.block.seam_allowance_mm, data.unit),
+        **workroom_context(data, pattern),
     }
     return render_to_string("fittings/print/work_order.html", context)
+
+
+def workroom_context(data: DocumentData, pattern: AlteredPattern) -> dict:
+    """The boning and lacing sections (fittings/workroom.py)."""
+    from fittings.workroom import workroom_sections
+
+    return workroom_sections(data, pattern)
 
 
 def render_work_order(data: DocumentData, paper: str, pattern: AlteredPattern | None = None) -> bytes:

@@ -3,7 +3,7 @@
 from django import forms
 from django.conf import settings
 from django.core.exceptions import PermissionDenied
-from django.http import FileResponse, Http404
+from django.http import FileResponse, Http404, HttpResponse
 from django.shortcuts import get_object_or_404, redirect, render
 from django.utils.text import slugify
 from django.views.decorators.http import require_http_methods
@@ -11,6 +11,7 @@ from django.views.decorators.http import require_http_methods
 from atelier.roles import EDITORS, ROLES, WORKROOM, role_of, role_required
 from fittings.models import PlanRevision, PrintJob, PrintKind, PrintPaper, PrintStatus
 from fittings.services.printing import PrintRefused, settle_abandoned, start_print, waiting_for_a_worker
+from patterns.core.tiling import LARGE_FORMATS, TilingError
 
 # The file a download link names, and the job's field that holds it.
 DOCUMENTS = {"work-order": "work_order", "cutting-sheet": "cutting_sheet"}
@@ -75,7 +76,7 @@ def print_status(request, job_id):
     partial = request.htmx and not request.htmx.history_restore_request
     template = "fittings/print/_status.html" if partial else "fittings/print/status.html"
     context = {"job": job, "revision": job.revision, "no_worker": waiting_for_a_worker(job),
-               "keep_days": settings.ATELIER_KEEP_PRINTS_DAYS}
+               "keep_days": settings.ATELIER_KEEP_PRINTS_DAYS, "large_formats": LARGE_FORMATS.values()}
     return render(request, template, context)
 
 
@@ -101,5 +102,31 @@ def print_download(request, job_id, document):
         raise Http404("The document's file is missing; print the revision again.") from None
     response = FileResponse(handle, as_attachment=True, filename=download_name(job, document),
                             content_type="application/pdf")
+    response["Cache-Control"] = "private, no-store"
+    return response
+
+
+@role_required(*ROLES)
+@require_http_methods(["GET"])
+def print_large(request, job_id, fmt):
+    """All the altered pieces on one large sheet at 1:1 (A0, or a plotter roll), for a print that is ready.
+
+    Drawn when asked for and kept nowhere (one page takes about a tenth of a
+    second): nothing to clear or erase later, and the job's own files stay as they were.
+    """
+    from fittings.documents import document_data
+    from fittings.workroom import render_large_sheet
+
+    if fmt not in LARGE_FORMATS:
+        raise Http404("No such sheet size.")
+    job = _job(job_id)
+    if job.status != PrintStatus.DONE:
+        raise Http404("This print is not ready.")
+    try:
+        pdf = render_large_sheet(document_data(job.revision, job.site_url), fmt)
+    except TilingError as exc:
+        return HttpResponse(f"{exc}\n", status=409, content_type="text/plain; charset=utf-8")
+    response = HttpResponse(pdf, content_type="application/pdf")
+    response["Content-Disposition"] = f'attachment; filename="{download_name(job, "pieces-" + fmt)}"'
     response["Cache-Control"] = "private, no-store"
     return response

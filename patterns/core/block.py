@@ -92,6 +92,23 @@ class Seam:
 
 
 @dataclass(frozen=True)
+class ChannelMark:
+    """A boning channel the block marks inside a panel, running from its top edge to its bottom edge.
+
+    Either ``fraction`` of the way across the panel from its left stitch line
+    (0 is the left stitch line, 1 the right one), or ``offset_mm`` in from the
+    stitch line on ``edge`` (a bone beside the lacing, say).  Channels along
+    the seams need no mark: every seam carries one on its stitch line.
+    """
+
+    panel: str
+    fraction: float | None = None
+    edge: str = LEFT
+    offset_mm: float = 0.0
+    name: str = ""
+
+
+@dataclass(frozen=True)
 class Block:
     name: str
     size: str
@@ -103,6 +120,8 @@ class Block:
     centre_back: str = CB_LACED
     seam_allowance_mm: float = 15.0
     size_order: int = 0
+    # Boning channels marked inside panels (besides the one on every seam); none by default.
+    channels: tuple[ChannelMark, ...] = ()
 
     @property
     def level_names(self) -> tuple[str, ...]:
@@ -191,6 +210,13 @@ def block_errors(block: Block) -> list[str]:
             errors.append(f"Seam {seam.name} has an unknown kind.")
         if seam.cap_mm < 0:
             errors.append(f"Seam {seam.name} has a negative cap.")
+    for mark in block.channels:
+        if mark.panel not in panel_names:
+            errors.append(f"A boning channel names a panel the block does not have: {mark.panel}.")
+        if mark.fraction is not None and not 0 <= mark.fraction <= 1:
+            errors.append(f"A boning channel on {mark.panel} must lie across the panel (0 to 1).")
+        if mark.fraction is None and (mark.edge not in (LEFT, RIGHT) or mark.offset_mm < 0):
+            errors.append(f"A boning channel on {mark.panel} needs an edge and an offset of 0 or more.")
     return errors
 
 

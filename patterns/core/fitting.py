@@ -15,7 +15,7 @@ from pathlib import Path
 import jsonschema
 
 from patterns.core.allot import Allotment, Body, Override, PinAdjustment, PlanOptions, allot
-from patterns.core.block import Block, Level, Panel, PanelCurves, Point, Seam, block_errors
+from patterns.core.block import Block, ChannelMark, Level, Panel, PanelCurves, Point, Seam, block_errors
 from patterns.core.measures import FRONT_ARC_BY_LEVEL, GIRTH_BY_LEVEL, LENGTH_MEASURES, MEASURE_BY_CODE
 from patterns.core.units import DEFAULT_STEP_MM
 
@@ -63,6 +63,10 @@ def block_to_dict(block: Block) -> dict:
             out["curves"] = curves_to_dict(panel.curves)
     for seam in data["seams"]:
         seam["alterable_at"] = [lv for lv in block.level_names if lv in seam["alterable_at"]]
+    # Marked boning channels are optional: a block without any writes the same file as before.
+    channels = data.pop("channels", [])
+    if channels:
+        data["channels"] = [{k: v for k, v in c.items() if v is not None and v != ""} for c in channels]
     return data
 
 
@@ -94,6 +98,13 @@ def block_from_dict(data: dict) -> Block:
         ),
         centre_front=data.get("centre_front", "busk"), centre_back=data.get("centre_back", "laced"),
         seam_allowance_mm=float(data.get("seam_allowance_mm", 15.0)), size_order=int(data.get("size_order", 0)),
+        channels=tuple(
+            ChannelMark(
+                panel=c["panel"], fraction=float(c["fraction"]) if c.get("fraction") is not None else None,
+                edge=c.get("edge", "left"), offset_mm=float(c.get("offset_mm", 0.0)), name=c.get("name", ""),
+            )
+            for c in data.get("channels", [])
+        ),
     )
 
 

@@ -178,3 +178,98 @@ def tile_grid(width_mm: float, height_mm: float, paper: PaperSize | str, *,
     grids = [grid_for(width_mm, height_mm, paper, o, margin_mm=margin_mm, overlap_mm=overlap_mm)
              for o in (PORTRAIT, LANDSCAPE)]
     return min(grids, key=lambda g: g.count)
+
+
+# --- one sheet for large-format printing ------------------------------------------------
+
+# ISO 216: A0 is 841 x 1189 mm.
+A0 = PaperSize("a0", "A0", 841.0, 1189.0)
+
+
+@dataclass(frozen=True)
+class LargeFormat:
+    """A sheet printed whole: a fixed sheet (A0, at a copy shop) or a plotter roll cut to length."""
+
+    code: str
+    label: str
+    width_mm: float
+    height_mm: float | None  # None: a roll, as long as the pieces need
+
+
+LARGE_FORMATS = {
+    "a0": LargeFormat("a0", "A0 sheet, 841 × 1189 mm (copy shop)", A0.width_mm, A0.height_mm),
+    # Plotter rolls commonly come 914 mm (36 in) and 610 mm (24 in) wide (common practice).
+    "roll-914": LargeFormat("roll-914", "Plotter roll, 914 mm wide", 914.0, None),
+    "roll-610": LargeFormat("roll-610", "Plotter roll, 610 mm wide", 610.0, None),
+}
+
+
+def large_format(code: str) -> LargeFormat:
+    try:
+        return LARGE_FORMATS[code]
+    except KeyError:
+        raise TilingError(f"Unknown large format {code!r}; use {', '.join(LARGE_FORMATS)}.") from None
+
+
+def shelf_rows(sizes: list[tuple[float, float]], width_mm: float, gap_mm: float) -> tuple[list[tuple[float, float]], float, float]:
+    """Boxes in order, left to right in rows no wider than ``width_mm``, rows ``gap_mm`` apart.
+
+    Returns the top-left corner of each box and the width and height used.
+    """
+    offsets, x, y, row_h, used_w = [], 0.0, 0.0, 0.0, 0.0
+    for w, h in sizes:
+        if w > width_mm + 1e-9:
+            raise TilingError(f"A piece {w:.0f} mm wide does not fit across {width_mm:.0f} mm.")
+        if x > 0 and x + w > width_mm + 1e-9:
+            x, y, row_h = 0.0, y + row_h + gap_mm, 0.0
+        offsets.append((x, y))
+        used_w = max(used_w, x + w)
+        row_h = max(row_h, h)
+        x += w + gap_mm
+    return offsets, used_w, (y + row_h if sizes else 0.0)
+
+
+@dataclass(frozen=True)
+class LargeSheet:
+    format: LargeFormat
+    orientation: str
+    page_width_mm: float
+    page_height_mm: float
+    margin_mm: float
+    header_mm: float  # room at the top of the printable area for the title and test squares
+    offsets: tuple[tuple[float, float], ...]  # each box's top-left, in the printable area
+
+    @property
+    def printable_width_mm(self) -> float:
+        return self.page_width_mm - 2 * self.margin_mm
+
+    @property
+    def printable_height_mm(self) -> float:
+        return self.page_height_mm - 2 * self.margin_mm
+
+
+def large_sheet(fmt: LargeFormat | str, sizes: list[tuple[float, float]], *, header_mm: float,
+                gap_mm: float = 10.0, margin_mm: float = PAGE_MARGIN_MM) -> LargeSheet:
+    """Where each box goes on one large sheet, below a header.
+
+    A fixed sheet lies portrait when everything fits so, else landscape, else
+    it is refused (the roll takes any length).  A roll is as long as the
+    boxes need, to the next whole millimetre.
+    """
+    if isinstance(fmt, str):
+        fmt = large_format(fmt)
+    if fmt.height_mm is None:
+        offsets, _, used_h = shelf_rows(sizes, fmt.width_mm - 2 * margin_mm, gap_mm)
+        length = math.ceil(header_mm + gap_mm + used_h + 2 * margin_mm - 1e-9)
+        return LargeSheet(fmt, PORTRAIT, fmt.width_mm, float(length), margin_mm, header_mm,
+                          tuple((x, header_mm + gap_mm + y) for x, y in offsets))
+    for orientation in (PORTRAIT, LANDSCAPE):
+        page_w, page_h = page_size(PaperSize(fmt.code, fmt.label, fmt.width_mm, fmt.height_mm), orientation)
+        try:
+            offsets, _, used_h = shelf_rows(sizes, page_w - 2 * margin_mm, gap_mm)
+        except TilingError:
+            continue
+        if header_mm + gap_mm + used_h <= page_h - 2 * margin_mm + 1e-9:
+            return LargeSheet(fmt, orientation, page_w, page_h, margin_mm, header_mm,
+                              tuple((x, header_mm + gap_mm + y) for x, y in offsets))
+    raise TilingError(f"The pieces do not fit on one {fmt.label.split(',')[0]} sheet; print them on a plotter roll.")

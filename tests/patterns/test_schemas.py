@@ -9,7 +9,7 @@ policy or unit in the core fails here until the schema says it too.
 import pytest
 
 from patterns.core.policies import POLICIES
-from patterns.core.block import BACK, CB_LACED, CB_SEAMED, CF_BUSK, CF_FOLD, FRONT, SEAM_KINDS
+from patterns.core.block import BACK, CB_LACED, CB_SEAMED, CF_BUSK, CF_FOLD, FRONT, LEFT, RIGHT, SEAM_KINDS
 from patterns.core.findings import CAUTION, ERROR, WARNING
 from patterns.core.fitting import schema
 from patterns.core.measures import LEVEL_CODES, MEASURES
@@ -29,6 +29,7 @@ HOMES = {
         "properties/pattern/properties/panels/items/properties/right/propertyNames": LEVELS,
         "properties/pattern/properties/seams/items/properties/kind": list(SEAM_KINDS),
         "properties/pattern/properties/seams/items/properties/alterable_at/items": LEVELS,
+        "properties/pattern/properties/channels/items/properties/edge": [LEFT, RIGHT],
         "properties/plan/properties/ease/propertyNames": LEVELS,
         "properties/plan/properties/policy": list(POLICIES),
         "properties/plan/properties/overrides/items/properties/level": LEVELS,

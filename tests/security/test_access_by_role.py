@@ -107,6 +107,10 @@ RULES = {
     "fittings:print_start": Rule(lambda w: {"plan_id": w.plan.pk, "number": 1}, {"GET": all_roles(200), "POST": all_roles(400)}),
     "fittings:print_status": Rule(lambda w: {"job_id": w.job.pk}, READ),
     "fittings:print_download": Rule(lambda w: {"job_id": w.job.pk, "document": "work-order"}, READ),
+    "fittings:print_large": Rule(lambda w: {"job_id": w.job.pk, "fmt": "roll-610"}, READ_ONLY),
+    # The projector shows the pieces to everyone who may print them.
+    "fittings:projector": Rule(lambda w: {"plan_id": w.plan.pk, "number": 1}, READ_ONLY),
+    "fittings:projector_pieces": Rule(lambda w: {"plan_id": w.plan.pk, "number": 1}, READ_ONLY),
     # Signing in and out.
     "login": Rule(lambda w: {}, {"GET": all_roles(302)}),  # a signed-in member of staff is sent on
     "logout": Rule(lambda w: {}, {"GET": all_roles(405), "POST": all_roles(302)}),

@@ -304,6 +304,9 @@ CASES = [
     Case("block-allowance-too-wide", "post", u("block_files:block_import"), drawing(_svg_block(), seam_allowance="6"), words="Must be between"),
     Case("block-unknown-garment", "post", u("block_files:block_import"), drawing(_svg_block(), garment="cape"), words="Select a valid choice"),
     Case("block-name-blank", "post", u("block_files:block_import"), drawing(_svg_block(), name="   "), words="This field is required"),
+    Case("import-channel-beyond-the-panel", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["pattern", "channels"], [{"panel": "Back", "fraction": 2}])), words="pattern › channels › 0 › fraction"),
+    Case("import-channel-unknown-edge", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["pattern", "channels"], [{"panel": "Back", "edge": "middle", "offset_mm": 10}])), words="pattern › channels › 0 › edge"),
+    Case("import-channel-on-no-panel", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["pattern", "channels"], [{"panel": "Nowhere", "fraction": 0.5}])), words="names a panel the block does not have"),
     # --- URL parameters: other clients' objects, ids that do not exist, junk ---------------------
     Case("compare-another-clients-session", "get", q("fittings:compare", lambda w: f"a=s{w.other_client.sessions.get().pk}&b=s{w.session.pk}", CLIENT), words="not in this client"),
     Case("compare-another-clients-revision", "get", q("fittings:compare", lambda w: f"a=r{w.other_plan.revisions.get().pk}&b=r{w.issued.pk}", CLIENT), words="not in this client"),
@@ -320,6 +323,10 @@ CASES = [
     Case("proof-unknown-document", "get", u("fittings:revision_proof", PLAN, 1, "recipe"), status=404),
     Case("proof-unknown-paper", "get", q("fittings:revision_proof", "paper=a0", PLAN, 1, "work-order"), words="a4 or letter"),
     Case("client-that-does-not-exist", "get", u("fittings:session_new", 999_999), status=404, words="Not found"),
+    Case("large-sheet-unknown-size", "get", u("fittings:print_large", lambda w: w.job.pk, "a1"), status=404, words="Not found"),
+    Case("large-sheet-job-missing", "get", u("fittings:print_large", TOO_BIG, "a0"), status=404, words="Not found"),
+    Case("projector-revision-beyond-the-plans", "get", u("fittings:projector", PLAN, 99), status=404, words="Not found"),
+    Case("projector-pieces-revision-beyond", "get", u("fittings:projector_pieces", PLAN, 99), status=404, words="Not found"),
 ]
 
 
