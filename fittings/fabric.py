@@ -1,0 +1,176 @@
+"""Fabric layouts for pages and printouts: reading the stored layouts, and drawing them (SVG).
+
+Reads only; the writes are in ``fittings/services/layouts.py``.  The drawing
+is the app's own: one SVG unit to the millimetre, the fabric drawn with its
+length running left to right and the selvedges top and bottom (a quarter
+turn of the fabric's coordinates, so a mirrored piece still looks
+mirrored), each piece's grainline as an arrow along the length.  Colours
+are presentation attributes (no style attributes, which the Content
+Security Policy refuses); classes let the site's style sheet restyle it on
+screen.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from xml.etree import ElementTree as ET
+
+from shapely.geometry import Polygon
+
+from fittings.models_layout import FabricLayout, LayoutStatus
+from patterns.core.layout import (
+    DEFAULT_GAP_MM, DEFAULT_WIDTH_MM, SHELF, LayerRequest, Layout, best_of, cut_pieces, default_layers, layer_label,
+    shelf_layers,
+)
+from patterns.core.units import format_with_unit
+
+PIECE_FILL, MIRRORED_FILL, PIECE_LINE, FABRIC_LINE = "#DCE9F5", "#F5E6D3", "#1A1A1A", "#808080"
+LABEL_MM = 22.0
+GRAIN_HEAD_MM = 12.0
+METHOD_WORDS = {SHELF: "rows across the fabric", "solver": "nested by the solver"}
+
+
+def _n(v: float) -> str:
+    text = f"{v:.2f}".rstrip("0").rstrip(".")
+    return "0" if text in ("-0", "") else text
+
+
+def layout_svg(layout: Layout, title: str = "") -> str:
+    """The layout drawn at one unit to the millimetre, length left to right."""
+    w, length = layout.width_mm, max(layout.length_mm, 1.0)
+    pad = 10.0
+    root = ET.Element("svg", {
+        "xmlns": "http://www.w3.org/2000/svg", "class": "fabric-layout",
+        "viewBox": f"{_n(-pad)} {_n(-pad)} {_n(length + 2 * pad)} {_n(w + 2 * pad)}",
+        "role": "img",
+    })
+    if title:
+        ET.SubElement(root, "title").text = title
+
+    def to_svg(x, y):  # fabric (across, along) -> drawing (along, down from the far selvedge)
+        return y, w - x
+
+    ET.SubElement(root, "rect", {"class": "fabric", "x": "0", "y": "0", "width": _n(length), "height": _n(w),
+                                 "fill": "#FFFFFF", "stroke": FABRIC_LINE, "stroke-width": "1.5",
+                                 "stroke-dasharray": "8 4"})
+    for placement, outline in layout.outlines():
+        points = [to_svg(x, y) for x, y in outline]
+        piece = layout.piece(placement.piece)
+        cls = "piece mirrored" if placement.mirrored else "piece"
+        g = ET.SubElement(root, "g", {"class": cls})
+        ET.SubElement(g, "title").text = (f"{piece.name}" + (", turned half round" if placement.rotation else ""))
+        ET.SubElement(g, "polygon", {
+            "points": " ".join(f"{_n(x)},{_n(y)}" for x, y in points),
+            "fill": MIRRORED_FILL if placement.mirrored else PIECE_FILL, "stroke": PIECE_LINE, "stroke-width": "1",
+        })
+        c = Polygon(points).representative_point()
+        span = max(x for x, _ in points) - min(x for x, _ in points)
+        x0, x1 = c.x - 0.3 * span, c.x + 0.3 * span
+        y = c.y + LABEL_MM * 0.9
+        h = GRAIN_HEAD_MM
+        ET.SubElement(g, "path", {
+            "class": "grain", "fill": "none", "stroke": PIECE_LINE, "stroke-width": "1",
+            "d": (f"M{_n(x0)} {_n(y)}L{_n(x1)} {_n(y)}M{_n(x0 + h)} {_n(y - h / 2)}L{_n(x0)} {_n(y)}"
+                  f"L{_n(x0 + h)} {_n(y + h / 2)}M{_n(x1 - h)} {_n(y - h / 2)}L{_n(x1)} {_n(y)}L{_n(x1 - h)} {_n(y + h / 2)}"),
+        })
+        label = ET.SubElement(g, "text", {"x": _n(c.x), "y": _n(c.y), "font-size": _n(LABEL_MM),
+                                          "font-family": "DejaVu Sans", "text-anchor": "middle", "fill": PIECE_LINE})
+        label.text = _short(piece.panel, placement.mirrored)
+    return ET.tostring(root, encoding="unicode")
+
+
+def _short(panel: str, mirrored: bool) -> str:
+    initials = "".join(word[0].upper() for word in panel.split())
+    return initials + ("′" if mirrored else "")
+
+
+@dataclass(frozen=True)
+class LayerLayout:
+    """One layer's layout to show: the one taking least fabric, and the rows layout it is measured against."""
+
+    layer: str
+    shown: Layout
+    shelf: Layout
+
+    @property
+    def label(self) -> str:
+        return layer_label(self.layer)
+
+    def improvement(self) -> float:
+        """Utilisation of the shown layout over the rows layout's, less one."""
+        return self.shown.utilisation / self.shelf.utilisation - 1 if self.shelf.utilisation else 0.0
+
+
+def latest_layout(revision) -> FabricLayout | None:
+    return FabricLayout.objects.filter(revision=revision).first()
+
+
+def _layouts(entries) -> dict[str, Layout]:
+    return {e["layer"]: Layout.from_dict(e["layout"]) for e in entries or ()}
+
+
+def job_layers(job: FabricLayout) -> list[LayerLayout]:
+    """Per layer of a request: the solver's layout once done (if it takes less fabric), else the rows."""
+    shelf = _layouts(job.shelf)
+    solved = _layouts(job.solved) if job.status == LayoutStatus.DONE else {}
+    out = []
+    for entry in job.layers:
+        layer = entry["layer"]
+        rows = shelf[layer]
+        shown = best_of(rows, solved[layer]) if layer in solved else rows
+        out.append(LayerLayout(layer, shown, rows))
+    return out
+
+
+def default_print_layers(block, outlines) -> list[LayerLayout]:
+    """Rows layouts on fabric of the default width, for a work order printed before any layout was asked for."""
+    pieces = cut_pieces(outlines)
+    requests = [LayerRequest(code, DEFAULT_WIDTH_MM) for code in default_layers(block.garment)]
+    try:
+        results = shelf_layers(pieces, requests, DEFAULT_GAP_MM)
+    except ValueError:
+        return []
+    return [LayerLayout(r.layer, r.shelf, r.shelf) for r in results]
+
+
+def print_layers(revision) -> tuple[LayerLayout, ...]:
+    """The layouts the work order shows: the newest request finished for this revision, else its rows layout."""
+    done = FabricLayout.objects.filter(revision=revision, status=LayoutStatus.DONE).first()
+    job = done or latest_layout(revision)
+    return tuple(job_layers(job)) if job is not None else ()
+
+
+def layer_rows(layers, unit: str) -> list[dict]:
+    """What the page and the work order show per layer, lengths in the plan's unit."""
+    rows = []
+    for lay in layers:
+        shown = lay.shown
+        rows.append({
+            "layer": lay.layer,
+            "label": lay.label,
+            "width": format_with_unit(shown.width_mm, unit),
+            "gap": format_with_unit(shown.gap_mm, unit),
+            "length": format_with_unit(shown.length_mm, unit),
+            "utilisation": f"{100 * shown.utilisation:.1f} %",
+            "method": METHOD_WORDS.get(shown.method, shown.method),
+            "note": shown.note,
+            "shelf_length": format_with_unit(lay.shelf.length_mm, unit),
+            "shelf_utilisation": f"{100 * lay.shelf.utilisation:.1f} %",
+            "improved": shown is not lay.shelf and shown.length_mm < lay.shelf.length_mm,
+            "improvement": f"{100 * lay.improvement():+.1f} %",
+            "pieces": len(shown.placements),
+            "svg": layout_svg(shown, f"{lay.label}: {len(shown.placements)} pieces on fabric "
+                                     f"{format_with_unit(shown.width_mm, unit)} wide"),
+        })
+    return rows
+
+
+def fabric_layout_context(data, pattern) -> dict:
+    """The work order's fabric layout section (templates/fittings/print/_fabric_layout.html)."""
+    import base64
+
+    layers = data.fabric_layouts or tuple(default_print_layers(data.block, pattern.altered))
+    rows = layer_rows(layers, data.unit)
+    for row in rows:
+        row["src"] = "data:image/svg+xml;base64," + base64.b64encode(row.pop("svg").encode("utf-8")).decode("ascii")
+    return {"fabric_layouts": rows, "fabric_layout_asked": bool(data.fabric_layouts)}
