@@ -55,7 +55,8 @@ def request_layout(*, revision, user, layers: list[LayerRequest], gap_mm: float,
             layers=[{"layer": r.layer, "width_mm": float(r.width_mm)} for r in layers],
             shelf=[{"layer": r.layer, "layout": r.shelf.to_dict()} for r in shelf],
         )
-        transaction.on_commit(lambda: _queue(job.pk))
+    # Queued after the commit above, so a worker in another process sees the request (as printing does).
+    _queue(job.pk)
     job.refresh_from_db()
     return job
 
