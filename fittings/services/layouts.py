@@ -22,7 +22,7 @@ from fittings.models_layout import FabricLayout, LayoutStatus
 from fittings.previews import altered_for
 from patterns.core.layout import (
     DEFAULT_BUDGET_S, MAX_BUDGET_S, LayerRequest, LayoutError, Piece, Progress, check_layers, cut_pieces,
-    shelf_layers, solve_layers,
+    shelf_layers, solve_layers_apart,
 )
 from patterns.core.units import quantize_mm
 
@@ -109,8 +109,8 @@ def run_layout_job(job_id: int, *, workers: int | None = None) -> str:
         pieces = revision_pieces(job.revision)
         layers = [LayerRequest(d["layer"], float(d["width_mm"])) for d in job.layers]
         started = time.perf_counter()
-        results = solve_layers(pieces, layers, float(job.gap_mm), budget_s=job.budget_s, progress=progress,
-                               workers=workers)
+        results = solve_layers_apart(pieces, layers, float(job.gap_mm), budget_s=job.budget_s, progress=progress,
+                                     workers=workers)
         logger.info("Fabric layout %s: %d layers in %.1f s", job_id, len(results), time.perf_counter() - started)
         FabricLayout.objects.filter(pk=job_id).update(
             status=LayoutStatus.DONE, progress=100, finished_at=timezone.now(),

@@ -514,9 +514,68 @@ def solve_layers(pieces: Sequence[Piece], layers: Sequence[LayerRequest], gap_mm
     return results
 
 
+def _child_main(conn, pieces, layers, gap_mm, budget_s, seed, workers) -> None:
+    """In a process of its own: solve, sending progress and then the results (or the reason) up the pipe."""
+    try:
+        results = solve_layers(pieces, layers, gap_mm, budget_s=budget_s, seed=seed, workers=workers,
+                               progress=lambda p: conn.send(("progress", p)))
+        conn.send(("done", results))
+    except BaseException as exc:  # noqa: BLE001  (reported to the parent in words)
+        conn.send(("error", f"{type(exc).__name__}: {exc}"))
+    finally:
+        conn.close()
+
+
+def solve_layers_apart(pieces: Sequence[Piece], layers: Sequence[LayerRequest], gap_mm: float, *,
+                       budget_s: int = DEFAULT_BUDGET_S, progress: ProgressCallback | None = None,
+                       seed: int = 0, workers: int | None = None, grace_s: float = 60.0) -> list[LayerResult]:
+    """:func:`solve_layers` in a fresh process (spawned, not forked), progress relayed to ``progress`` here.
+
+    The solver starts threads of its own that outlive a solve; in a separate
+    process they never share a process that later forks (the task worker
+    forks to draw a print), and a crash in the solver cannot take the
+    caller down.  The child is stopped if it runs ``grace_s`` past the budget.
+    """
+    import multiprocessing
+
+    check_layers(pieces, layers, gap_mm)
+    context = multiprocessing.get_context("spawn")
+    receive, send = context.Pipe(duplex=False)
+    child = context.Process(target=_child_main, name="fabric-layout", daemon=True,
+                            args=(send, tuple(pieces), tuple(layers), float(gap_mm), int(budget_s), seed, workers))
+    child.start()
+    send.close()
+    deadline = time.monotonic() + budget_s + grace_s
+    try:
+        while True:
+            if receive.poll(0.25):
+                try:
+                    kind, value = receive.recv()
+                except EOFError:
+                    child.join(5)
+                    raise RuntimeError(f"The layout process stopped (exit code {child.exitcode}).") from None
+                if kind == "progress":
+                    if progress is not None:
+                        progress(value)
+                elif kind == "done":
+                    return value
+                else:
+                    raise RuntimeError(value)
+            elif not child.is_alive() and not receive.poll():
+                raise RuntimeError(f"The layout process stopped (exit code {child.exitcode}).")
+            if time.monotonic() > deadline:
+                raise RuntimeError(f"The layout process ran {grace_s:g} s past its time and was stopped.")
+    finally:
+        receive.close()
+        if child.is_alive():
+            child.terminate()
+        child.join(5)
+
+
 __all__ = [
     "LAYERS", "CORSET_LAYERS", "BODICE_LAYERS", "DEFAULT_WIDTH_MM", "DEFAULT_GAP_MM", "DEFAULT_BUDGET_S",
     "LayoutError", "Piece", "Placement", "Layout", "LayerRequest", "LayerResult", "Progress",
     "cut_pieces", "shelf_layout", "solver_layout", "layout_problems", "placed_outline", "best_of",
     "default_layers", "layer_label", "check_request", "check_layers", "shelf_layers", "solve_layers",
+    "solve_layers_apart",
 ]

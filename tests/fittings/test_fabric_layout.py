@@ -99,7 +99,7 @@ def test_it_shows_the_rows_layout_at_once_and_polls_while_the_solver_runs(workro
     assert format_with_unit(shelf.length_mm, "in") in fragment  # in the plan's unit, inches to 1/16
 
     seen = []
-    real = layout_services.solve_layers
+    real = layout_services.solve_layers_apart
 
     def spying(*args, progress, **kwargs):
         def record(p):
@@ -109,10 +109,10 @@ def test_it_shows_the_rows_layout_at_once_and_polls_while_the_solver_runs(workro
 
     layout_services.PROGRESS_EVERY_S, saved = 0.0, layout_services.PROGRESS_EVERY_S
     try:
-        layout_services.solve_layers = spying
+        layout_services.solve_layers_apart = spying
         assert layout_services.run_layout_job(job.pk, workers=1) == "done"
     finally:
-        layout_services.solve_layers, layout_services.PROGRESS_EVERY_S = real, saved
+        layout_services.solve_layers_apart, layout_services.PROGRESS_EVERY_S = real, saved
     assert seen and all(0 <= v <= 99 for v in seen[:-1]) and seen == sorted(seen)
     job.refresh_from_db()
     assert job.status == LayoutStatus.DONE and job.progress == 100 and job.best_length_mm > 0
@@ -130,7 +130,7 @@ def test_it_keeps_the_rows_layout_and_says_why_when_the_search_fails(fitter_clie
     def broken(*args, **kwargs):
         raise RuntimeError("no memory left")
 
-    monkeypatch.setattr(layout_services, "solve_layers", broken)
+    monkeypatch.setattr(layout_services, "solve_layers_apart", broken)
     with pytest.raises(RuntimeError):
         layout_services.run_layout_job(job.pk)
     job.refresh_from_db()

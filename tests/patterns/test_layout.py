@@ -19,7 +19,7 @@ from patterns.core.block import Alteration
 from patterns.core.layout import (
     BODICE_LAYERS, CORSET_LAYERS, SHELF, SOLVER, LayerRequest, LayoutError, Placement, Progress, best_of,
     check_layers, cut_pieces, default_layers, layout_problems, placed_outline, shelf_layout, solve_layers,
-    solver_layout,
+    solve_layers_apart, solver_layout,
 )
 from patterns.core.outline import alter_block
 from patterns.demo import bodice_block, corset_block
@@ -280,3 +280,23 @@ def test_it_reads_back_a_stored_layout_unchanged():
     assert again.length_mm == pytest.approx(layout.length_mm)
     assert again.utilisation == pytest.approx(layout.utilisation, rel=1e-6)
     assert_valid(again, pieces)
+
+
+def _os_threads():
+    import os
+
+    return len(os.listdir("/proc/self/task"))
+
+
+@pytest.mark.skipif(not __import__("os").path.isdir("/proc/self/task"), reason="counts threads through /proc")
+def test_it_solves_in_a_process_of_its_own_leaving_no_threads_behind():
+    pieces = cut_pieces([Outline("A", rect(100, 100)), Outline("B", rect(100, 100))])
+    before = _os_threads()
+    seen = []
+    results = solve_layers_apart(pieces, [LayerRequest("fashion", 215.0)], 10.0, budget_s=1, seed=1,
+                                 progress=seen.append)
+    assert _os_threads() == before  # the solver's own threads lived and died in the child
+    (result,) = results
+    assert_valid(result.solver, pieces)
+    assert result.best.length_mm == pytest.approx(210.0, abs=1.0)
+    assert seen and seen[-1].fraction == 1.0
