@@ -140,7 +140,7 @@ def print_layers(revision) -> tuple[LayerLayout, ...]:
     return tuple(job_layers(job)) if job is not None else ()
 
 
-def layer_rows(layers, unit: str) -> list[dict]:
+def layer_rows(layers, unit: str, drawn: bool = True) -> list[dict]:
     """What the page and the work order show per layer, lengths in the plan's unit."""
     rows = []
     for lay in layers:
@@ -157,20 +157,36 @@ def layer_rows(layers, unit: str) -> list[dict]:
             "shelf_length": format_with_unit(lay.shelf.length_mm, unit),
             "shelf_utilisation": f"{100 * lay.shelf.utilisation:.1f} %",
             "improved": shown is not lay.shelf and shown.length_mm < lay.shelf.length_mm,
-            "improvement": f"{100 * lay.improvement():+.1f} %",
+            "improvement": f"{100 * lay.improvement():.1f} %",
             "pieces": len(shown.placements),
-            "svg": layout_svg(shown, f"{lay.label}: {len(shown.placements)} pieces on fabric "
-                                     f"{format_with_unit(shown.width_mm, unit)} wide"),
         })
+        if drawn:
+            rows[-1]["svg"] = layout_svg(shown, f"{lay.label}: {len(shown.placements)} pieces on fabric "
+                                                f"{format_with_unit(shown.width_mm, unit)} wide")
     return rows
 
 
 def fabric_layout_context(data, pattern) -> dict:
-    """The work order's fabric layout section (templates/fittings/print/_fabric_layout.html)."""
+    """The work order's fabric layout section (templates/fittings/print/_fabric_layout.html).
+
+    Layers laid out alike (the same width, the same places) share one drawing: each drawing costs
+    WeasyPrint about as much as a table, and the default layers all take the same rows layout.
+    """
     import base64
+    import json
 
     layers = data.fabric_layouts or tuple(default_print_layers(data.block, pattern.altered))
-    rows = layer_rows(layers, data.unit)
-    for row in rows:
-        row["src"] = "data:image/svg+xml;base64," + base64.b64encode(row.pop("svg").encode("utf-8")).decode("ascii")
-    return {"fabric_layouts": rows, "fabric_layout_asked": bool(data.fabric_layouts)}
+    rows = layer_rows(layers, data.unit, drawn=False)
+    drawings: dict[str, dict] = {}
+    for lay, row in zip(layers, rows):
+        key = json.dumps([lay.shown.width_mm, [p.to_dict() for p in lay.shown.placements]])
+        if key not in drawings:
+            svg = layout_svg(lay.shown)
+            drawings[key] = {"labels": [], "width": row["width"], "length": row["length"],
+                             "src": "data:image/svg+xml;base64," + base64.b64encode(svg.encode("utf-8")).decode("ascii")}
+        drawings[key]["labels"].append(row["label"])
+    for drawing in drawings.values():
+        names = drawing.pop("labels")
+        drawing["layers"] = names[0] if len(names) == 1 else ", ".join(names[:-1]) + " and " + names[-1]
+    return {"fabric_layouts": rows, "fabric_drawings": list(drawings.values()),
+            "fabric_layout_asked": bool(data.fabric_layouts)}

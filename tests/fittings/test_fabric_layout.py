@@ -176,7 +176,9 @@ def test_it_prints_default_rows_on_the_work_order_before_any_layout_was_asked_fo
     rows = fabric.default_print_layers(data.block, altered_for(data.block, data.result).altered)
     assert rows and all(not layout_problems(r.shown) for r in rows)
     assert format_with_unit(rows[0].shown.length_mm, "cm") in html
-    assert html.count('src="data:image/svg+xml;base64,') >= 3 + 1  # a drawing per layer, and the preview
+    # The three layers take the same rows layout: one drawing for all three, and the pattern's preview.
+    assert html.count('src="data:image/svg+xml;base64,') == 1 + 1
+    assert f"<h3>Outer fabric, Strength layer and Lining: {format_with_unit(rows[0].shown.length_mm, 'cm')}" in html
 
 
 def test_it_prints_the_layout_asked_for_with_length_and_utilisation(fitter_client, cm_revision):
@@ -190,6 +192,7 @@ def test_it_prints_the_layout_asked_for_with_length_and_utilisation(fitter_clien
                          rf"{re.escape(format_with_unit(best.length_mm, 'cm'))}</td><td class=\"num\">"
                          rf"{100 * best.utilisation:.1f} %</td>", html), label
     assert "<td>Strength layer</td>" not in html.split("<h2>Fabric layout</h2>")[1]
+    assert html.count('src="data:image/svg+xml;base64,') == 2 + 1  # two widths, two drawings; the preview
 
 
 def test_it_erases_a_clients_layouts_with_the_client(fitter_client, cm_revision):
