@@ -1,10 +1,10 @@
 """Fabric layouts for pages and printouts: reading the stored layouts, and drawing them (SVG).
 
 Reads only; the writes are in ``fittings/services/layouts.py``.  The drawing
-is the app's own: one SVG unit to the millimetre, the fabric drawn with its
-length running left to right and the selvedges top and bottom (a quarter
-turn of the fabric's coordinates, so a mirrored piece still looks
-mirrored), each piece's grainline as an arrow along the length.  Colours
+is the app's own: one SVG unit to the millimetre, the fabric drawn as it lies
+on the cutting table, selvedges left and right and its length running down
+the page (the fabric's own coordinates, so a mirrored piece looks mirrored),
+each piece's grainline as an arrow along the length.  Colours
 are presentation attributes (no style attributes, which the Content
 Security Policy refuses); classes let the site's style sheet restyle it on
 screen.
@@ -35,46 +35,40 @@ def _n(v: float) -> str:
     return "0" if text in ("-0", "") else text
 
 
-def layout_svg(layout: Layout, title: str = "") -> str:
-    """The layout drawn at one unit to the millimetre, length left to right."""
+def layout_svg(layout: Layout, title: str = "", cls: str = "fabric-layout") -> str:
+    """The layout drawn at one unit to the millimetre: across the fabric left to right, its length downwards."""
     w, length = layout.width_mm, max(layout.length_mm, 1.0)
     pad = 10.0
     root = ET.Element("svg", {
-        "xmlns": "http://www.w3.org/2000/svg", "class": "fabric-layout",
-        "viewBox": f"{_n(-pad)} {_n(-pad)} {_n(length + 2 * pad)} {_n(w + 2 * pad)}",
-        "role": "img",
+        "xmlns": "http://www.w3.org/2000/svg", "class": cls,
+        "viewBox": f"{_n(-pad)} {_n(-pad)} {_n(w + 2 * pad)} {_n(length + 2 * pad)}",
+        "width": f"{_n(w + 2 * pad)}mm", "height": f"{_n(length + 2 * pad)}mm", "role": "img",
     })
     if title:
         ET.SubElement(root, "title").text = title
-
-    def to_svg(x, y):  # fabric (across, along) -> drawing (along, down from the far selvedge)
-        return y, w - x
-
-    ET.SubElement(root, "rect", {"class": "fabric", "x": "0", "y": "0", "width": _n(length), "height": _n(w),
+    ET.SubElement(root, "rect", {"class": "fabric", "x": "0", "y": "0", "width": _n(w), "height": _n(length),
                                  "fill": "#FFFFFF", "stroke": FABRIC_LINE, "stroke-width": "1.5",
                                  "stroke-dasharray": "8 4"})
     for placement, outline in layout.outlines():
-        points = [to_svg(x, y) for x, y in outline]
         piece = layout.piece(placement.piece)
-        cls = "piece mirrored" if placement.mirrored else "piece"
-        g = ET.SubElement(root, "g", {"class": cls})
-        ET.SubElement(g, "title").text = (f"{piece.name}" + (", turned half round" if placement.rotation else ""))
+        g = ET.SubElement(root, "g", {"class": "piece mirrored" if placement.mirrored else "piece"})
+        ET.SubElement(g, "title").text = piece.name + (", turned half round" if placement.rotation else "")
         ET.SubElement(g, "polygon", {
-            "points": " ".join(f"{_n(x)},{_n(y)}" for x, y in points),
+            "points": " ".join(f"{_n(x)},{_n(y)}" for x, y in outline),
             "fill": MIRRORED_FILL if placement.mirrored else PIECE_FILL, "stroke": PIECE_LINE, "stroke-width": "1",
         })
-        c = Polygon(points).representative_point()
-        span = max(x for x, _ in points) - min(x for x, _ in points)
-        x0, x1 = c.x - 0.3 * span, c.x + 0.3 * span
-        y = c.y + LABEL_MM * 0.9
-        h = GRAIN_HEAD_MM
-        ET.SubElement(g, "path", {
+        c = Polygon(outline).representative_point()
+        ys = [y for _, y in outline]
+        span = max(ys) - min(ys)
+        x, y0, y1, h = c.x + 1.3 * LABEL_MM, c.y - 0.3 * span, c.y + 0.3 * span, GRAIN_HEAD_MM
+        ET.SubElement(g, "path", {  # the grainline, along the selvedge, arrowheads at both ends
             "class": "grain", "fill": "none", "stroke": PIECE_LINE, "stroke-width": "1",
-            "d": (f"M{_n(x0)} {_n(y)}L{_n(x1)} {_n(y)}M{_n(x0 + h)} {_n(y - h / 2)}L{_n(x0)} {_n(y)}"
-                  f"L{_n(x0 + h)} {_n(y + h / 2)}M{_n(x1 - h)} {_n(y - h / 2)}L{_n(x1)} {_n(y)}L{_n(x1 - h)} {_n(y + h / 2)}"),
+            "d": (f"M{_n(x)} {_n(y0)}L{_n(x)} {_n(y1)}M{_n(x - h / 2)} {_n(y0 + h)}L{_n(x)} {_n(y0)}"
+                  f"L{_n(x + h / 2)} {_n(y0 + h)}M{_n(x - h / 2)} {_n(y1 - h)}L{_n(x)} {_n(y1)}L{_n(x + h / 2)} {_n(y1 - h)}"),
         })
-        label = ET.SubElement(g, "text", {"x": _n(c.x), "y": _n(c.y), "font-size": _n(LABEL_MM),
-                                          "font-family": "DejaVu Sans", "text-anchor": "middle", "fill": PIECE_LINE})
+        label = ET.SubElement(g, "text", {"x": _n(c.x - 0.2 * LABEL_MM), "y": _n(c.y + LABEL_MM / 3),
+                                          "font-size": _n(LABEL_MM), "font-family": "DejaVu Sans",
+                                          "text-anchor": "middle", "fill": PIECE_LINE})
         label.text = _short(piece.panel, placement.mirrored)
     return ET.tostring(root, encoding="unicode")
 
@@ -181,7 +175,7 @@ def fabric_layout_context(data, pattern) -> dict:
     for lay, row in zip(layers, rows):
         key = json.dumps([lay.shown.width_mm, [p.to_dict() for p in lay.shown.placements]])
         if key not in drawings:
-            svg = layout_svg(lay.shown)
+            svg = layout_svg(lay.shown, cls="fabric-layout print")
             drawings[key] = {"labels": [], "width": row["width"], "length": row["length"],
                              "src": "data:image/svg+xml;base64," + base64.b64encode(svg.encode("utf-8")).decode("ascii")}
         drawings[key]["labels"].append(row["label"])
