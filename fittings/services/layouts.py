@@ -43,11 +43,12 @@ def revision_pieces(revision) -> tuple[Piece, ...]:
 
 def request_layout(*, revision, user, layers: list[LayerRequest], gap_mm: float,
                    budget_s: int = DEFAULT_BUDGET_S) -> FabricLayout:
-    """Store a layout request with its shelf layout and queue the solver; LayoutError says what is wrong."""
+    """Store a layout request with its shelf layout and queue the solver; LayoutError says what is wrong
+    (lengths in the plan's unit)."""
     if not isinstance(budget_s, int) or not 1 <= budget_s <= MAX_BUDGET_S:
         raise LayoutError(f"The time for the layout must be a whole number of seconds from 1 to {MAX_BUDGET_S}.")
     pieces = revision_pieces(revision)
-    check_layers(pieces, layers, gap_mm)
+    check_layers(pieces, layers, gap_mm, selectors.revision_inputs(revision)[2].unit)
     shelf = shelf_layers(pieces, layers, gap_mm)
     with transaction.atomic():
         job = FabricLayout.objects.create(

@@ -38,6 +38,8 @@ from shapely import affinity
 from shapely.geometry import Polygon
 from shapely.ops import unary_union
 
+from patterns.core.units import format_with_unit
+
 Pt = tuple[float, float]
 
 # Fabric layers, once.  The label is what the work order and the page show.
@@ -260,24 +262,25 @@ class Layout:
                    float(d.get("seconds", 0.0)), d.get("note", ""))
 
 
-def check_request(pieces: Sequence[Piece], width_mm: float, gap_mm: float) -> None:
-    """Refuse a width or gap no layout can use, in words."""
+def check_request(pieces: Sequence[Piece], width_mm: float, gap_mm: float, unit: str = "cm") -> None:
+    """Refuse a width or gap no layout can use, in words (lengths in ``unit``, cm or in)."""
     for value, what in ((width_mm, "fabric width"), (gap_mm, "gap between pieces")):
         if not isinstance(value, (int, float)) or not math.isfinite(value):
             raise LayoutError(f"The {what} must be a number.")
     if width_mm <= 0:
         raise LayoutError("The fabric width must be more than 0.")
     if width_mm > MAX_WIDTH_MM:
-        raise LayoutError(f"A fabric width over {MAX_WIDTH_MM / 1000:g} m is not a fabric width.")
+        raise LayoutError(f"A fabric width over {format_with_unit(MAX_WIDTH_MM, unit)} is not a fabric width.")
     if gap_mm < 0 or gap_mm > MAX_GAP_MM:
-        raise LayoutError(f"The gap between pieces must be between 0 and {MAX_GAP_MM:g} mm.")
+        raise LayoutError(f"The gap between pieces must be between 0 and {format_with_unit(MAX_GAP_MM, unit)}.")
     if not pieces:
         raise LayoutError("There are no pieces to lay out.")
     widest = max(pieces, key=lambda p: p.width_mm)
     if widest.width_mm > width_mm + TOLERANCE_MM:
         raise LayoutError(
-            f"{widest.name} is {widest.width_mm / 10:.1f} cm wide across the grain, wider than the fabric "
-            f"({width_mm / 10:.1f} cm): choose a wider fabric, or the piece cannot keep its grainline.")
+            f"{widest.name} is {format_with_unit(widest.width_mm, unit)} wide across the grain, wider than the "
+            f"fabric ({format_with_unit(width_mm, unit)}): choose a wider fabric, or the piece cannot keep its "
+            "grainline.")
 
 
 def _copies(pieces: Sequence[Piece]) -> list[Piece]:
@@ -472,7 +475,7 @@ class LayerResult:
         return best_of(self.shelf, self.solver) if self.solver is not None else self.shelf
 
 
-def check_layers(pieces: Sequence[Piece], layers: Sequence[LayerRequest], gap_mm: float) -> None:
+def check_layers(pieces: Sequence[Piece], layers: Sequence[LayerRequest], gap_mm: float, unit: str = "cm") -> None:
     if not layers:
         raise LayoutError("Choose at least one fabric layer.")
     seen = set()
@@ -483,7 +486,7 @@ def check_layers(pieces: Sequence[Piece], layers: Sequence[LayerRequest], gap_mm
             raise LayoutError(f"{layer_label(req.layer)} is listed twice.")
         seen.add(req.layer)
         try:
-            check_request(pieces, req.width_mm, gap_mm)
+            check_request(pieces, req.width_mm, gap_mm, unit)
         except LayoutError as exc:
             raise LayoutError(f"{layer_label(req.layer)}: {exc}") from None
 

@@ -201,8 +201,11 @@ def test_it_refuses_a_width_or_gap_no_layout_can_use(width, gap, words):
 
 def test_it_names_the_layer_and_the_piece_too_wide_for_it():
     pieces = demo_pieces(bodice_block())  # the unfolded centre front is about 32 cm across
-    with pytest.raises(LayoutError, match=r"Lining: Centre front, unfolded is 3\d\.\d cm wide"):
+    with pytest.raises(LayoutError, match=r"Lining: Centre front, unfolded is 3\d\.\d cm wide.*\(30\.0 cm\)"):
         check_layers(pieces, [LayerRequest("fashion", 1400.0), LayerRequest("lining", 300.0)], GAP)
+    # In the plan's unit: 12 in = 304.8 mm exactly (1959 international yard and pound agreement).
+    with pytest.raises(LayoutError, match=r"is 12 \d+/\d+ in wide.*\(12 in\)"):
+        check_layers(pieces, [LayerRequest("lining", 304.8)], GAP, unit="in")
     with pytest.raises(LayoutError, match="Unknown fabric layer"):
         check_layers(pieces, [LayerRequest("velvet", 1400.0)], GAP)
     with pytest.raises(LayoutError, match="at least one"):
