@@ -27,6 +27,9 @@ from patterns.core.units import format_with_unit
 PIECE_FILL, MIRRORED_FILL, PIECE_LINE, FABRIC_LINE = "#DCE9F5", "#F5E6D3", "#1A1A1A", "#808080"
 LABEL_MM = 22.0
 GRAIN_HEAD_MM = 12.0
+# The largest a drawing is printed: inside the work order's text width on A4 and letter, and short
+# enough to keep a drawing and its heading on one page.
+PRINT_BOX_MM = (170.0, 115.0)
 METHOD_WORDS = {SHELF: "rows across the fabric", "solver": "nested by the solver"}
 
 
@@ -35,14 +38,21 @@ def _n(v: float) -> str:
     return "0" if text in ("-0", "") else text
 
 
-def layout_svg(layout: Layout, title: str = "", cls: str = "fabric-layout") -> str:
-    """The layout drawn at one unit to the millimetre: across the fabric left to right, its length downwards."""
+def layout_svg(layout: Layout, title: str = "", cls: str = "fabric-layout",
+               fit_mm: tuple[float, float] | None = None) -> str:
+    """The layout drawn at one unit to the millimetre: across the fabric left to right, its length downwards.
+
+    The drawing says it is as large as the fabric, or, with ``fit_mm`` (width, height), the largest it can
+    be within that box (for paper, where no style sheet sizes it).
+    """
     w, length = layout.width_mm, max(layout.length_mm, 1.0)
     pad = 10.0
+    box_w, box_h = w + 2 * pad, length + 2 * pad
+    scale = min(fit_mm[0] / box_w, fit_mm[1] / box_h) if fit_mm else 1.0
     root = ET.Element("svg", {
         "xmlns": "http://www.w3.org/2000/svg", "class": cls,
-        "viewBox": f"{_n(-pad)} {_n(-pad)} {_n(w + 2 * pad)} {_n(length + 2 * pad)}",
-        "width": f"{_n(w + 2 * pad)}mm", "height": f"{_n(length + 2 * pad)}mm", "role": "img",
+        "viewBox": f"{_n(-pad)} {_n(-pad)} {_n(box_w)} {_n(box_h)}",
+        "width": f"{_n(box_w * scale)}mm", "height": f"{_n(box_h * scale)}mm", "role": "img",
     })
     if title:
         ET.SubElement(root, "title").text = title
@@ -175,7 +185,7 @@ def fabric_layout_context(data, pattern) -> dict:
     for lay, row in zip(layers, rows):
         key = json.dumps([lay.shown.width_mm, [p.to_dict() for p in lay.shown.placements]])
         if key not in drawings:
-            svg = layout_svg(lay.shown, cls="fabric-layout print")
+            svg = layout_svg(lay.shown, cls="fabric-layout print", fit_mm=PRINT_BOX_MM)
             drawings[key] = {"labels": [], "width": row["width"], "length": row["length"],
                              "src": "data:image/svg+xml;base64," + base64.b64encode(svg.encode("utf-8")).decode("ascii")}
         drawings[key]["labels"].append(row["label"])

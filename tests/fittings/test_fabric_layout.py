@@ -179,6 +179,13 @@ def test_it_prints_default_rows_on_the_work_order_before_any_layout_was_asked_fo
     # The three layers take the same rows layout: one drawing for all three, and the pattern's preview.
     assert html.count('src="data:image/svg+xml;base64,') == 1 + 1
     assert f"<h3>Outer fabric, Strength layer and Lining: {format_with_unit(rows[0].shown.length_mm, 'cm')}" in html
+    # Sized for the page: within the text width of A4 and letter (less 12 mm margins each side) and 115 mm tall.
+    import base64
+
+    drawing = re.search(r'<img class="fabric-drawing" src="data:image/svg\+xml;base64,([^"]+)"', html)[1]
+    svg = base64.b64decode(drawing).decode()
+    width, height = (float(v) for v in re.search(r'width="([0-9.]+)mm" height="([0-9.]+)mm"', svg).groups())
+    assert width <= 170.0 + 1e-6 and height <= 115.0 + 1e-6 and max(width / 170.0, height / 115.0) > 0.999
 
 
 def test_it_prints_the_layout_asked_for_with_length_and_utilisation(fitter_client, cm_revision):
