@@ -2,12 +2,14 @@
 
 from django import forms
 from django.shortcuts import get_object_or_404, redirect, render
+from django.utils import timezone
 from django.views.decorators.http import require_GET, require_POST
 
 from atelier.roles import ROLES, role_required
 from fittings import selectors
 from fittings.fabric import latest_layout, job_layers, layer_rows
-from fittings.models import Plan, PlanRevision
+from fittings.models import LayoutStatus, Plan, PlanRevision
+from fittings.services.printing import NO_WORKER_AFTER
 from fittings.services.layouts import request_layout, settle_abandoned
 from patterns.core.layout import (
     DEFAULT_BUDGET_S, DEFAULT_GAP_MM, DEFAULT_WIDTH_MM, LAYERS, MAX_BUDGET_S, LayerRequest, LayoutError,
@@ -70,7 +72,8 @@ def _context(plan, revision, form=None, job=None):
     if job is not None:
         job = settle_abandoned(job)
     form = form or LayoutForm(unit=options.unit, garment=block.garment, initial=_initial(job, options.unit))
-    return {"plan": plan, "client": plan.client, "revision": revision, "form": form, "job": job,
+    no_worker = bool(job and job.status == LayoutStatus.QUEUED and timezone.now() - job.created_at > NO_WORKER_AFTER)
+    return {"plan": plan, "client": plan.client, "revision": revision, "form": form, "job": job, "no_worker": no_worker,
             "layers": layer_rows(job_layers(job), options.unit) if job is not None else [],
             "unit": options.unit}
 

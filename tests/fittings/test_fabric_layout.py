@@ -1,6 +1,7 @@
 """The fabric layout of a revision: asking for it, the background search, the page and the work order."""
 
 import re
+from datetime import timedelta
 
 import pytest
 from django.test import override_settings
@@ -97,6 +98,11 @@ def test_it_shows_the_rows_layout_at_once_and_polls_while_the_solver_runs(workro
     assert "rows across the fabric" in fragment and fragment.count('class="fabric-layout"') == 2
     shelf = stored(job.shelf)["fashion"]
     assert format_with_unit(shelf.length_mm, "in") in fragment  # in the plan's unit, inches to 1/16
+
+    assert "No worker has taken this search yet" not in fragment
+    FabricLayout.objects.filter(pk=job.pk).update(created_at=job.created_at - timedelta(minutes=3))
+    late = workroom_client.get(url(inch_revision), headers={"HX-Request": "true"}).content.decode()
+    assert "No worker has taken this search yet" in late and 'hx-trigger="every 1s"' in late
 
     seen = []
     real = layout_services.solve_layers_apart
