@@ -1,11 +1,12 @@
 """The fabric layout of a revision: ask for one, watch the solver, see the drawing and the length."""
 
 from django import forms
+from django.core.exceptions import PermissionDenied
 from django.shortcuts import get_object_or_404, redirect, render
 from django.utils import timezone
 from django.views.decorators.http import require_GET, require_POST
 
-from atelier.roles import ROLES, role_required
+from atelier.roles import ROLES, WORKROOM, role_of, role_required
 from fittings import selectors
 from fittings.fabric import latest_layout, job_layers, layer_rows
 from fittings.models import LayoutStatus, Plan, PlanRevision
@@ -61,9 +62,12 @@ class LayoutForm(forms.Form):
         return cleaned
 
 
-def _revision(pk, number):
+def _revision(request, pk, number):
     plan = get_object_or_404(Plan.objects.select_related("client", "base_pattern"), pk=pk, client__is_deleted=False)
-    return plan, get_object_or_404(PlanRevision.objects.defer("inputs", "result"), plan=plan, number=number)
+    revision = get_object_or_404(PlanRevision.objects.defer("inputs", "result"), plan=plan, number=number)
+    if not revision.is_issued and role_of(request.user) == WORKROOM:
+        raise PermissionDenied("This revision is a draft: the workroom lays out a revision once it is issued.")
+    return plan, revision
 
 
 def _context(plan, revision, form=None, job=None):
@@ -95,7 +99,7 @@ def _initial(job, unit):
 @role_required(*ROLES)
 def fabric_layout(request, pk, number):
     """The layout page; to htmx (the revision page's card, the progress while searching) its fragment only."""
-    plan, revision = _revision(pk, number)
+    plan, revision = _revision(request, pk, number)
     partial = request.htmx and not request.htmx.history_restore_request
     template = "fittings/_fabric_layout_panel.html" if partial else "fittings/fabric_layout.html"
     return render(request, template, _context(plan, revision))
@@ -105,7 +109,7 @@ def fabric_layout(request, pk, number):
 @role_required(*ROLES)
 def fabric_layout_start(request, pk, number):
     """Ask for a layout: the rows layout is stored at once, the solver queued; a bad width or gap is refused."""
-    plan, revision = _revision(pk, number)
+    plan, revision = _revision(request, pk, number)
     _, block, options = selectors.revision_inputs(revision)
     form = LayoutForm(request.POST, unit=options.unit, garment=block.garment)
     if form.is_valid():

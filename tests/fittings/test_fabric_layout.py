@@ -227,3 +227,16 @@ def test_it_shows_the_solver_only_where_it_takes_less_fabric(cm_revision, fitter
     tallest = max(p.height_mm for p in lay.shelf.pieces)
     assert lay.shelf.length_mm == pytest.approx(tallest)
     assert lay.shown.method in (SHELF, SOLVER)
+
+
+def test_it_keeps_the_workroom_to_issued_revisions(workroom_client, demo_atelier, fitter_user):
+    from django.test import Client as BrowserClient
+
+    draft = Plan.objects.get(client__reference="WF-0102").revisions.get(number=2)
+    assert not draft.is_issued
+    assert workroom_client.get(url(draft)).status_code == 403
+    assert post(workroom_client, draft, width_fashion="55", width_lining="55").status_code == 403
+    assert not FabricLayout.objects.exists()
+    fitter = BrowserClient()
+    fitter.force_login(fitter_user)
+    assert fitter.get(url(draft)).status_code == 200
