@@ -16,7 +16,7 @@ from patterns.core.layout import (
     DEFAULT_BUDGET_S, DEFAULT_GAP_MM, DEFAULT_WIDTH_MM, LAYERS, MAX_BUDGET_S, LayerRequest, LayoutError,
     default_layers,
 )
-from patterns.core.units import LengthError, format_length, parse_length
+from patterns.core.units import LengthError, format_length, format_with_unit, parse_length
 
 
 class LayoutForm(forms.Form):
@@ -79,7 +79,9 @@ def _context(plan, revision, form=None, job=None):
     no_worker = bool(job and job.status == LayoutStatus.QUEUED and timezone.now() - job.created_at > NO_WORKER_AFTER)
     return {"plan": plan, "client": plan.client, "revision": revision, "form": form, "job": job, "no_worker": no_worker,
             "layers": layer_rows(job_layers(job), options.unit) if job is not None else [],
-            "unit": options.unit}
+            "unit": options.unit,
+            "best_so_far": (format_with_unit(job.best_length_mm, options.unit)
+                            if job is not None and job.best_length_mm and not job.is_finished else "")}
 
 
 def _initial(job, unit):

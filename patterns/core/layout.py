@@ -409,11 +409,13 @@ def solver_layout(pieces: Sequence[Piece], width_mm: float, gap_mm: float = DEFA
     while worker.is_alive():
         worker.join(tick_s)
         for kind, solution in queue.drain():
-            if any(kind == getattr(spyrrow.ReportType, name) for name in _FEASIBLE):  # lengths of the stand-ins' strip, near enough for a progress line
-                best = solution.width if best is None else min(best, solution.width)
+            if any(kind == getattr(spyrrow.ReportType, name) for name in _FEASIBLE):
+                # The stand-ins' strip, less their growth at both ends: near enough for a progress line.
+                length = solution.width - 2 * grow
+                best = length if best is None else min(best, length)
         if progress is not None:
             elapsed = time.perf_counter() - started
-            progress(Progress(min(elapsed / budget_s, 0.99), best, "searching"))
+            progress(Progress(min(elapsed / seconds, 0.99), best, "searching"))
     if "error" in answer:
         return _fallback(shelf, started, f"The solver stopped ({type(answer['error']).__name__}); rows are shown.")
     layout = _from_solution(answer["solution"], pieces, width_mm, gap_mm, started)

@@ -100,6 +100,10 @@ def test_it_shows_the_rows_layout_at_once_and_polls_while_the_solver_runs(workro
     assert format_with_unit(shelf.length_mm, "in") in fragment  # in the plan's unit, inches to 1/16
 
     assert "No worker has taken this search yet" not in fragment
+    assert "Shortest found so far" not in fragment
+    FabricLayout.objects.filter(pk=job.pk).update(best_length_mm=812.8)
+    fragment = workroom_client.get(url(inch_revision), headers={"HX-Request": "true"}).content.decode()
+    assert "Shortest found so far: about 32 in" in fragment  # 812.8 mm = 32 in exactly
     FabricLayout.objects.filter(pk=job.pk).update(created_at=job.created_at - timedelta(minutes=3))
     late = workroom_client.get(url(inch_revision), headers={"HX-Request": "true"}).content.decode()
     assert "No worker has taken this search yet" in late and 'hx-trigger="every 1s"' in late
