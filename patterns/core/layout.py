@@ -38,6 +38,7 @@ from shapely import affinity
 from shapely.geometry import Polygon
 from shapely.ops import unary_union
 
+from patterns.core.defaults import is_corset
 from patterns.core.units import format_with_unit
 
 Pt = tuple[float, float]
@@ -91,8 +92,6 @@ class LayoutError(ValueError):
 
 
 def default_layers(garment: str) -> tuple[str, ...]:
-    from patterns.core.defaults import is_corset
-
     return CORSET_LAYERS if is_corset(garment) else BODICE_LAYERS
 
 
