@@ -2,7 +2,7 @@
 
     .venv/bin/python tests/bench/bench_layout.py [--budget 10] [--widths 900,1120,1400] [--json FILE]
 
-For each demo block (the corset run's sizes 10 and 14, the bodice) and each
+For each demo block (the corset run's sizes 10 and 14, the bodice, the drawn underbust) and each
 fabric width, in the same run: the rows layout (the floor) and the solver's
 layout within the time budget, their lengths and utilisation (pieces' area
 over width x length used), the solver's relative improvement in
@@ -32,14 +32,15 @@ from patterns.core.layout import (  # noqa: E402
     DEFAULT_GAP_MM, SOLVER, cut_pieces, layout_problems, shelf_layout, solver_layout,
 )
 from patterns.core.outline import alter_block  # noqa: E402
-from patterns.demo import bodice_block, corset_block  # noqa: E402
+from patterns.demo import bodice_block, corset_block, drawn_underbust_block  # noqa: E402
 
 TARGET = 0.10
 
 
 def blocks():
     return {"corset size 10 (6 panels)": corset_block("10"), "corset size 14 (6 panels)": corset_block("14"),
-            "bodice (4 panels, centre front on the fold)": bodice_block()}
+            "bodice (4 panels, centre front on the fold)": bodice_block(),
+            "underbust, drawn (4 panels)": drawn_underbust_block()}
 
 
 def run(budget: int, widths: list[float], gap: float, seed: int) -> list[dict]:

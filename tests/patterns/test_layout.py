@@ -22,7 +22,7 @@ from patterns.core.layout import (
     solve_layers_apart, solver_layout,
 )
 from patterns.core.outline import alter_block
-from patterns.demo import bodice_block, corset_block
+from patterns.demo import bodice_block, corset_block, drawn_underbust_block
 
 GAP = 5.0
 TOL = 0.01
@@ -156,8 +156,8 @@ def test_it_places_the_tallest_pieces_first():
     assert layout.length_mm == pytest.approx(300.0)
 
 
-@pytest.mark.parametrize("block", [corset_block("10"), corset_block("14"), bodice_block()],
-                         ids=["corset-10", "corset-14", "bodice"])
+@pytest.mark.parametrize("block", [corset_block("10"), corset_block("14"), bodice_block(), drawn_underbust_block()],
+                         ids=["corset-10", "corset-14", "bodice", "underbust-drawn"])
 @pytest.mark.parametrize("width", [900.0, 1120.0, 1400.0])
 def test_it_lays_the_demo_pieces_in_rows_keeping_every_rule(block, width):
     pieces = demo_pieces(block)
