@@ -46,12 +46,15 @@ from django.urls import NoReverseMatch, reverse
 from django.utils import timezone
 from shapely.geometry import Polygon
 
+from fittings.fabric import fabric_layout_context, print_layers
 from fittings.previews import altered_for, preview_markers
 from patterns.core.allot import Allotment, PlanOptions
+from patterns.core import layout as layout_core
 from patterns.core.block import Block
 from patterns.core.defaults import is_corset
 from patterns.core.boning import BoningRules
 from patterns.core.lacing import LacingRules
+from patterns.core.layout import layer_label
 from patterns.core.export import notch_segments, sheet_layout
 from fittings.wording import in_unit
 from patterns.core.findings import CAUTION, ERROR, WARNING
@@ -104,8 +107,8 @@ SEVERITY_WORDS = {ERROR: "Problem", WARNING: "Check", CAUTION: "Caution"}
 
 # Layers of fabric cut from each panel (common practice: a corset has an
 # outer fabric, a strength layer and a lining; a bodice an outer and a lining).
-CORSET_LAYERS = ("Outer fabric", "Strength layer", "Lining")
-BODICE_LAYERS = ("Outer fabric", "Lining")
+CORSET_LAYERS = tuple(layer_label(code) for code in layout_core.CORSET_LAYERS)
+BODICE_LAYERS = tuple(layer_label(code) for code in layout_core.BODICE_LAYERS)
 
 
 class DocumentError(ValueError):
@@ -134,6 +137,9 @@ class DocumentData:
     # How this atelier bones and laces (atelier.models.AtelierSettings), read when printing.
     boning_rules: BoningRules = BoningRules()
     lacing_rules: LacingRules = LacingRules()
+    # Per layer, the fabric layout asked for on the revision (fittings.fabric.LayerLayout); empty: rows
+    # on fabric of the default width, worked out when the work order is drawn.
+    fabric_layouts: tuple = ()
 
     @property
     def unit(self) -> str:
@@ -251,6 +257,7 @@ def document_data(revision, base_url: str = "") -> DocumentData:
         result=result,
         boning_rules=workroom.boning_rules(),
         lacing_rules=workroom.lacing_rules(),
+        fabric_layouts=print_layers(revision),
     )
 
 
@@ -463,6 +470,7 @@ def work_order_html(data: DocumentData, paper: str, pattern: AlteredPattern | No
         "lacing_gap": format_with_unit(gap, data.unit) if gap else "",
         "seam_allowance": format_with_unit(data.block.seam_allowance_mm, data.unit),
         **workroom_context(data, pattern),
+        **fabric_layout_context(data, pattern),
     }
     return render_to_string("fittings/print/work_order.html", context)
 

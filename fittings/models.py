@@ -470,3 +470,7 @@ class AuditEntry(models.Model):
 
     def delete(self, *args, **kwargs):
         raise AuditLocked("Audit entries are kept for good; they cannot be deleted.")
+
+
+# Fabric layouts live in their own module; imported here so Django finds the model.
+from fittings.models_layout import FabricLayout, LayoutStatus  # noqa: E402,F401

@@ -38,4 +38,5 @@ urlpatterns = [
     path("photos/<int:pk>/delete/", views.photo_delete, name="photo_delete"),
     path("photos/<int:pk>/replace/", views.photo_replace, name="photo_replace"),
     path("", include("fittings.urls_print")),
+    path("", include("fittings.urls_layout")),
 ]

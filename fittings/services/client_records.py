@@ -18,7 +18,7 @@ from django.utils import timezone
 from atelier.storage import private_storage
 from fittings import audit
 from fittings.models import (
-    AuditEntry, Client, Measurement, MeasurementSession, Photo, PinAdjustment, Plan, PlanRevision, PrintJob,
+    AuditEntry, Client, FabricLayout, Measurement, MeasurementSession, Photo, PinAdjustment, Plan, PlanRevision, PrintJob,
 )
 from patterns.core.measures import MEASURE_BY_CODE
 from patterns.core.units import format_length
@@ -119,6 +119,7 @@ def erase_client(*, reference: str, actor: str) -> Erasure:
         _admin_log_entries(records).delete()
         records.pins.delete()
         records.print_jobs.delete()
+        FabricLayout.objects.filter(revision_id__in=records.revision_ids).delete()
         # Plan revisions refuse deletion through the ORM: they are the atelier's permanent record.
         # Erasing a client on request is the one deliberate exception: a plain queryset (not the
         # model's refusing one) and one raw DELETE, in this transaction only.  Revisions of one

@@ -111,12 +111,15 @@ RULES = {
     # The projector shows the pieces to everyone who may print them.
     "fittings:projector": Rule(lambda w: {"plan_id": w.plan.pk, "number": 1}, READ_ONLY),
     "fittings:projector_pieces": Rule(lambda w: {"plan_id": w.plan.pk, "number": 1}, READ_ONLY),
+    # Fabric layouts: the workroom buys and cuts the fabric, so it may ask for one (the revision is not touched).
+    "fittings:fabric_layout": Rule(REV1, READ_ONLY),
+    "fittings:fabric_layout_start": Rule(REV1, {**POST_ONLY, "POST": all_roles(400)}),
     # Signing in and out.
     "login": Rule(lambda w: {}, {"GET": all_roles(302)}),  # a signed-in member of staff is sent on
     "logout": Rule(lambda w: {}, {"GET": all_roles(405), "POST": all_roles(302)}),
 }
-# Writes the workroom may make: printing, and signing itself out.
-WORKROOM_WRITES = {"fittings:print_start", "logout"}
+# Writes the workroom may make: printing, fabric layouts, and signing itself out.
+WORKROOM_WRITES = {"fittings:print_start", "fittings:fabric_layout_start", "logout"}
 SIGN_IN = {"login", "admin:login"}
 SIGN_OUT = {"logout", "admin:logout"}
 

@@ -166,6 +166,12 @@ def drawing(content, filename="block.svg", **fields):
     return build
 
 
+def layout(**changes):
+    """A fabric layout request for the inch plan: the outer fabric and the lining, 55 in wide."""
+    return lambda w: {"use_fashion": "on", "width_fashion": "55", "use_lining": "on", "width_lining": "55",
+                      "gap": "1/4", "seconds": "1", **changes}
+
+
 def bigger(n):
     return lambda: jpeg_bytes() + b"\x00" * n
 
@@ -307,6 +313,19 @@ CASES = [
     Case("import-channel-beyond-the-panel", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["pattern", "channels"], [{"panel": "Back", "fraction": 2}])), words="pattern › channels › 0 › fraction"),
     Case("import-channel-unknown-edge", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["pattern", "channels"], [{"panel": "Back", "edge": "middle", "offset_mm": 10}])), words="pattern › channels › 0 › edge"),
     Case("import-channel-on-no-panel", "post", u("fittings:fitting_import", CLIENT), fitting(setitem(["pattern", "channels"], [{"panel": "Nowhere", "fraction": 0.5}])), words="names a panel the block does not have"),
+    # --- a fabric layout (the plan is kept in inches) --------------------------------------------
+    Case("layout-width-zero", "post", u("fittings:fabric_layout_start", PLAN, 1), layout(width_fashion="0"), words="more than 0"),
+    Case("layout-width-text", "post", u("fittings:fabric_layout_start", PLAN, 1), layout(width_lining="wide"), words="not a length in inches"),
+    Case("layout-width-negative", "post", u("fittings:fabric_layout_start", PLAN, 1), layout(use_strength="on", width_strength="-55"), words="not a length in inches"),
+    Case("layout-width-narrower-than-a-piece", "post", u("fittings:fabric_layout_start", PLAN, 1), layout(width_fashion="3"), words="wider than the fabric"),
+    Case("layout-width-nan", "post", u("fittings:fabric_layout_start", PLAN, 1), layout(width_fashion="NaN"), words="not a length"),
+    Case("layout-width-absurd", "post", u("fittings:fabric_layout_start", PLAN, 1), layout(width_fashion="99999"), words="not a fabric width"),
+    Case("layout-gap-text", "post", u("fittings:fabric_layout_start", PLAN, 1), layout(gap="some"), words="not a length in inches"),
+    Case("layout-gap-absurd", "post", u("fittings:fabric_layout_start", PLAN, 1), layout(gap="20"), words="between 0 and"),
+    Case("layout-no-layer", "post", u("fittings:fabric_layout_start", PLAN, 1), lambda w: {"gap": "1/4", "seconds": "1"}, words="Choose at least one fabric layer"),
+    Case("layout-seconds-zero", "post", u("fittings:fabric_layout_start", PLAN, 1), layout(seconds="0"), words="greater than or equal to 1"),
+    Case("layout-seconds-text", "post", u("fittings:fabric_layout_start", PLAN, 1), layout(seconds="soon"), words="whole number"),
+    Case("layout-revision-beyond-the-plans", "post", u("fittings:fabric_layout_start", PLAN, 9), layout(), status=404, words="Not found"),
     # --- URL parameters: other clients' objects, ids that do not exist, junk ---------------------
     Case("compare-another-clients-session", "get", q("fittings:compare", lambda w: f"a=s{w.other_client.sessions.get().pk}&b=s{w.session.pk}", CLIENT), words="not in this client"),
     Case("compare-another-clients-revision", "get", q("fittings:compare", lambda w: f"a=r{w.other_plan.revisions.get().pk}&b=r{w.issued.pk}", CLIENT), words="not in this client"),
