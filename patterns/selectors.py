@@ -45,6 +45,9 @@ def block_for(pattern) -> Block:
             bottom_right=Point(float(row.bottom_right_x), float(row.bottom_right_y)),
             cut_count=row.cut_count,
             on_fold=row.on_fold,
+            top_bound=row.top_bound,
+            bottom_bound=row.bottom_bound,
+            grainline_x=None if row.grainline_x is None else float(row.grainline_x),
         ))
     name_at = {row.order: row.name for row in panel_rows}
     seams = tuple(
