@@ -3,8 +3,10 @@
 from django.db import transaction
 
 from patterns.core.block import Block, block_errors
+from patterns.core.fitting import block_to_dict
 from patterns.core.measures import LEVEL_CODES
 from patterns.core.units import quantize_mm
+from patterns.selectors import block_for
 from patterns.models import (
     BasePattern, GarmentKind, PanelLine, PatternLevel, PatternPanel, PatternSeam, SizeRun,
 )
@@ -127,6 +129,19 @@ def _store_parts(pattern: BasePattern, block: Block) -> None:
     )
 
 
+def _rounded(block: Block):
+    """The block as it would be stored (lengths to 1/10 000 mm), for telling an edit from no change."""
+    def walk(value):
+        if isinstance(value, float):
+            return quantize_mm(value)
+        if isinstance(value, dict):
+            return {k: walk(v) for k, v in value.items()}
+        if isinstance(value, (list, tuple)):
+            return [walk(v) for v in value]
+        return value
+    return walk(block_to_dict(block))
+
+
 def is_used(pattern: BasePattern) -> bool:
     """Whether any plan was made from this version (its revisions hold the block as it was)."""
     return pattern.plans.exists()
@@ -146,6 +161,8 @@ def edit_block(pattern: BasePattern, block: Block) -> BasePattern:
         pattern = BasePattern.objects.select_for_update().get(pk=pattern.pk)
         if not pattern.is_active:
             raise BlockInvalid(["This version was replaced by a later one; edit the latest version instead."])
+        if _rounded(block) == _rounded(block_for(pattern)):
+            return pattern  # nothing changed: no new version
         if is_used(pattern):
             return save_block(block, pattern.size_run, previous=pattern)
         errors = _problems(block, pattern.size_run) + _taken(block, pattern.size_run, but=pattern)
@@ -163,3 +180,32 @@ def edit_block(pattern: BasePattern, block: Block) -> BasePattern:
         pattern.seams.all().delete()
         _store_parts(pattern, block)
     return pattern
+
+
+def save_graded_run(*, pattern: BasePattern, run_name: str, graded) -> SizeRun:
+    """A new size run holding ``pattern`` itself and the sizes graded from it (``GradedSize`` list).
+
+    All or nothing: any size with an error, a run name in use, or a pattern
+    that belongs to a run already, and nothing is saved.
+    """
+    errors = []
+    for size in graded:
+        errors += [f.message for f in size.findings if f.severity == "error"]
+    if pattern.size_run_id is not None:
+        errors.append(f"{pattern} belongs to the size run {pattern.size_run.name!r} already.")
+    if not pattern.is_active:
+        errors.append("This version was replaced by a later one; grade the latest version.")
+    if SizeRun.objects.filter(name=run_name).exists():
+        errors.append(f"There is already a size run called {run_name!r}.")
+    if errors:
+        raise BlockInvalid(errors)
+    with transaction.atomic():
+        run = SizeRun.objects.create(name=run_name, garment=pattern.garment)
+        for size in graded:
+            if size.steps == 0:
+                # A pattern plans use keeps its size order: it is part of the block their revisions hold.
+                order = pattern.size_order if is_used(pattern) else size.block.size_order
+                BasePattern.objects.filter(pk=pattern.pk).update(size_run=run, size_order=order)
+            else:
+                save_block(size.block, run)
+    return run
