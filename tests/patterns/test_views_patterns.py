@@ -242,3 +242,95 @@ def test_it_refuses_a_bad_grading_and_saves_nothing(fitter_client, db, changes, 
     response = fitter_client.post(reverse("patterns:pattern_grade", args=[pattern.pk]), data)
     assert response.status_code == 400 and words in response.content.decode()
     assert _counts() == (1, 0)
+
+
+# --- the tape entry ----------------------------------------------------------------------
+
+
+def _tape_answers(block):
+    """What a fitter reads off ``block`` with a tape (upright lines), as the tape form's fields, in cm."""
+    from patterns.core.units import format_cm
+
+    levels = block.levels
+    ys = [lv.y for lv in levels]
+    tops = [block.panels[0].top_left.y] + [p.top_right.y for p in block.panels]
+    bottoms = [block.panels[0].bottom_left.y] + [p.bottom_right.y for p in block.panels]
+    out = {}
+    for k, (top, bottom) in enumerate(zip(tops, bottoms)):
+        lengths = [ys[0] - top, *[b - a for a, b in zip(ys, ys[1:])], bottom - ys[-1]]
+        for li, length in enumerate(lengths):
+            out[f"down{k}_{li}"] = format_cm(length, places=2)
+    for lv in levels:
+        for i, p in enumerate(block.panels):
+            out[f"w_{lv.name}_{i}"] = format_cm(p.width(lv.name), places=2)
+    for j, seam in enumerate(block.seams, start=1):
+        out[f"s{j}_name"], out[f"s{j}_kind"] = seam.name, seam.kind
+        out[f"s{j}_moves"] = [lv.name for lv in levels if lv.name in seam.alterable_at]
+    return out
+
+
+def _card_block():
+    """A three-panel card block, tops and bottoms shared at each seam as on a card pattern."""
+    from patterns.core.drafting import BlockDraft, PanelDraft, SeamDraft, build_block
+
+    panels = (
+        PanelDraft("Front", FRONT, {"waist": 120.0, "hip": 150.0}, top=(0.0, 10.0), bottom=(260.0, 255.0),
+                   top_bound=True, bottom_bound=True),
+        PanelDraft("Side", FRONT, {"waist": 100.0, "hip": 130.0}, top=(10.0, 25.0), bottom=(255.0, 255.0),
+                   top_bound=True, bottom_bound=True),
+        PanelDraft("Back", "back", {"waist": 110.0, "hip": 135.0}, top=(25.0, 15.0), bottom=(255.0, 265.0),
+                   top_bound=True, bottom_bound=True),
+    )
+    seams = (SeamDraft("Front seam", "princess", frozenset({"waist", "hip"})),
+             SeamDraft("Side seam", "side", frozenset({"waist", "hip"})))
+    draft = BlockDraft(name="Card waist cincher", size="12", garment="underbust corset",
+                       levels=(Level("waist", 90.0), Level("hip", 230.0)), panels=panels, seams=seams)
+    return build_block(draft).block
+
+
+def test_it_reads_a_card_pattern_step_by_step_into_the_same_block_as_the_form(fitter_client, db):
+    block = _card_block()
+    url = reverse("patterns:block_measure")
+    assert "Levels marked on the card" in fitter_client.get(url).content.decode()
+    setup = {"unit": "cm", "name": block.name, "size_label": block.size, "garment": block.garment,
+             "centre_front": "busk", "centre_back": "laced", "levels": ["waist", "hip"],
+             "panel_names": "Front\nSide\nBack (back)", "bound": "on", "seam_allowance": "1.5"}
+    answers = _tape_answers(block)
+    data = {**setup, "step": "0"}
+    titles = []
+    for _ in range(6):
+        page = fitter_client.post(url, data)
+        assert page.status_code == 200, page.content.decode()[:3000]
+        text = page.content.decode()
+        titles.append(text.split("<strong>")[1].split("</strong>")[0])
+        if "Save the block" in text:
+            break
+        step = int(text.split('name="step" value="')[1].split('"')[0])
+        shown = [name for name in answers if f'name="{name}"' in text and f'type="hidden" name="{name}"' not in text]
+        data = {**data, **{k: answers[k] for k in shown}, "step": str(step)}
+    assert titles == ["The top edge", "At the waist", "At the hip", "The bottom edge", "The seams", "Check and save"]
+    assert BasePattern.objects.count() == 0
+    saved = fitter_client.post(url, {**data, "step": str(int(text.split('name="step" value="')[1].split('"')[0])), "save": "1"})
+    assert saved.status_code == 302
+    stored = block_for(BasePattern.objects.get(name=block.name))
+    # The same block the form makes from the same panels (widths laid out alike), to 1/100 mm as typed.
+    assert stored.level_names == block.level_names
+    for got, want in zip(stored.panels, block.panels):
+        assert got.name == want.name and got.side == want.side and got.top_bound and got.bottom_bound
+        for lv in block.level_names:
+            assert got.left[lv] == pytest.approx(want.left[lv], abs=0.01)
+            assert got.right[lv] == pytest.approx(want.right[lv], abs=0.01)
+        for corner in ("top_left", "top_right", "bottom_left", "bottom_right"):
+            assert getattr(got, corner).y == pytest.approx(getattr(want, corner).y, abs=0.01)
+    assert [s.alterable_at for s in stored.seams] == [s.alterable_at for s in block.seams]
+
+
+def test_it_asks_a_tape_step_again_when_a_reading_is_wrong(fitter_client, db):
+    url = reverse("patterns:block_measure")
+    data = {"unit": "cm", "name": "Card", "size_label": "12", "garment": "underbust corset", "centre_front": "busk",
+            "centre_back": "laced", "levels": ["waist", "hip"], "panel_names": "Front\nBack (back)",
+            "seam_allowance": "1.5", "step": "1", "down0_0": "2", "down1_0": "lots", "down2_0": "3"}
+    page = fitter_client.post(url, data)
+    text = page.content.decode()
+    assert page.status_code == 400 and "<strong>The top edge</strong>" in text and "not a length" in text
+    assert BasePattern.objects.count() == 0
