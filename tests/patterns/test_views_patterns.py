@@ -334,3 +334,22 @@ def test_it_asks_a_tape_step_again_when_a_reading_is_wrong(fitter_client, db):
     text = page.content.decode()
     assert page.status_code == 400 and "<strong>The top edge</strong>" in text and "not a length" in text
     assert BasePattern.objects.count() == 0
+
+
+def test_it_imports_a_fitting_file_made_on_an_older_version_against_that_version(demo_atelier, fitter_user):
+    import json
+
+    from fittings.models import Client
+    from patterns.services import edit_block
+
+    pattern = BasePattern.objects.get(name__startswith="Overbust", size_label="10")
+    plan = _plan_on(pattern)
+    text = json.dumps(plan.revisions.get(number=1).inputs)
+    before = block_for(pattern)
+    wider = dataclasses.replace(before, panels=tuple(
+        dataclasses.replace(p, right={**p.right, "waist": p.right["waist"] + 5}) if i == 2 else p
+        for i, p in enumerate(before.panels)))
+    new = edit_block(pattern, wider)
+    assert new.pk != pattern.pk
+    imported = plan_services.import_fitting(client=Client.objects.get(reference="WF-0103"), text=text, user=fitter_user)
+    assert imported.base_pattern_id == pattern.pk
