@@ -201,7 +201,9 @@ def block_draw(request):
         context = {"form": form, "missing": missing, "typed_errors": typed, **_drawing_context(drafted)}
         return render(request, "patterns/block_form.html#block-drawing", context)
     status = 200 if drafted is not None and drafted.ok else 400
-    return _block_page(request, form, drafted=drafted, status=status)
+    editing = request.POST.get("editing", "")
+    pattern = BasePattern.objects.filter(pk=int(editing)).first() if editing.isascii() and editing.isdigit() else None
+    return _block_page(request, form, pattern=pattern, drafted=drafted, status=status)
 
 
 # --- reading a card pattern with a tape ----------------------------------------------------------

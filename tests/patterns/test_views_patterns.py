@@ -353,3 +353,14 @@ def test_it_imports_a_fitting_file_made_on_an_older_version_against_that_version
     assert new.pk != pattern.pk
     imported = plan_services.import_fitting(client=Client.objects.get(reference="WF-0103"), text=text, user=fitter_user)
     assert imported.base_pattern_id == pattern.pk
+
+
+def test_it_draws_an_edit_without_javascript_and_keeps_saving_to_the_edit(fitter_client, db):
+    pattern = save_block(_new_block())
+    data = {**block_post(block_for(pattern)), "editing": str(pattern.pk)}
+    page = fitter_client.post(reverse("patterns:block_draw"), data)
+    text = page.content.decode()
+    assert page.status_code == 200 and "<img" in text
+    assert f'action="{reverse("patterns:block_edit", args=[pattern.pk])}"' in text
+    bad = fitter_client.post(reverse("patterns:block_draw"), {**data, "editing": "²"})
+    assert bad.status_code == 200 and f'action="{reverse("patterns:block_new")}"' in bad.content.decode()
