@@ -127,3 +127,16 @@ def graded_rows(block, graded, unit):
          "findings": g.findings}
         for g in graded
     ]
+
+
+def seam_rows(block, unit):
+    """Per seam: its name, kind, the levels where it may move (in words) and its cap, as text."""
+    from patterns.core.measures import LEVEL_LABELS
+    from patterns.core.units import format_with_unit
+
+    return [
+        {"name": s.name, "kind": s.kind,
+         "moves": ", ".join(LEVEL_LABELS.get(lv, lv).lower() for lv in block.level_names if lv in s.alterable_at)
+         or "nowhere", "cap": format_with_unit(s.cap_mm, unit)}
+        for s in block.seams
+    ]

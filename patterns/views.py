@@ -52,7 +52,7 @@ def pattern_detail(request, pk):
     block = selectors.block_for(pattern)
     context = {
         "pattern": pattern, "base_block": block, "can_edit": _can_edit(request.user) and pattern.is_active,
-        "rows": selectors.width_rows(block, "cm"), "versions": selectors.versions_of(pattern),
+        "rows": selectors.width_rows(block, "cm"), "seams": selectors.seam_rows(block, "cm"), "versions": selectors.versions_of(pattern),
         "plans": pattern.plans.count(),
     }
     return render(request, "patterns/pattern_detail.html", context)
