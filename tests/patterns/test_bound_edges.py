@@ -152,3 +152,25 @@ def test_it_puts_a_chosen_grainline_where_it_was_drawn():
     # Widened evenly by 10 mm each side, the grainline keeps its place between the stitch lines.
     wider = alter_block(moved, uniform_alteration(moved, 10.0, 10.0))[1]
     assert wider.grainline[0][0] == pytest.approx(panel.left[mid] - 10 + 0.25 * (panel.width(mid) + 20))
+
+
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+from patterns.core.block import Alteration, PanelShift  # noqa: E402
+
+
+@settings(max_examples=30, deadline=None)
+@given(st.lists(st.tuples(st.floats(-12, 12), st.floats(-12, 12)), min_size=5, max_size=5),
+       st.floats(min_value=0, max_value=25))
+def test_it_never_cuts_beyond_a_bound_edge_whatever_the_shifts(shifts, allowance):
+    block = corset_block("10")
+    alteration = Alteration(shifts={p.name: {lv: PanelShift(*s) for lv, s in zip(block.level_names, shifts)}
+                                    for p in block.panels})
+    for outline in alter_block(block, alteration, seam_allowance_mm=allowance):
+        cut = np.asarray(outline.cutting)
+        left, right = np.asarray(outline.left_line), np.asarray(outline.right_line)
+        centre = Polygon(outline.stitch).centroid.coords[0]
+        assert _signed_outside(cut, right[0], left[0], centre).max() <= 1e-6
+        assert _signed_outside(cut, left[-1], right[-1], centre).max() <= 1e-6
+        assert Polygon(outline.cutting).buffer(1e-6).covers(Polygon(outline.stitch))

@@ -364,3 +364,20 @@ def test_it_draws_an_edit_without_javascript_and_keeps_saving_to_the_edit(fitter
     assert f'action="{reverse("patterns:block_edit", args=[pattern.pk])}"' in text
     bad = fitter_client.post(reverse("patterns:block_draw"), {**data, "editing": "²"})
     assert bad.status_code == 200 and f'action="{reverse("patterns:block_new")}"' in bad.content.decode()
+
+
+def test_it_offers_the_graded_sizes_to_the_size_suggestion_of_a_plan(demo_atelier, fitter_client):
+    from fittings.models import Client
+    from patterns.selectors import active_patterns
+
+    pattern = save_block(_new_block())
+    data = {"run_name": "Underbust run", "sizes": "34, 36, 38, 40, 42", "unit": "cm", "save": "1",
+            **{f"girth_{lv}": "4" for lv in ("bust", "underbust", "waist", "abdomen")}}
+    assert fitter_client.post(reverse("patterns:pattern_grade", args=[pattern.pk]), data).status_code == 302
+    session = Client.objects.get(reference="WF-0103").sessions.first()
+    suggestions = plan_services.suggestions_for_session(session, active_patterns())
+    graded = [s for s in suggestions if s.label.startswith(pattern.name)]
+    assert len(graded) == 5
+    assert "needs the least alteration" in graded[0].reason
+    page = fitter_client.get(reverse("fittings:plan_new", args=[session.pk])).content.decode()
+    assert f"{pattern.name}, size 42" in page
