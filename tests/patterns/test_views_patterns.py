@@ -381,3 +381,16 @@ def test_it_offers_the_graded_sizes_to_the_size_suggestion_of_a_plan(demo_atelie
     assert "needs the least alteration" in graded[0].reason
     page = fitter_client.get(reverse("fittings:plan_new", args=[session.pk])).content.decode()
     assert f"{pattern.name}, size 42" in page
+
+
+def test_it_sends_an_edit_of_a_replaced_version_to_the_latest(demo_atelier, fitter_client):
+    from patterns.services import edit_block
+
+    pattern = BasePattern.objects.get(name__startswith="Overbust", size_label="14")
+    _plan_on(pattern)
+    block = block_for(pattern)
+    new = edit_block(pattern, dataclasses.replace(block, seam_allowance_mm=12.0))
+    response = fitter_client.get(reverse("patterns:block_edit", args=[pattern.pk]))
+    assert response.status_code == 302 and response["Location"] == reverse("patterns:block_edit", args=[new.pk])
+    page = fitter_client.get(reverse("patterns:pattern_detail", args=[pattern.pk])).content.decode()
+    assert "This version was replaced by a later one" in page and "Edit the block" not in page
