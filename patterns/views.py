@@ -130,7 +130,13 @@ def block_new(request):
     if request.method == "POST" and "layout" not in request.POST:
         return _save(request, BlockForm(request.POST, shape=shape), None)
     if request.method == "POST":  # the layout changed: keep what was typed
-        form = BlockForm(initial={**BlockForm.initial_new(shape), **_typed(request.POST)}, shape=shape)
+        initial = BlockForm.initial_new(shape)
+        for key, value in list(initial.items()):
+            # A box left unticked on a panel that was on the page stays unticked.
+            panel = key.split("_", 1)[0]
+            if value is True and f"{panel}_name" in request.POST and key not in request.POST:
+                initial[key] = False
+        form = BlockForm(initial={**initial, **_typed(request.POST)}, shape=shape)
     else:
         form = BlockForm(initial=BlockForm.initial_new(shape), shape=shape)
     return _block_page(request, form)

@@ -394,3 +394,12 @@ def test_it_sends_an_edit_of_a_replaced_version_to_the_latest(demo_atelier, fitt
     assert response.status_code == 302 and response["Location"] == reverse("patterns:block_edit", args=[new.pk])
     page = fitter_client.get(reverse("patterns:pattern_detail", args=[pattern.pk])).content.decode()
     assert "This version was replaced by a later one" in page and "Edit the block" not in page
+
+
+def test_it_keeps_an_unticked_bound_edge_unticked_when_the_layout_changes(fitter_client, db):
+    data = block_post(_new_block(), panel_count="5", layout="1")
+    data.pop("p2_top_bound", None)
+    page = fitter_client.post(reverse("patterns:block_new"), data).content.decode()
+    assert 'name="p2_top_bound" id="id_p2_top_bound" checked' not in page
+    assert 'name="p2_top_bound"' in page
+    assert 'name="p5_top_bound" id="id_p5_top_bound" checked' in page
