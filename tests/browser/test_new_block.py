@@ -81,7 +81,7 @@ def test_it_types_a_new_block_plans_on_it_and_prints_it(tablet, live_server, dem
 
     # Printed: issued and drawn.
     page.goto(f"{live_server.url}/plans/{revision.plan_id}/revisions/1/")
-    page.tap("text=Print work order and cutting sheet")
+    page.tap("a:has-text('Issue and print')")
     page.tap("button:has-text('Issue and print')")
     page.wait_for_selector("text=Download the cutting sheet (PDF)", timeout=120_000)
     page.snap("printed")
