@@ -19,7 +19,7 @@ import math
 from dataclasses import dataclass, field, replace
 
 from patterns.core.allot import EVEN, Allotment, Body, PlanOptions, allot
-from patterns.core.block import Block, Level, Panel, Point, block_errors
+from patterns.core.block import Block, Level, Point, block_errors
 from patterns.core.findings import ERROR, WARNING, Finding
 from patterns.core.measures import LEVEL_LABELS
 from patterns.core.outline import Pchip, band_map

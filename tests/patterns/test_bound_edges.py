@@ -86,7 +86,7 @@ def test_it_keeps_the_side_allowance_beside_a_bound_edge():
     block = corset_block("10")
     sa = block.seam_allowance_mm
     for outline in base_outlines(block):
-        left, right = np.asarray(outline.left_line), np.asarray(outline.right_line)
+        left = np.asarray(outline.left_line)
         y = 0.5 * (left[0, 1] + left[-1, 1])
         across = LineString([(-1000, y), (5000, y)])
         cut_w = across.intersection(Polygon(outline.cutting)).length

@@ -5,7 +5,6 @@ import dataclasses
 import pytest
 from django.urls import reverse
 
-from fittings.models import Plan
 from fittings.services import plans as plan_services
 from patterns import demo
 from patterns.core.block import FRONT, Level
