@@ -12,7 +12,7 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import reverse
 from django.views.decorators.http import require_GET, require_POST
 
-from atelier.roles import FITTER, OWNER, ROLES, role_of, role_required
+from atelier.roles import EDITORS, ROLES, role_of, role_required
 from patterns import selectors, services
 from patterns.core.drafting import build_block, draft_from_block, draft_from_tape
 from patterns.core.fitting import block_to_dict
@@ -22,7 +22,6 @@ from patterns.core.preview import block_svg, markers_from_findings
 from patterns.forms import BlockForm, GradeForm, Shape, ShapeFields, TapeForm, TapeSetupForm
 from patterns.models import BasePattern
 
-EDITORS = (OWNER, FITTER)
 DRAWING_SECONDS = 24 * 3600
 _KEY = re.compile(r"^[0-9a-f]{64}$")
 

@@ -174,3 +174,24 @@ def test_it_never_cuts_beyond_a_bound_edge_whatever_the_shifts(shifts, allowance
         assert _signed_outside(cut, right[0], left[0], centre).max() <= 1e-6
         assert _signed_outside(cut, left[-1], right[-1], centre).max() <= 1e-6
         assert Polygon(outline.cutting).buffer(1e-6).covers(Polygon(outline.stitch))
+
+
+def test_it_cuts_a_drawn_curved_top_edge_along_the_drawn_line_when_bound():
+    from patterns.demo import drawn_underbust_block
+
+    drawn = drawn_underbust_block()
+    block = _bound(drawn, top=True, bottom=False)
+    sa = block.seam_allowance_mm
+    for outline, panel in zip(base_outlines(block), block.panels):
+        top = np.asarray(panel.curves.top)
+        assert len(top) > 2  # a drawn curve, not a straight edge
+        boundary = Polygon(outline.cutting).exterior
+        # Every point of the drawn top edge lies on the cutting line ...
+        assert max(boundary.distance(ShapelyPoint(*p)) for p in top) <= 0.01
+        # ... and the cut reaches no higher than the drawn edge anywhere along it.
+        for x, y in top[1:-1]:
+            assert _cut_top_at(outline, x) >= y - 0.01
+        # The bottom, not bound, keeps its allowance.
+        left, right = np.asarray(outline.left_line), np.asarray(outline.right_line)
+        xb = 0.5 * (left[-1, 0] + right[-1, 0])
+        assert _cut_bottom_at(outline, xb) - _stitch_bottom_at(outline, xb) >= sa - 0.01

@@ -221,7 +221,8 @@ def test_it_grades_a_size_run_and_the_size_suggestion_uses_it(demo_atelier, fitt
     for size, steps in (("34", -2), ("40", 1)):
         assert members[size].girth("waist") - base.girth("waist") == pytest.approx(40.0 * steps, abs=0.2)
     # The size suggestion ranks the run's sizes: a client 4 cm bigger than size 38 everywhere is closest to 40.
-    from patterns.core.allot import Body, PlanOptions, suggest_size
+    from patterns.core.allot import Body, PlanOptions
+    from patterns.core.sizing import suggest_size
     body = Body(girths={lv: members["40"].girth(lv) for lv in members["40"].level_names})
     best = suggest_size(list(members.values()), body, PlanOptions(ease={}, lacing_gap_mm=0.0))[0]
     assert best.block.size == "40"
@@ -374,7 +375,8 @@ def test_it_offers_the_graded_sizes_to_the_size_suggestion_of_a_plan(demo_atelie
             **{f"girth_{lv}": "4" for lv in ("bust", "underbust", "waist", "abdomen")}}
     assert fitter_client.post(reverse("patterns:pattern_grade", args=[pattern.pk]), data).status_code == 302
     session = Client.objects.get(reference="WF-0103").sessions.first()
-    suggestions = plan_services.suggestions_for_session(session, active_patterns())
+    from fittings.selectors import suggestions_for_session
+    suggestions = suggestions_for_session(session, active_patterns())
     graded = [s for s in suggestions if s.label.startswith(pattern.name)]
     assert len(graded) == 5
     assert "needs the least alteration" in graded[0].reason
