@@ -72,7 +72,8 @@ _CORSET_Y10 = {"bust": 60.0, "underbust": 150.0, "waist": 250.0, "abdomen": 340.
 
 
 def _panels(level_widths: dict[str, list[float]], levels: tuple[Level, ...], *, cf_fold: bool,
-            top: list[float], bottom: list[float], names, gap: float = 50.0) -> tuple[Panel, ...]:
+            top: list[float], bottom: list[float], names, gap: float = 50.0,
+            bound: bool = False) -> tuple[Panel, ...]:
     """Lay the panels out side by side: straight centre front, straight centre back,
     the others symmetric about their grainline."""
     count = len(names)
@@ -97,6 +98,7 @@ def _panels(level_widths: dict[str, list[float]], levels: tuple[Level, ...], *, 
             bottom_left=Point(left[last], bottom[i]), bottom_right=Point(right[last], bottom[i + 1] if i + 1 < count else bottom[i]),
             cut_count=1 if (i == 0 and cf_fold) else 2,
             on_fold=(i == 0 and cf_fold),
+            top_bound=bound, bottom_bound=bound,
         ))
         origin += widest[i] + gap
     return tuple(panels)
@@ -124,7 +126,8 @@ def corset_block(size: str) -> Block:
     top = [0.0, 5.0, 30.0, 45.0, 35.0, 20.0, 20.0]
     # Bottom edge: every panel reaches below the hip line, a little higher over the hip bone.
     bottom = [hip_y + 20, hip_y + 15, hip_y + 10, hip_y + 10, hip_y + 15, hip_y + 20, hip_y + 20]
-    panels = _panels(widths, levels, cf_fold=False, top=top, bottom=bottom, names=_CORSET_PANELS)
+    # Bound at top and bottom, as corsets usually are (common practice): no seam allowance there.
+    panels = _panels(widths, levels, cf_fold=False, top=top, bottom=bottom, names=_CORSET_PANELS, bound=True)
     seams = tuple(
         Seam(name=name, kind=kind, front_panel=a.name, back_panel=b.name, alterable_at=at, cap_mm=15.0)
         for (name, kind, at), a, b in zip(_CORSET_SEAMS, panels, panels[1:])

@@ -81,6 +81,12 @@ class BasePattern(models.Model):
         default=True, help_text="Inactive patterns stay for the plans made from them but are not offered for new ones.",
     )
     created_at = models.DateTimeField(auto_now_add=True)
+    # Editing a block that plans use makes a new version; the plans keep the one they were made from.
+    version = models.PositiveIntegerField(default=1, help_text="1 for a new block, one more at every edit that plans already used.")
+    previous = models.ForeignKey(
+        "self", models.PROTECT, null=True, blank=True, related_name="later_versions",
+        help_text="The version this one was edited from.",
+    )
 
     class Meta:
         ordering = ["name", "size_order", "size_label"]
@@ -88,7 +94,10 @@ class BasePattern(models.Model):
             models.UniqueConstraint(
                 fields=["name", "size_label"], condition=Q(is_active=True), name="pattern_active_name_size_unique",
             ),
-            models.UniqueConstraint(fields=["size_run", "size_label"], name="pattern_size_in_run_unique"),
+            models.UniqueConstraint(
+                fields=["size_run", "size_label"], condition=Q(is_active=True), name="pattern_active_size_in_run_unique",
+            ),
+            models.CheckConstraint(condition=Q(version__gte=1), name="pattern_version_from_one"),
             models.CheckConstraint(condition=Q(seam_allowance_mm__gte=0), name="pattern_seam_allowance_not_negative"),
             models.CheckConstraint(condition=Q(garment__in=GarmentKind.values), name="pattern_garment_known"),
             models.CheckConstraint(condition=Q(centre_front__in=CentreFront.values), name="pattern_centre_front_known"),
@@ -131,6 +140,9 @@ class PatternPanel(models.Model):
     side = models.CharField(max_length=10, choices=PanelSide.choices)
     cut_count = models.PositiveSmallIntegerField(default=2, help_text="Pieces to cut per garment.")
     on_fold = models.BooleanField(default=False)
+    top_bound = models.BooleanField(default=False, help_text="The top edge is bound: no seam allowance there.")
+    bottom_bound = models.BooleanField(default=False, help_text="The bottom edge is bound: no seam allowance there.")
+    grainline_x = mm_field(null=True, blank=True, help_text="Where the grainline runs; empty for the middle of the panel.")
     top_left_x = mm_field()
     top_left_y = mm_field()
     top_right_x = mm_field()

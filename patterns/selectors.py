@@ -45,6 +45,9 @@ def block_for(pattern) -> Block:
             bottom_right=Point(float(row.bottom_right_x), float(row.bottom_right_y)),
             cut_count=row.cut_count,
             on_fold=row.on_fold,
+            top_bound=row.top_bound,
+            bottom_bound=row.bottom_bound,
+            grainline_x=None if row.grainline_x is None else float(row.grainline_x),
         ))
     name_at = {row.order: row.name for row in panel_rows}
     seams = tuple(
@@ -70,3 +73,70 @@ def block_for(pattern) -> Block:
         seam_allowance_mm=float(pattern.seam_allowance_mm),
         size_order=pattern.size_order,
     )
+
+
+def patterns_by_run():
+    """(runs, patterns in no run): each run with its active sizes, smallest first."""
+    from patterns.models import SizeRun
+
+    patterns = list(active_patterns().order_by("size_order", "size_label"))
+    runs = {run.pk: {"run": run, "patterns": []} for run in SizeRun.objects.order_by("name")}
+    singles = []
+    for pattern in patterns:
+        if pattern.size_run_id in runs:
+            runs[pattern.size_run_id]["patterns"].append(pattern)
+        else:
+            singles.append(pattern)
+    singles.sort(key=lambda p: (p.name, p.size_order, p.size_label))
+    return [r for r in runs.values() if r["patterns"]], singles
+
+
+def versions_of(pattern):
+    """Every version of this block, oldest first (following the links both ways)."""
+    first = pattern
+    while first.previous_id is not None:
+        first = BasePattern.objects.get(pk=first.previous_id)
+    chain = [first]
+    while True:
+        later = BasePattern.objects.filter(previous=chain[-1]).order_by("version").first()
+        if later is None or len(chain) > 200:
+            break
+        chain.append(later)
+    return chain
+
+
+def width_rows(block, unit):
+    """Per level: its height and each panel's width, as text in ``unit``, and the half girth."""
+    from patterns.core.measures import LEVEL_LABELS
+    from patterns.core.units import format_length
+
+    return [
+        {"level": LEVEL_LABELS.get(lv.name, lv.name), "y": format_length(lv.y, unit),
+         "widths": [format_length(p.width(lv.name), unit) for p in block.panels],
+         "girth": format_length(block.girth(lv.name), unit)}
+        for lv in block.levels
+    ]
+
+
+def graded_rows(block, graded, unit):
+    """Per graded size: its girth at every level, as text, and its findings."""
+    from patterns.core.units import format_length
+
+    return [
+        {"size": g.size, "steps": g.steps, "girths": [format_length(g.block.girth(lv), unit) for lv in block.level_names],
+         "findings": g.findings}
+        for g in graded
+    ]
+
+
+def seam_rows(block, unit):
+    """Per seam: its name, kind, the levels where it may move (in words) and its cap, as text."""
+    from patterns.core.measures import LEVEL_LABELS
+    from patterns.core.units import format_with_unit
+
+    return [
+        {"name": s.name, "kind": s.kind,
+         "moves": ", ".join(LEVEL_LABELS.get(lv, lv).lower() for lv in block.level_names if lv in s.alterable_at)
+         or "nowhere", "cap": format_with_unit(s.cap_mm, unit)}
+        for s in block.seams
+    ]

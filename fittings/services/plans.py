@@ -163,11 +163,14 @@ def import_fitting(*, client, text: str, user, garment: str = "") -> Plan:
         values, block, options = load_fitting_text(text)
     except FittingFileError as exc:
         raise ImportRefused(exc.field, exc.message) from exc
-    pattern = BasePattern.objects.filter(name=block.name, size_label=block.size).first()
-    if pattern is None:
+    # Every version of the block with this name and size, the one offered for new plans first: a file
+    # made on an older version is taken against that version, as its plans are.
+    candidates = list(BasePattern.objects.filter(name=block.name, size_label=block.size).order_by("-is_active", "-version"))
+    if not candidates:
         raise ImportRefused("pattern", f"This atelier has no base pattern “{block.name}”, size {block.size}.")
-    stored = block_for(pattern)
-    if stored != block and block_for_unit(stored, options.unit) != block:
+    pattern = next((c for c in candidates
+                    if (stored := block_for(c)) == block or block_for_unit(stored, options.unit) == block), None)
+    if pattern is None:
         raise ImportRefused("pattern", f"The file's “{block.name}”, size {block.size}, differs from the atelier's; "
                                        "import refused so that no plan is made against the wrong shapes.")
     session = MeasurementSession.objects.create(client=client, measured_by=user, taken_on=tz.localdate(), kind="check",

@@ -76,6 +76,13 @@ class Panel:
     # The imported stitch line, when the panel came from a drawing; None for a
     # panel known only by its corners and level points.
     curves: PanelCurves | None = None
+    # A bound edge is finished with binding, so its cutting line is its stitch line
+    # (no seam allowance there).  Common practice: corsets are usually bound at top and bottom.
+    top_bound: bool = False
+    bottom_bound: bool = False
+    # Where the grainline runs (x on the base pattern, parallel to centre front); None puts
+    # it through the middle of the panel at its middle level.
+    grainline_x: float | None = None
 
     def width(self, level: str) -> float:
         return self.right[level] - self.left[level]

@@ -86,6 +86,8 @@ def block_from_dict(data: dict) -> Block:
                 bottom_left=point(p["bottom_left"]), bottom_right=point(p["bottom_right"]),
                 cut_count=int(p.get("cut_count", 2)), on_fold=bool(p.get("on_fold", False)),
                 curves=curves_from_dict(p["curves"]) if p.get("curves") else None,
+                top_bound=bool(p.get("top_bound", False)), bottom_bound=bool(p.get("bottom_bound", False)),
+                grainline_x=None if p.get("grainline_x") is None else float(p["grainline_x"]),
             )
             for p in data["panels"]
         ),

@@ -512,13 +512,18 @@ def block_from_drawing(drawing: Drawing, options: ImportOptions = ImportOptions(
         raise BlockImportError("The drawing has no closed outline: draw each piece's stitch line as one closed line.")
 
     polygons = [_ring_polygon(r) for r in rings]
-    # An outline holding another is a cutting line round a stitch line: keep the inner one.
+    # An outline holding another is a cutting line round a stitch line: keep the inner one.  Along a
+    # bound edge the cutting line is the stitch line itself, so "holding" allows the two to touch
+    # (within a hundredth of a millimetre, what a drawing file's numbers keep).
+    holders = [poly.buffer(0.01) for poly in polygons]
     inner = [i for i, poly in enumerate(polygons)
-             if not any(j != i and poly.contains(polygons[j]) for j in range(len(polygons)))]
+             if not any(j != i and holders[i].contains(polygons[j]) and poly.area > polygons[j].area
+                        for j in range(len(polygons)))]
     pieces = [_Piece(rings[i].points, polygons[i], rings[i].where) for i in inner]
     for pc in pieces:
         # Texts between a stitch line and the cutting line round it belong to the piece too.
-        around = [poly for poly in polygons if poly is not pc.polygon and poly.contains(pc.polygon)]
+        around = [poly for poly, holder in zip(polygons, holders)
+                  if poly is not pc.polygon and holder.contains(pc.polygon) and poly.area > pc.polygon.area]
         pc.label_area = min(around, key=lambda poly: poly.area) if around else pc.polygon
     for a in range(len(pieces)):
         for b in range(a + 1, len(pieces)):

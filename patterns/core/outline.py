@@ -360,13 +360,68 @@ def _largest(geom) -> Polygon:
     return geom
 
 
-def _cutting(stitch: Polygon, allowance: float, fold_x: float | None) -> Polygon:
-    """Stitch polygon grown by the allowance; a fold edge gets none, since the fold is the edge."""
+def _cutting(stitch: Polygon, allowance: float, fold_x: float | None, bound: tuple[np.ndarray, ...] = ()) -> Polygon:
+    """Stitch polygon grown by the allowance; a fold edge gets none, since the fold is the edge.
+
+    ``bound`` lists the top or bottom edges (each a polyline from its left corner to its
+    right corner, straight or drawn) that are finished with binding: the allowance beyond
+    each is cut away along the edge itself, so there the cutting line is the stitch line,
+    continued along the edge's end directions to meet the side seams' allowances.
+    """
     cut = _largest(stitch.buffer(allowance, join_style="mitre", mitre_limit=MITRE_LIMIT))
+    if allowance > 0:
+        for line in bound:
+            beyond = _beyond(stitch, np.asarray(line, dtype=float), allowance)
+            if not beyond.is_empty:
+                cut = _largest(cut.difference(beyond))
     if fold_x is not None:
         minx, miny, maxx, maxy = cut.bounds
         cut = _largest(cut.intersection(box(fold_x, miny - 1, maxx + 1, maxy + 1)))
     return cut
+
+
+def _beyond(stitch: Polygon, line: np.ndarray, allowance: float) -> Polygon:
+    """The band outside an edge (on the side away from the panel), reaching past the mitred
+    corners of the allowance, so cutting it away leaves the edge's own line."""
+    keep = np.concatenate([[True], np.hypot(*np.diff(line, axis=0).T) > _EPS])
+    line = line[keep]
+    if len(line) < 2:
+        return Polygon()
+    reach = allowance * (MITRE_LIMIT + 1) + 1.0
+    if len(line) == 2:
+        return _beyond_straight(stitch, line[0], line[1], reach)
+    t0 = (line[1] - line[0]) / np.linalg.norm(line[1] - line[0])
+    t1 = (line[-1] - line[-2]) / np.linalg.norm(line[-1] - line[-2])
+    extended = np.concatenate([[line[0] - t0 * reach], line, [line[-1] + t1 * reach]])
+    # Which side is outside: a point just off the middle of the edge, away from the panel.
+    i = len(line) // 2
+    a, b = (line[i - 1], line[i]) if i > 0 else (line[0], line[1])
+    t = (b - a) / np.linalg.norm(b - a)
+    normal = np.array([-t[1], t[0]])
+    probe = 0.5 * (a + b) + normal * min(0.5, allowance / 4)
+    side = 1.0 if not stitch.contains(shapely.Point(*probe)) else -1.0
+    offset = LineString(extended).offset_curve(side * reach, join_style="mitre", mitre_limit=MITRE_LIMIT)
+    if offset.geom_type != "LineString" or offset.is_empty:
+        # A drawn edge too tightly curved to offset this far: cut along its chord instead.
+        return _beyond_straight(stitch, line[0], line[-1], reach)
+    band = Polygon(np.concatenate([extended, np.asarray(offset.coords)[::-1]]))
+    return band if band.is_valid else _largest(band.buffer(0))
+
+
+def _beyond_straight(stitch: Polygon, a, b, reach: float) -> Polygon:
+    """The band of depth ``reach`` outside the straight edge a-b, reaching ``reach`` past both ends."""
+    (ax, ay), (bx, by) = a, b
+    length = math.hypot(bx - ax, by - ay)
+    if length <= _EPS:
+        return Polygon()
+    tx, ty = (bx - ax) / length, (by - ay) / length
+    nx, ny = -ty, tx
+    c = stitch.centroid
+    if nx * (0.5 * (ax + bx) - c.x) + ny * (0.5 * (ay + by) - c.y) < 0:
+        nx, ny = -nx, -ny
+    a0 = (ax - tx * reach, ay - ty * reach)
+    b0 = (bx + tx * reach, by + ty * reach)
+    return Polygon([a0, b0, (b0[0] + nx * reach, b0[1] + ny * reach), (a0[0] + nx * reach, a0[1] + ny * reach)])
 
 
 def _grainline(stitch: Polygon, x: float) -> tuple[Pt, Pt]:
@@ -411,7 +466,12 @@ def _outline(block, panel, alteration, to_altered, allowance, step) -> tuple[Pan
         ring = np.concatenate([left, bottom[1:-1], right[::-1], top[-2:0:-1]])
     stitch = Polygon(ring)
     fold_x = float(left[:, 0].min()) if panel.on_fold else None
-    cutting = _cutting(stitch, allowance, fold_x)
+    bound = []
+    if panel.top_bound:
+        bound.append(np.array([left[0], right[0]]) if panel.curves is None else top)
+    if panel.bottom_bound:
+        bound.append(np.array([left[-1], right[-1]]) if panel.curves is None else bottom)
+    cutting = _cutting(stitch, allowance, fold_x, tuple(bound))
 
     notches = []
     for edge, e in edges.items():
@@ -427,7 +487,12 @@ def _outline(block, panel, alteration, to_altered, allowance, step) -> tuple[Pan
     levels_here = [lv for lv in block.level_names if lv in edges[LEFT].level_index and lv in edges[RIGHT].level_index]
     if levels_here:
         mid = levels_here[len(levels_here) // 2]
-        x_mid = 0.5 * (left[edges[LEFT].level_index[mid], 0] + right[edges[RIGHT].level_index[mid], 0])
+        xl, xr = left[edges[LEFT].level_index[mid], 0], right[edges[RIGHT].level_index[mid], 0]
+        x_mid = 0.5 * (xl + xr)
+        base_width = panel.width(mid)
+        if panel.grainline_x is not None and base_width > 0:
+            # The same place between the stitch lines as on the base pattern.
+            x_mid = xl + (panel.grainline_x - panel.left[mid]) / base_width * (xr - xl)
     else:
         x_mid = 0.5 * (left[:, 0].mean() + right[:, 0].mean())
     if panel.curves is not None and panel.curves.grainline is not None:

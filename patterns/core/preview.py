@@ -306,3 +306,64 @@ def _labels_svg(fig: Figure, labels: Sequence[Label]) -> str:
     out.append(" </g>\n")
     return "".join(out)
 
+
+
+CUTTING_COLOUR = OKABE_ITO["bluish_green"]
+
+
+def block_svg(block: Block, markers: Sequence[Marker] = ()) -> str:
+    """A base pattern as drawn while it is typed in: stitch lines solid, cutting lines dashed
+    (they meet the stitch line along a bound edge or a fold), levels, grainlines and names.
+    The same input gives the same bytes."""
+    pattern = alter_pattern(block, Alteration(shifts={}))
+    stitch = _segments(pattern.base)
+    cutting = [np.asarray(o.cutting + o.cutting[:1]) for o in pattern.base]
+    every = np.concatenate(stitch + cutting)
+    level_names = {name: LEVEL_LABELS.get(name, name) for name in pattern.level_y}
+    room = max(map(len, level_names.values()), default=0) * _EM * LABEL_FONT_PT / 72 * MM_PER_FIGURE_INCH
+    x0 = float(every[:, 0].min()) - room - MARGIN_MM
+    x1 = float(every[:, 0].max()) + MARGIN_MM
+    y0 = float(every[:, 1].min()) - LEGEND_ROOM_MM
+    y1 = float(every[:, 1].max()) + MARGIN_MM
+    width_in = max(MIN_WIDTH_IN, (x1 - x0) / MM_PER_FIGURE_INCH)
+    buf = io.BytesIO()
+    with _RC_LOCK, matplotlib.rc_context(_RC):
+        fig = Figure(figsize=(width_in, width_in * (y1 - y0) / (x1 - x0)))
+        ax = fig.add_axes((0, 0, 1, 1))
+        ax.set_axis_off()
+        ax.set_xlim(x0, x1)
+        ax.set_ylim(y1, y0)
+        ax.set_aspect("equal")
+        row = y0 + 8
+        legend_stitch = np.array([[x0 + 3, row], [x0 + 23, row]])
+        legend_cut = np.array([[x0 + 3, row + 12], [x0 + 23, row + 12]])
+        ax.add_collection(LineCollection(cutting + [legend_cut], colors=CUTTING_COLOUR, linewidths=1.0,
+                                         linestyles=(0, (4, 2.5))))
+        ax.add_collection(LineCollection(stitch + [legend_stitch], colors=ALTERED_COLOUR, linewidths=1.8))
+        grains = [np.asarray(o.grainline) for o in pattern.base]
+        ax.add_collection(LineCollection(grains, colors=TEXT_COLOUR, linewidths=0.8))
+        level_lines = [np.array([[x0 + 2, y], [x1 - 2, y]]) for y in pattern.level_y.values()]
+        ax.add_collection(LineCollection(level_lines, colors=LEVEL_COLOUR, linewidths=0.8, linestyles=(0, (1, 2))))
+        labels = [
+            Label(x0 + 26, row, "stitch line", LABEL_FONT_PT, va="center"),
+            Label(x0 + 26, row + 12, f"cutting line ({block.seam_allowance_mm / 10:g} cm seam allowance; none along "
+                                     "a bound edge or a fold)", LABEL_FONT_PT, va="center"),
+        ]
+        for name, y in pattern.level_y.items():
+            labels.append(Label(x0 + 3, y - 1.5, level_names[name], LABEL_FONT_PT, va="bottom"))
+        for outline, panel in zip(pattern.base, block.panels):
+            top = min(y for _, y in outline.cutting)
+            centre = 0.5 * (outline.left_line[0][0] + outline.right_line[0][0])
+            labels.append(Label(centre, top - 3, outline.name, LABEL_FONT_PT, ha="center", va="bottom", bold=True))
+            bound = [edge for edge, on in (("top", panel.top_bound), ("bottom", panel.bottom_bound)) if on]
+            (gx, gy0), (_, gy1) = outline.grainline
+            middle = 0.5 * (gy0 + gy1)
+            labels.append(Label(gx + 2, middle - 2, outline.labels[-1], SHIFT_FONT_PT, va="bottom"))
+            if bound:
+                labels.append(Label(gx + 2, middle + 2, "bound " + ", ".join(bound), SHIFT_FONT_PT, va="top"))
+        _draw_markers(ax, pattern, markers)
+        FigureCanvasSVG(fig).print_svg(buf, metadata={"Date": None})
+    svg = buf.getvalue().decode("utf-8")
+    at = svg.find(f'<g id="{_MARKER_ID}')
+    at = svg.rindex("</svg>") if at < 0 else at
+    return svg[:at] + _labels_svg(fig, labels) + svg[at:]

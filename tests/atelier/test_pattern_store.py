@@ -100,8 +100,13 @@ def test_it_refuses_a_size_run_of_another_garment():
 
 
 def test_it_keeps_one_active_pattern_per_name_and_size(bodice_pattern):
-    with pytest.raises(IntegrityError), transaction.atomic():
+    # The service says so in words before the database would refuse it ...
+    with pytest.raises(BlockInvalid, match="already a base pattern"):
         save_block(demo.bodice_block())
+    # ... and the database refuses it too.
+    with pytest.raises(IntegrityError), transaction.atomic():
+        BasePattern.objects.create(name=bodice_pattern.name, size_label=bodice_pattern.size_label,
+                                   garment=bodice_pattern.garment)
     BasePattern.objects.filter(pk=bodice_pattern.pk).update(is_active=False)
     assert save_block(demo.bodice_block()).is_active
 

@@ -194,7 +194,14 @@ def test_widths_follow_the_levels_after_a_band_change():
 # --- seam allowance -------------------------------------------------------------------
 
 
-@pytest.mark.parametrize("block", [corset_block("10"), corset_block("6"), bodice_block()], ids=["c10", "c6", "bodice"])
+def _unbound(block):
+    """The block with every edge taking a seam allowance (the demo corset is bound at top and bottom)."""
+    return dataclasses.replace(block, panels=tuple(
+        dataclasses.replace(p, top_bound=False, bottom_bound=False) for p in block.panels))
+
+
+@pytest.mark.parametrize("block", [_unbound(corset_block("10")), _unbound(corset_block("6")), bodice_block()],
+                         ids=["c10", "c6", "bodice"])
 @pytest.mark.parametrize("allowance", [None, 10.0])  # block's 15 mm (corsetry, common practice); 1 cm industry
 def test_cutting_line_is_the_allowance_away_from_the_stitch_line(block, allowance):
     alteration = _at_waist(block, -8.0)

@@ -60,6 +60,7 @@ C = lambda w: {"pk": w.client.pk}  # noqa: E731
 CP = lambda w: {"client_pk": w.client.pk}  # noqa: E731
 PLAN = lambda w: {"pk": w.plan.pk}  # noqa: E731
 REV1 = lambda w: {"pk": w.plan.pk, "number": 1}  # noqa: E731
+PATTERN = lambda w: {"pk": w.plan.base_pattern_id}  # noqa: E731
 
 RULES = {
     # The workroom is sent to its queue of issued revisions: names, contacts and drafts are for fitters.
@@ -114,6 +115,17 @@ RULES = {
     # Fabric layouts: the workroom buys and cuts the fabric, so it may ask for one (the revision is not touched).
     "fittings:fabric_layout": Rule(REV1, READ_ONLY),
     "fittings:fabric_layout_start": Rule(REV1, {**POST_ONLY, "POST": all_roles(400)}),
+    # Base patterns: everyone reads them; the owner and fitters type, edit and grade them.
+    "patterns:pattern_list": Rule(lambda w: {}, READ),
+    "patterns:pattern_detail": Rule(PATTERN, READ),
+    "patterns:pattern_drawing": Rule(PATTERN, READ_ONLY),
+    "patterns:block_new": Rule(lambda w: {}, EDIT_PAGE),
+    "patterns:block_draw": Rule(lambda w: {}, {**POST_ONLY, "POST": editors(400)}),
+    # A drawing made for the live form, found by its hash (none under this one).
+    "patterns:block_drawing": Rule(lambda w: {"key": "0" * 64}, {"GET": editors(404), "POST": all_roles(405)}),
+    "patterns:block_measure": Rule(lambda w: {}, EDIT_PAGE),
+    "patterns:block_edit": Rule(PATTERN, EDIT_PAGE),
+    "patterns:pattern_grade": Rule(PATTERN, EDIT_PAGE),
     # Signing in and out.
     "login": Rule(lambda w: {}, {"GET": all_roles(302)}),  # a signed-in member of staff is sent on
     "logout": Rule(lambda w: {}, {"GET": all_roles(405), "POST": all_roles(302)}),

@@ -176,6 +176,49 @@ def bigger(n):
     return lambda: jpeg_bytes() + b"\x00" * n
 
 
+def block(**changes):
+    """The block form filled in for an invented block, with changes."""
+    def build(w):
+        import dataclasses
+
+        from patterns.demo import bodice_block
+        from tests.patterns.block_post import block_post
+
+        return block_post(dataclasses.replace(bodice_block(), name="Bad-input bodice", size="40"), **changes)
+    return build
+
+
+def edit_block(**changes):
+    """The block form for the world's plan's (used) pattern, with changes."""
+    def build(w):
+        from patterns.selectors import block_for
+        from tests.patterns.block_post import block_post
+
+        return block_post(block_for(w.plan.base_pattern), **changes)
+    return build
+
+
+def tape(step=0, **changes):
+    base = {"unit": "cm", "name": "Card block", "size_label": "12", "garment": "underbust corset",
+            "centre_front": "busk", "centre_back": "laced", "levels": ["waist", "hip"],
+            "panel_names": "Front\nBack (back)", "bound": "on", "seam_allowance": "1.5", "step": str(step)}
+    return lambda w: {**base, **changes}
+
+
+def grade(**changes):
+    def build(w):
+        base = {"run_name": "Bad-input run", "sizes": "36, 38, 40", "unit": "cm", "save": "1"}
+        pattern = w.plan.base_pattern
+        from patterns.selectors import block_for
+        levels = block_for(pattern).level_names
+        return {**base, **{f"girth_{lv}": "4" for lv in levels}, **changes}
+    return build
+
+
+GRADE_PATTERN = lambda w: w.other_plan.base_pattern_id  # noqa: E731
+PATTERN_OF_PLAN = lambda w: w.plan.base_pattern_id  # noqa: E731
+
+
 CASES = [
     # --- a new client ------------------------------------------------------------------------
     Case("client-reference-empty", "post", u("fittings:client_new"), new_client(reference=""), words="This field is required"),
@@ -326,6 +369,42 @@ CASES = [
     Case("layout-seconds-zero", "post", u("fittings:fabric_layout_start", PLAN, 1), layout(seconds="0"), words="greater than or equal to 1"),
     Case("layout-seconds-text", "post", u("fittings:fabric_layout_start", PLAN, 1), layout(seconds="soon"), words="whole number"),
     Case("layout-revision-beyond-the-plans", "post", u("fittings:fabric_layout_start", PLAN, 9), layout(), status=404, words="Not found"),
+    # --- base patterns: typed in, edited, read off a card, graded -------------------------------
+    Case("block-width-not-a-number", "post", u("patterns:block_new"), block(p2_waist_w="wide"), words="not a length in centimetres"),
+    Case("block-width-negative", "post", u("patterns:block_new"), block(p2_waist_w="-3"), words="wide at the waist: a width between stitch lines must be more than nothing"),
+    Case("block-width-zero", "post", u("patterns:block_new"), block(p1_bust_w="0"), words="must be more than nothing"),
+    Case("block-width-missing", "post", u("patterns:block_new"), block(p3_abdomen_w=None), words="This field is required"),
+    Case("block-width-nan", "post", u("patterns:block_new"), block(p1_waist_w="NaN"), words="not a length"),
+    Case("block-level-absurd", "post", u("patterns:block_new"), block(level_waist="9000"), words="Must be between"),
+    Case("block-level-outside", "post", u("patterns:block_new"), block(level_abdomen="250"), words="crosses none of the panels"),
+    Case("block-levels-out-of-order", "post", u("patterns:block_new"), block(level_bust="35"), words="must lie below the bust"),
+    Case("block-edges-cross", "post", u("patterns:block_new"), block(p2_top_l="45"), words="The top and bottom edges of Side front cross"),
+    Case("block-name-empty", "post", u("patterns:block_new"), block(name=""), words="This field is required"),
+    Case("block-name-too-long", "post", u("patterns:block_new"), block(name="n" * 81), words="at most 80"),
+    Case("typed-block-name-taken", "post", u("patterns:block_new"), block(name="Overbust corset, six panels", size_label="10", garment="overbust corset"), words="There is already a base pattern"),
+    Case("block-cut-zero", "post", u("patterns:block_new"), block(p1_cut="0"), words="greater than or equal to 1"),
+    Case("block-garment-unknown", "post", u("patterns:block_new"), block(garment="cape"), words="Select a valid choice"),
+    Case("block-seam-kind-unknown", "post", u("patterns:block_new"), block(s1_kind="zip"), words="Select a valid choice"),
+    Case("block-seam-level-unknown", "post", u("patterns:block_new"), block(s1_moves=["knee"]), words="Select a valid choice"),
+    Case("block-seam-cap-negative", "post", u("patterns:block_new"), block(s2_cap="-1"), words="not a length"),
+    Case("block-stitch-lines-half-given", "post", u("patterns:block_new"), block(by_widths=True, p2_bust_x="40"), words="or at none"),
+    Case("block-grainline-outside", "post", u("patterns:block_new"), block(p2_grain="90"), words="lies outside the panel"),
+    Case("block-allowance-negative", "post", u("patterns:block_new"), block(seam_allowance="-1.5"), words="not a length"),
+    Case("block-fold-off-centre", "post", u("patterns:block_new"), block(p3_fold="on"), words="Only the centre-front panel can be cut on the fold"),
+    Case("block-draw-nan", "post", u("patterns:block_draw"), block(p1_waist_w="inf"), words="not a length"),
+    Case("block-edit-used-negative", "post", u("patterns:block_edit", PATTERN_OF_PLAN), edit_block(p3_waist_w="-2"), words="must be more than nothing"),
+    Case("block-edit-missing", "post", u("patterns:block_edit", 999_999), lambda w: {}, status=404, words="Not found"),
+    Case("block-drawing-not-kept", "get", u("patterns:block_drawing", "f" * 64), status=404, words="Not found"),
+    Case("block-drawing-junk-key", "get", u("patterns:block_drawing", "..%2F..%2Fetc"), status=404, words="Not found"),
+    Case("tape-no-panels", "post", u("patterns:block_measure"), tape(panel_names=" \n "), words="This field is required"),
+    Case("tape-no-levels", "post", u("patterns:block_measure"), tape(levels=[]), words="This field is required"),
+    Case("tape-two-panels-alike", "post", u("patterns:block_measure"), tape(panel_names="Front\nFront"), words="same name"),
+    Case("tape-top-length-negative", "post", u("patterns:block_measure"), tape(1, down0_0="-2", down1_0="3", down2_0="3"), words="not a length"),
+    Case("tape-width-missing", "post", u("patterns:block_measure"), tape(2, down0_0="2", down1_0="3", down2_0="3", w_waist_0="8"), words="This field is required"),
+    Case("grade-size-not-in-run", "post", u("patterns:pattern_grade", GRADE_PATTERN), grade(sizes="4, 6"), words="must be one of the sizes"),
+    Case("grade-step-not-a-number", "post", u("patterns:pattern_grade", GRADE_PATTERN), grade(girth_waist="four"), words="not a length"),
+    Case("grade-pattern-in-a-run", "post", u("patterns:pattern_grade", PATTERN_OF_PLAN), grade(sizes="8, 10, 12"), words="belongs to the size run"),
+    Case("grade-run-name-empty", "post", u("patterns:pattern_grade", GRADE_PATTERN), grade(run_name=""), words="This field is required"),
     # --- URL parameters: other clients' objects, ids that do not exist, junk ---------------------
     Case("compare-another-clients-session", "get", q("fittings:compare", lambda w: f"a=s{w.other_client.sessions.get().pk}&b=s{w.session.pk}", CLIENT), words="not in this client"),
     Case("compare-another-clients-revision", "get", q("fittings:compare", lambda w: f"a=r{w.other_plan.revisions.get().pk}&b=r{w.issued.pk}", CLIENT), words="not in this client"),
