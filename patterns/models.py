@@ -77,6 +77,10 @@ class BasePattern(models.Model):
     centre_back = models.CharField(max_length=10, choices=CentreBack.choices, default=CentreBack.LACED)
     seam_allowance_mm = mm_field(default=15)
     notes = models.TextField(blank=True)
+    channels = models.JSONField(
+        default=list, blank=True,
+        help_text="Boning channels marked inside panels, besides the one on every seam (patterns.core.fitting.channels_to_list).",
+    )
     is_active = models.BooleanField(
         default=True, help_text="Inactive patterns stay for the plans made from them but are not offered for new ones.",
     )
@@ -151,6 +155,10 @@ class PatternPanel(models.Model):
     bottom_left_y = mm_field()
     bottom_right_x = mm_field()
     bottom_right_y = mm_field()
+    curves = models.JSONField(
+        null=True, blank=True,
+        help_text="The drawn stitch lines of a panel imported from a drawing (patterns.core.fitting.curves_to_dict).",
+    )
 
     class Meta:
         ordering = ["pattern", "order"]

@@ -3,6 +3,7 @@
 from django.db.models import Prefetch, prefetch_related_objects
 
 from patterns.core.block import Block, Level, Panel, Point, Seam
+from patterns.core.fitting import channels_from_list, curves_from_dict
 from patterns.models import BasePattern, PatternPanel
 
 
@@ -48,6 +49,7 @@ def block_for(pattern) -> Block:
             top_bound=row.top_bound,
             bottom_bound=row.bottom_bound,
             grainline_x=None if row.grainline_x is None else float(row.grainline_x),
+            curves=curves_from_dict(row.curves) if row.curves else None,
         ))
     name_at = {row.order: row.name for row in panel_rows}
     seams = tuple(
@@ -72,6 +74,7 @@ def block_for(pattern) -> Block:
         centre_back=pattern.centre_back,
         seam_allowance_mm=float(pattern.seam_allowance_mm),
         size_order=pattern.size_order,
+        channels=channels_from_list(pattern.channels or []),
     )
 
 

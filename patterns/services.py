@@ -3,7 +3,7 @@
 from django.db import transaction
 
 from patterns.core.block import Block, block_errors
-from patterns.core.fitting import block_to_dict
+from patterns.core.fitting import block_to_dict, channels_to_list, curves_to_dict
 from patterns.core.measures import LEVEL_CODES
 from patterns.core.units import quantize_mm
 from patterns.selectors import block_for
@@ -75,6 +75,7 @@ def save_block(block: Block, size_run: SizeRun | None = None, *, previous: BaseP
             version=previous.version + 1 if previous is not None else 1,
             previous=previous,
             notes=previous.notes if previous is not None else "",
+            channels=channels_to_list(block.channels),
         )
         _store_parts(pattern, block)
     return pattern
@@ -95,6 +96,7 @@ def _store_parts(pattern: BasePattern, block: Block) -> None:
             top_bound=panel.top_bound,
             bottom_bound=panel.bottom_bound,
             grainline_x=None if panel.grainline_x is None else quantize_mm(panel.grainline_x),
+            curves=None if panel.curves is None else curves_to_dict(panel.curves),
             top_left_x=quantize_mm(panel.top_left.x),
             top_left_y=quantize_mm(panel.top_left.y),
             top_right_x=quantize_mm(panel.top_right.x),

@@ -64,10 +64,25 @@ def block_to_dict(block: Block) -> dict:
     for seam in data["seams"]:
         seam["alterable_at"] = [lv for lv in block.level_names if lv in seam["alterable_at"]]
     # Marked boning channels are optional: a block without any writes the same file as before.
-    channels = data.pop("channels", [])
-    if channels:
-        data["channels"] = [{k: v for k, v in c.items() if v is not None and v != ""} for c in channels]
+    data.pop("channels", None)
+    if block.channels:
+        data["channels"] = channels_to_list(block.channels)
     return data
+
+
+def channels_to_list(channels) -> list[dict]:
+    """Marked boning channels as JSON, leaving out what is not set."""
+    return [{k: v for k, v in asdict(c).items() if v is not None and v != ""} for c in channels]
+
+
+def channels_from_list(data: list[dict]) -> tuple[ChannelMark, ...]:
+    return tuple(
+        ChannelMark(
+            panel=c["panel"], fraction=float(c["fraction"]) if c.get("fraction") is not None else None,
+            edge=c.get("edge", "left"), offset_mm=float(c.get("offset_mm", 0.0)), name=c.get("name", ""),
+        )
+        for c in data
+    )
 
 
 def block_from_dict(data: dict) -> Block:
@@ -100,13 +115,7 @@ def block_from_dict(data: dict) -> Block:
         ),
         centre_front=data.get("centre_front", "busk"), centre_back=data.get("centre_back", "laced"),
         seam_allowance_mm=float(data.get("seam_allowance_mm", 15.0)), size_order=int(data.get("size_order", 0)),
-        channels=tuple(
-            ChannelMark(
-                panel=c["panel"], fraction=float(c["fraction"]) if c.get("fraction") is not None else None,
-                edge=c.get("edge", "left"), offset_mm=float(c.get("offset_mm", 0.0)), name=c.get("name", ""),
-            )
-            for c in data.get("channels", [])
-        ),
+        channels=channels_from_list(data.get("channels", [])),
     )
 
 

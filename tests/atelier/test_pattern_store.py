@@ -133,3 +133,25 @@ def test_it_refuses_negative_seam_allowance_and_cap(bodice_pattern):
 def test_it_refuses_a_panel_cut_zero_times(bodice_pattern):
     with pytest.raises(IntegrityError), transaction.atomic():
         PatternPanel.objects.filter(pattern=bodice_pattern).update(cut_count=0)
+
+
+def test_it_keeps_a_drawn_blocks_curves_once_stored():
+    """An imported block's altered outline follows its drawn stitch lines, so the stored pattern must keep them."""
+    from patterns.demo import drawn_underbust_block
+
+    block = drawn_underbust_block()
+    assert all(p.curves is not None for p in block.panels)
+    stored = block_for(save_block(block))
+    assert [p.curves for p in stored.panels] == [p.curves for p in block.panels]  # kept as drawn (JSON floats)
+
+
+def test_it_keeps_boning_channels_marked_inside_panels():
+    from dataclasses import replace
+
+    from patterns.core.block import ChannelMark
+
+    block = demo.corset_block("10")
+    marked = replace(block, name="Marked corset", channels=(
+        ChannelMark(panel="Front", fraction=0.5, name="middle bone"),
+        ChannelMark(panel="Centre back", edge="right", offset_mm=12.0)))
+    assert block_for(save_block(marked)).channels == marked.channels
