@@ -17,7 +17,6 @@ urlpatterns = [
     ),
     path("logout/", auth_views.LogoutView.as_view(), name="logout"),
     path("admin/", admin.site.urls),
-    path("patterns/", include("patterns.urls_block_files")),
     path("patterns/", include("patterns.urls")),
     path("", include("fittings.urls")),
 ]

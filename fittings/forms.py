@@ -8,13 +8,13 @@ from django.core.exceptions import ValidationError
 from django.utils import timezone
 from PIL import Image
 
-from fittings.models import UNIT_CHOICES, Client, MeasurementSession, PhotoView, SessionKind
+from fittings.models import Client, MeasurementSession, PhotoView, SessionKind
 from patterns.core.allot import Override, PlanOptions
 from patterns.core.policies import POLICY_CHOICES
 from patterns.core.block import Block
 from patterns.core.measures import LEVEL_LABELS, MEASURES
 from patterns.core.units import (
-    DEFAULT_STEP_MM, UNIT_LABELS, UNITS, LengthError, format_exact, format_length, parse_length, parse_signed_length,
+    DEFAULT_STEP_MM, UNIT_CHOICES, UNIT_LABELS, UNITS, LengthError, format_exact, format_length, parse_length, parse_signed_length,
 )
 
 

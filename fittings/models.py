@@ -20,7 +20,7 @@ from django.utils import timezone
 from atelier.storage import private_storage
 from fittings.search import search_expressions
 from patterns.core.measures import LEVEL_CODES, MEASURE_BY_CODE, MEASURES
-from patterns.core.units import UNIT_LABELS, UNITS
+from patterns.core.units import UNIT_CHOICES, UNITS
 from patterns.models import LEVEL_CHOICES, BasePattern, mm_field
 
 
@@ -79,7 +79,6 @@ class SessionKind(models.TextChoices):
     CHECK = "check", "Check"
 
 
-UNIT_CHOICES = [(unit, UNIT_LABELS[unit]) for unit in UNITS]
 
 
 class MeasurementSession(models.Model):

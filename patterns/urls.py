@@ -1,6 +1,6 @@
 from django.urls import path
 
-from patterns import views
+from patterns import views, views_block_files
 
 app_name = "patterns"
 
@@ -14,4 +14,9 @@ urlpatterns = [
     path("<int:pk>/drawing.svg", views.pattern_drawing, name="pattern_drawing"),
     path("<int:pk>/edit/", views.block_edit, name="block_edit"),
     path("<int:pk>/grade/", views.pattern_grade, name="pattern_grade"),
+    # Blocks from drawings, and a block's pieces as drawings.
+    path("import/", views_block_files.block_import, name="block_import"),
+    path("<int:pk>/files/", views_block_files.pattern_files, name="pattern_files"),
+    path("<int:pk>/pieces.svg", views_block_files.pattern_pieces, {"fmt": "svg"}, name="pattern_pieces_svg"),
+    path("<int:pk>/pieces.dxf", views_block_files.pattern_pieces, {"fmt": "dxf"}, name="pattern_pieces_dxf"),
 ]

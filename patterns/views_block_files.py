@@ -8,7 +8,7 @@ from atelier.roles import EDITORS, ROLES, role_required
 from fittings import piece_files
 from fittings.views_pieces import file_response
 from patterns.core.measures import LEVEL_LABELS
-from patterns.forms_block_files import BlockImportForm
+from patterns.forms import BlockImportForm
 from patterns.models import BasePattern
 from patterns.selectors import block_for
 from patterns.services import BlockInvalid, save_block
@@ -26,7 +26,7 @@ def block_import(request):
                 form.add_error(None, str(exc))
             else:
                 messages.success(request, f"{pattern} was imported as a new base pattern.")
-                return redirect("block_files:pattern_files", pattern.pk)
+                return redirect("patterns:pattern_files", pattern.pk)
         return render(request, "patterns/block_import.html", {"form": form}, status=400)
     return render(request, "patterns/block_import.html", {"form": BlockImportForm()})
 

@@ -12,7 +12,6 @@ from __future__ import annotations
 import logging
 import time
 from datetime import timedelta
-from decimal import Decimal
 
 from django.db import transaction
 from django.utils import timezone

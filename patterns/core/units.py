@@ -16,6 +16,7 @@ STORE_PLACES = Decimal("0.0001")
 
 UNITS = ("cm", "in")
 UNIT_LABELS = {"cm": "cm", "in": "in"}
+UNIT_CHOICES = [(unit, UNIT_LABELS[unit]) for unit in UNITS]
 
 # Default rounding step of a plan, in mm, per unit the plan is kept in.
 DEFAULT_STEP_MM = {"cm": 1.0, "in": float(MM_PER_INCH * Decimal(INCH_STEP.numerator) / INCH_STEP.denominator)}

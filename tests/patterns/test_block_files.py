@@ -40,14 +40,14 @@ def arc_width(y):
 def _post(client, content=DRAWN, name="drawn.svg", **fields):
     data = {"name": "Drawn test block", "size_label": "S", "garment": "underbust corset", "front_panels": "1",
             "centre_back": "laced", "seam_allowance": "1,5", "file": SimpleUploadedFile(name, content), **fields}
-    return client.post(reverse("block_files:block_import"), data)
+    return client.post(reverse("patterns:block_import"), data)
 
 
 def test_it_imports_a_drawing_as_a_new_base_pattern(fitter_client):
     response = _post(fitter_client)
     pattern = BasePattern.objects.get(name="Drawn test block")
     assert response.status_code == 302
-    assert response["Location"] == reverse("block_files:pattern_files", args=[pattern.pk])
+    assert response["Location"] == reverse("patterns:pattern_files", args=[pattern.pk])
     block = block_for(pattern)
     assert block.level_names == ("waist", "hip")
     assert [p.name for p in block.panels] == ["Front", "Back"]
@@ -62,7 +62,7 @@ def test_it_imports_a_drawing_as_a_new_base_pattern(fitter_client):
     assert "Drawn test block" in text and "Waist" in text and "2 panels, half pattern" in text
     assert '<th scope="col">Back</th>' in text
     assert f"<td>{round(arc_width(block.level_y('waist')), 1)}</td>" in text  # the arc piece's width, in mm
-    assert reverse("block_files:pattern_pieces_dxf", args=[pattern.pk]) in text
+    assert reverse("patterns:pattern_pieces_dxf", args=[pattern.pk]) in text
 
 
 def test_it_refuses_a_bad_drawing_with_its_reason_and_keeps_nothing(fitter_client):
@@ -73,17 +73,17 @@ def test_it_refuses_a_bad_drawing_with_its_reason_and_keeps_nothing(fitter_clien
 
 
 def test_it_offers_the_import_to_fitters_but_not_to_the_workroom(fitter_client, workroom_user, client):
-    assert reverse("block_files:block_import") in fitter_client.get(reverse("fittings:client_list")).content.decode()
+    assert reverse("patterns:block_import") in fitter_client.get(reverse("fittings:client_list")).content.decode()
     client.force_login(workroom_user)
-    assert reverse("block_files:block_import") not in client.get(reverse("fittings:client_list"), follow=True
+    assert reverse("patterns:block_import") not in client.get(reverse("fittings:client_list"), follow=True
                                                                  ).content.decode()
-    assert client.get(reverse("block_files:block_import")).status_code == 403
+    assert client.get(reverse("patterns:block_import")).status_code == 403
 
 
 def test_it_downloads_a_base_pattern_that_reads_back_to_the_same_widths(fitter_client, bodice_pattern):
     block = block_for(bodice_pattern)
     for fmt in ("dxf", "svg"):
-        response = fitter_client.get(reverse(f"block_files:pattern_pieces_{fmt}", args=[bodice_pattern.pk]))
+        response = fitter_client.get(reverse(f"patterns:pattern_pieces_{fmt}", args=[bodice_pattern.pk]))
         assert response.status_code == 200
         assert f'.{fmt}"' in response["Content-Disposition"] and "attachment" in response["Content-Disposition"]
         back = import_block(response.content, f"x.{fmt}", ImportOptions(front_panels=2))

@@ -89,10 +89,10 @@ RULES = {
     "fittings:revision_pieces_svg": Rule(REV1, READ_ONLY),
     "fittings:revision_pieces_dxf": Rule(REV1, READ_ONLY),
     # Base patterns as drawing files: any role downloads the pieces; owner and fitters import.
-    "block_files:block_import": Rule(lambda w: {}, EDIT_PAGE),
-    "block_files:pattern_files": Rule(lambda w: {"pk": w.plan.base_pattern_id}, READ_ONLY),
-    "block_files:pattern_pieces_svg": Rule(lambda w: {"pk": w.plan.base_pattern_id}, READ_ONLY),
-    "block_files:pattern_pieces_dxf": Rule(lambda w: {"pk": w.plan.base_pattern_id}, READ_ONLY),
+    "patterns:block_import": Rule(lambda w: {}, EDIT_PAGE),
+    "patterns:pattern_files": Rule(lambda w: {"pk": w.plan.base_pattern_id}, READ_ONLY),
+    "patterns:pattern_pieces_svg": Rule(lambda w: {"pk": w.plan.base_pattern_id}, READ_ONLY),
+    "patterns:pattern_pieces_dxf": Rule(lambda w: {"pk": w.plan.base_pattern_id}, READ_ONLY),
     "fittings:revision_issue": Rule(lambda w: {"pk": w.plan.pk, "number": 2}, {**POST_ONLY, "POST": editors(302)}),
     "fittings:revision_pins": Rule(REV1, EDIT_PAGE),
     # A proof is drawn at once and issues nothing: for those who may change the plan.
