@@ -220,10 +220,10 @@ def allot(block: Block, body: Body, options: PlanOptions) -> Allotment:
                 if key not in shifts and key not in pins and not (level in seam.alterable_at):
                     continue
                 spread = shifts.get(key, 0.0)
-                pin = pins.get(key, 0.0)
+                pinned = pins.get(key, 0.0)
                 edge_shifts.append(EdgeShift(
-                    seam=seam.name, level=level, panel=panel, shift_mm=_clean(spread + pin),
-                    fixed=key in fixed, pin_mm=_clean(pin),
+                    seam=seam.name, level=level, panel=panel, shift_mm=_clean(spread + pinned),
+                    fixed=key in fixed, pin_mm=_clean(pinned),
                 ))
 
     findings += shape_findings(block, edge_shifts, cf_shift)
@@ -356,10 +356,11 @@ def _part_steps(halves: list[float | None], step: float) -> list[int]:
     """
     if len(halves) == 1 or None in halves:
         return [0 if h is None else steps_of(h, step) for h in halves]
-    total = steps_of(sum(halves), step)
-    front = halves[0] / step
+    front_half, back_half = [h for h in halves if h is not None]
+    total = steps_of(front_half + back_half, step)
+    front = front_half / step
     choices = sorted({math.floor(front), math.ceil(front)}, key=lambda f: (
-        max(abs(front - f), abs(halves[1] / step - (total - f))), f != steps_of(halves[0], step)))
+        max(abs(front - f), abs(back_half / step - (total - f))), f != steps_of(front_half, step)))
     return [choices[0], total - choices[0]]
 
 
@@ -371,7 +372,7 @@ def body_level_positions(lengths: dict[str, float]) -> dict[str, float]:
         changed = False
         for m in LENGTH_MEASURES:
             value = lengths.get(m.code)
-            if value is None:
+            if value is None or m.between is None:
                 continue
             upper, lower = m.between
             if upper in positions and lower not in positions:

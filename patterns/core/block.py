@@ -231,6 +231,8 @@ def curve_errors(panel: Panel, level_y: dict[str, float], tolerance: float = 0.0
     """Problems with a panel's imported stitch line: sides that do not meet at the corners,
     sides that do not run downwards, level points that are not on the line."""
     c = panel.curves
+    if c is None:
+        return []
     if min(len(c.left), len(c.right), len(c.top), len(c.bottom)) < 2:
         return [f"Panel {panel.name}: each side of the drawn stitch line needs two points at least."]
     errors = []

@@ -131,16 +131,16 @@ def _input_findings(draft: BlockDraft) -> list[Finding]:
                                  f"Only the centre-front panel can be cut on the fold, not {p.name}.", panel=p.name))
         if p.cut_count < 1:
             found.append(Finding("cut_count", ERROR, f"{p.name} must be cut at least once.", panel=p.name))
-        for level in names:
-            w = p.widths.get(level)
+        for name in names:
+            w = p.widths.get(name)
             if w is None:
-                found.append(Finding("width_missing", ERROR, f"Give the width of {p.name} at the {_label(level)}.",
-                                     panel=p.name, level=level))
+                found.append(Finding("width_missing", ERROR, f"Give the width of {p.name} at the {_label(name)}.",
+                                     panel=p.name, level=name))
             elif not math.isfinite(w) or w <= 0:
                 found.append(Finding(
                     "width_not_positive", ERROR,
-                    f"{p.name} is {_mm(w)} wide at the {_label(level)}: a width between stitch lines must be more "
-                    "than nothing.", panel=p.name, level=level,
+                    f"{p.name} is {_mm(w)} wide at the {_label(name)}: a width between stitch lines must be more "
+                    "than nothing.", panel=p.name, level=name,
                 ))
         for edge, (top, bottom) in (("left", (p.top[0], p.bottom[0])), ("right", (p.top[1], p.bottom[1]))):
             if bottom <= top:

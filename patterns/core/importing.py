@@ -456,6 +456,10 @@ class _Piece:
     grain: tuple[tuple[float, float], tuple[float, float]] | None = None
     label_area: Polygon | None = None
 
+    def text_area(self) -> Polygon:
+        """Where the piece's texts lie: the cutting line round it once found, else its stitch line."""
+        return self.polygon if self.label_area is None else self.label_area
+
 
 _CUT = re.compile(r"^cut\s+(?P<n>\d+)(?P<fold>\s+on\s+(?:the\s+)?fold)?$", re.IGNORECASE)
 _FOLD = re.compile(r"^(?:place\s+)?on\s+(?:the\s+)?fold$", re.IGNORECASE)
@@ -485,7 +489,7 @@ def block_from_drawing(drawing: Drawing, options: ImportOptions = ImportOptions(
 
     rings, left_open = _join(outline_paths)
     # Open horizontal lines with a level's name written on or just above them are level lines.
-    level_texts = [(level_of(t), x, y) for t, x, y in drawing.texts if level_of(t)]
+    level_texts = [(text_level, x, y) for t, x, y in drawing.texts if (text_level := level_of(t))]
     still_open = []
     for p in left_open:
         named = None
@@ -544,12 +548,13 @@ def block_from_drawing(drawing: Drawing, options: ImportOptions = ImportOptions(
 
     for pc in pieces:
         _read_labels(pc, drawing.texts)
-        inside = [g for g in grains if pc.label_area.contains(ShapelyPoint(*(0.5 * (g[0] + g[-1]))))]
+        inside = [g for g in grains if pc.text_area().contains(ShapelyPoint(*(0.5 * (g[0] + g[-1]))))]
         if inside:
             # The longest line there (a drawn grainline may have arrowheads as short strokes).
             g = max(inside, key=lambda g: float(np.hypot(*(g[-1] - g[0]))))
             a, b = (g[0], g[-1]) if g[0][1] <= g[-1][1] else (g[-1], g[0])
-            pc.grain = (tuple(map(float, a - shift)), tuple(map(float, b - shift)))
+            (ax, ay), (bx, by) = a - shift, b - shift
+            pc.grain = ((float(ax), float(ay)), (float(bx), float(by)))
         pc.ring = pc.ring - shift
         pc.polygon = Polygon(pc.ring)
     level_lines = [_LevelLine(ll.level, ll.y - y_origin, ll.x0 - x_origin, ll.x1 - x_origin) for ll in level_lines]
@@ -566,7 +571,7 @@ def block_from_drawing(drawing: Drawing, options: ImportOptions = ImportOptions(
 
 def _read_labels(piece: _Piece, texts) -> None:
     for text, x, y in texts:
-        if not text or not piece.label_area.contains(ShapelyPoint(x, y)) or level_of(text):
+        if not text or not piece.text_area().contains(ShapelyPoint(x, y)) or level_of(text):
             continue
         cut = _CUT.match(text)
         if cut:
@@ -644,7 +649,8 @@ def _levels(lines: list[_LevelLine], pieces: list[_Piece]) -> tuple[Level, ...]:
 
 def _with_crossing(ring: np.ndarray, y: float) -> tuple[np.ndarray, list[int]]:
     """The ring with its crossings of height y added as vertices, and their indices."""
-    out, crossings = [], []
+    out: list[np.ndarray] = []
+    crossings: list[int] = []
     n = len(ring)
     for i in range(n):
         a, b = ring[i], ring[(i + 1) % n]

@@ -100,8 +100,8 @@ MEASURES: tuple[MeasureDef, ...] = (
                plausible=(140, 260), limits=(50, 500)),
 )
 MEASURE_BY_CODE = {m.code: m for m in MEASURES}
-GIRTH_BY_LEVEL = {m.level: m.code for m in MEASURES if m.kind == "girth"}
-FRONT_ARC_BY_LEVEL = {m.level: m.code for m in MEASURES if m.kind == "front_arc"}
+GIRTH_BY_LEVEL = {m.level: m.code for m in MEASURES if m.kind == "girth" and m.level is not None}
+FRONT_ARC_BY_LEVEL = {m.level: m.code for m in MEASURES if m.kind == "front_arc" and m.level is not None}
 LENGTH_MEASURES = tuple(m for m in MEASURES if m.between)
 
 # A change between two sessions of a client larger than this is worth a

@@ -23,6 +23,7 @@ import math
 import re
 import threading
 import weakref
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
@@ -253,7 +254,9 @@ class _Edge:
     base_y: np.ndarray | None = None  # base height of each sample (drawn panels only)
     dx: np.ndarray | None = None  # sideways move of each sample (drawn panels only)
 
-    def dx_at(self, y) -> np.ndarray:
+    def dx_at(self, y: float) -> float:
+        if self.base_y is None or self.dx is None:
+            raise ValueError("Only a drawn panel's edge keeps how far each sample moved sideways.")
         return np.interp(y, self.base_y, self.dx)
 
 
@@ -267,7 +270,8 @@ def _edge(block: Block, panel: Panel, edge: str, alteration: Alteration, to_alte
         drawn = np.asarray(panel.curves.left if edge == LEFT else panel.curves.right, dtype=float)
         at_level = {name: float(np.interp(y, drawn[:, 1], drawn[:, 0])) for name, y in
                     ((lv.name, lv.y) for lv in block.levels) if name in at_level}
-    knot_y, knot_x, knot_levels = [top.y], [top.x], [None]
+    knot_y, knot_x = [top.y], [top.x]
+    knot_levels: list[str | None] = [None]
     for level in block.levels:
         if top.y - _EPS <= level.y <= bottom.y + _EPS:
             if abs(level.y - knot_y[-1]) <= _EPS:
@@ -285,6 +289,7 @@ def _edge(block: Block, panel: Panel, edge: str, alteration: Alteration, to_alte
     sign = -1.0 if edge == LEFT else 1.0
 
     shift_at = Pchip(level_ys, shifts)
+    seam_x: Callable[[np.ndarray], np.ndarray]
     if drawn is None:
         seam_x = Pchip(knot_y, knot_x)
     else:
@@ -496,10 +501,11 @@ def _outline(block, panel, alteration, to_altered, allowance, step) -> tuple[Pan
     else:
         x_mid = 0.5 * (left[:, 0].mean() + right[:, 0].mean())
     if panel.curves is not None and panel.curves.grainline is not None:
-        grain = tuple(
-            (float(x + 0.5 * (edges[LEFT].dx_at(y) + edges[RIGHT].dx_at(y))), float(to_altered(y)))
-            for x, y in panel.curves.grainline
-        )
+        def moved(x: float, y: float) -> Pt:
+            return float(x + 0.5 * (edges[LEFT].dx_at(y) + edges[RIGHT].dx_at(y))), float(to_altered(y))
+
+        start, end = panel.curves.grainline
+        grain = (moved(*start), moved(*end))
     else:
         grain = _grainline(stitch, float(x_mid))
     level_y = {}

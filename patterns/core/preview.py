@@ -20,6 +20,7 @@ import re
 import threading
 from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass
+from typing import Any
 from xml.sax.saxutils import escape
 
 import matplotlib
@@ -27,6 +28,7 @@ import numpy as np
 from matplotlib.backends.backend_svg import FigureCanvasSVG
 from matplotlib.collections import LineCollection
 from matplotlib.figure import Figure
+from matplotlib.typing import RcKeyType
 
 from patterns.core.block import LEFT, RIGHT, Alteration, Block
 from patterns.core.measures import LEVEL_LABELS
@@ -83,7 +85,7 @@ _MARKER_ID = "finding-marker-"
 
 # rcParams are global: hold this while they are changed for one drawing.
 _RC_LOCK = threading.Lock()
-_RC = {
+_RC: dict[RcKeyType, Any] = {
     "svg.hashsalt": "atelier-preview",
     "svg.fonttype": "none",
     "path.simplify": False,

@@ -37,8 +37,8 @@ def plan_table(result: Allotment, block: Block) -> str:
     for seam in block.seams:
         for panel in (seam.front_panel, seam.back_panel):
             cells = []
-            for lv in levels:
-                edge = next((s for s in result.shifts if (s.seam, s.level, s.panel) == (seam.name, lv, panel)), None)
+            for level in levels:
+                edge = next((s for s in result.shifts if (s.seam, s.level, s.panel) == (seam.name, level, panel)), None)
                 if edge is None:
                     cells.append(f"{'.':>10}")
                 else:
