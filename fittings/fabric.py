@@ -17,7 +17,7 @@ from xml.etree import ElementTree as ET
 
 from shapely.geometry import Polygon
 
-from fittings.models_layout import FabricLayout, LayoutStatus
+from fittings.models import FabricLayout, LayoutStatus
 from patterns.core.layout import (
     DEFAULT_GAP_MM, DEFAULT_WIDTH_MM, SHELF, LayerRequest, Layout, best_of, cut_pieces, default_layers, layer_label,
     shelf_layers,

@@ -17,7 +17,7 @@ from django.db import transaction
 from django.utils import timezone
 
 from fittings import selectors
-from fittings.models_layout import FabricLayout, LayoutStatus
+from fittings.models import FabricLayout, LayoutStatus
 from fittings.previews import altered_for
 from patterns.core.layout import (
     DEFAULT_BUDGET_S, MAX_BUDGET_S, LayerRequest, LayoutError, Piece, Progress, check_layers, cut_pieces,
@@ -62,7 +62,7 @@ def request_layout(*, revision, user, layers: list[LayerRequest], gap_mm: float,
 
 
 def _queue(job_id: int) -> None:
-    from fittings.tasks_layout import solve_fabric_layout
+    from fittings.tasks import solve_fabric_layout
 
     try:
         result = solve_fabric_layout.enqueue(job_id)
