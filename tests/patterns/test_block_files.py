@@ -129,7 +129,7 @@ def test_it_downloads_a_revisions_altered_pieces_as_the_plan_shifted_them(demo_a
     assert b'width="' in svg.content and b'mm"' in svg.content
 
 
-def test_the_commands_export_and_import_pieces(demo_atelier, tmp_path):
+def test_it_checks_that_the_commands_export_and_import_pieces(demo_atelier, tmp_path):
     plan = Plan.objects.get(client__reference="WF-0101")
     target = tmp_path / "rev1.dxf"
     call_command("export_pieces", "--revision", f"{plan.pk}:1", "--format", "dxf", "-o", str(target))
@@ -146,7 +146,7 @@ def test_the_commands_export_and_import_pieces(demo_atelier, tmp_path):
             assert b.width(lv) == pytest.approx(a.width(lv), abs=TOL)
 
 
-def test_a_plan_can_be_made_on_the_demo_block_imported_from_its_drawing(demo_atelier, fitter_client, fitter_user):
+def test_it_checks_that_a_plan_can_be_made_on_the_demo_block_imported_from_its_drawing(demo_atelier, fitter_client, fitter_user):
     from fittings.models import Client
     from fittings.services import plans as plan_services
 

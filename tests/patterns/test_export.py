@@ -66,7 +66,7 @@ def _drawn_extent(root) -> tuple[float, float, float, float]:
 
 
 @pytest.mark.parametrize("test_square", ["cm", "in", None])
-def test_svg_size_in_mm_is_the_drawings_true_size(test_square):
+def test_it_checks_that_svg_size_in_mm_is_the_drawings_true_size(test_square):
     outlines = _outlines()
     root = ET.fromstring(svg_text(outlines, test_square=test_square))
     width, height = _mm(root.get("width")), _mm(root.get("height"))
@@ -81,7 +81,7 @@ def test_svg_size_in_mm_is_the_drawings_true_size(test_square):
         assert height >= maxy + SHEET_MARGIN_MM - 0.002
 
 
-def test_test_square_is_ten_centimetres_or_four_inches():
+def test_it_checks_that_test_square_is_ten_centimetres_or_four_inches():
     # 4 in = 101.6 mm: 1 in = 25.4 mm exactly (international yard and pound agreement, 1959).
     # A labelled test square checked with a ruler before cutting: common practice for home printing.
     assert TEST_SQUARE_MM == {"cm": 100.0, "in": 101.6}
@@ -91,7 +91,7 @@ def test_test_square_is_ten_centimetres_or_four_inches():
     assert any("4 in test square" in (t.text or "") for t in root.iter(f"{SVG}text"))
 
 
-def test_svg_paths_are_the_outlines_at_one_to_one():
+def test_it_checks_that_svg_paths_are_the_outlines_at_one_to_one():
     outlines = _outlines(bodice_block())
     root = ET.fromstring(svg_text(outlines))
     groups = list(root.iter(f"{SVG}g"))
@@ -104,7 +104,7 @@ def test_svg_paths_are_the_outlines_at_one_to_one():
         assert outline.name in texts and f"size {outline.size}" in texts
 
 
-def test_cut_outlines_do_not_overlap_on_the_sheet():
+def test_it_checks_that_cut_outlines_do_not_overlap_on_the_sheet():
     outlines = _outlines()
     layout = sheet_layout(outlines)
     placed = [Polygon([(x + dx, y + dy) for x, y in o.cutting]) for o, (dx, dy) in zip(outlines, layout.offsets)]
@@ -113,11 +113,11 @@ def test_cut_outlines_do_not_overlap_on_the_sheet():
         assert a.distance(b) >= 10.0 - 0.01
 
 
-def test_svg_is_deterministic():
+def test_it_checks_that_svg_is_deterministic():
     assert svg_text(_outlines()) == svg_text(_outlines())
 
 
-def test_notches_cut_into_the_allowance_but_not_past_the_stitch_line():
+def test_it_checks_that_notches_cut_into_the_allowance_but_not_past_the_stitch_line():
     # A notch about 1/4 in deep, within the seam allowance (common practice).
     for outline in _outlines():
         stitch = Polygon(outline.stitch)
@@ -139,7 +139,7 @@ def _doc(data: bytes):
 
 
 @pytest.mark.parametrize("block", [corset_block("14"), bodice_block()], ids=["corset", "bodice"])
-def test_dxf_reads_back_the_same_outlines(block):
+def test_it_checks_that_dxf_reads_back_the_same_outlines(block):
     outlines = _outlines(block)
     panels = read_dxf(dxf_bytes(outlines))
     assert len(panels) == len(outlines)
@@ -151,7 +151,7 @@ def test_dxf_reads_back_the_same_outlines(block):
         assert np.array(panel.notches) == pytest.approx(np.array(notch_segments(outline)), abs=0.01)
 
 
-def test_dxf_units_are_millimetres_and_entities_sit_on_named_layers():
+def test_it_checks_that_dxf_units_are_millimetres_and_entities_sit_on_named_layers():
     data = dxf_bytes(_outlines())
     doc = _doc(data)
     assert doc.header["$INSUNITS"] == INSUNITS_MILLIMETRES == 4
@@ -164,7 +164,7 @@ def test_dxf_units_are_millimetres_and_entities_sit_on_named_layers():
         assert layers.count("CUT") == 1 and layers.count("STITCH") == 1 and layers.count("GRAIN") == 1
 
 
-def test_dxf_pieces_sit_apart_on_the_sheet():
+def test_it_checks_that_dxf_pieces_sit_apart_on_the_sheet():
     outlines = base_outlines(corset_block("10"))
     panels = read_dxf(dxf_bytes(outlines))
     placed = [Polygon([(x + ix, y + iy) for x, y in p.cutting]) for p, (ix, iy) in

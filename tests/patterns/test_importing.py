@@ -240,7 +240,7 @@ def test_it_round_trips_an_svg_export_too():
             assert after.width(lv) == pytest.approx(before.width(lv), abs=TOL)
 
 
-def test_an_altered_export_reads_back_with_the_altered_widths():
+def test_it_checks_that_an_altered_export_reads_back_with_the_altered_widths():
     block = import_block(SVG_ARC, "block.svg")
     alteration = Alteration(shifts={"Back": {"waist": PanelShift(-5.0, -7.0)}})
     altered = alter_pattern(block, alteration).altered

@@ -54,14 +54,14 @@ FIXED_ALTERATIONS = {
 # --- the monotone cubic ------------------------------------------------------------
 
 
-def test_pchip_passes_through_knots_and_holds_beyond_the_ends():
+def test_it_checks_that_pchip_passes_through_knots_and_holds_beyond_the_ends():
     xk, yk = [0.0, 10.0, 30.0, 45.0], [2.0, 5.0, 5.0, -1.0]
     assert pchip(xk, yk, xk) == pytest.approx(yk, abs=1e-12)
     assert pchip(xk, yk, [-100.0, 1000.0]) == pytest.approx([2.0, -1.0])
 
 
 @given(st.lists(st.floats(-20, 20, allow_nan=False), min_size=2, max_size=6))
-def test_pchip_never_overshoots_between_knots(values):
+def test_it_checks_that_pchip_never_overshoots_between_knots(values):
     xk = np.cumsum(np.linspace(50, 110, len(values)))
     xq = np.linspace(xk[0], xk[-1], 400)
     yq = pchip(xk, values, xq)
@@ -76,7 +76,7 @@ def test_pchip_never_overshoots_between_knots(values):
 
 @pytest.mark.parametrize("block", DEMO_BLOCKS, ids=DEMO_IDS)
 @pytest.mark.parametrize("name", list(FIXED_ALTERATIONS))
-def test_width_at_each_level_is_base_width_plus_both_shifts(block, name):
+def test_it_checks_that_width_at_each_level_is_base_width_plus_both_shifts(block, name):
     alteration = FIXED_ALTERATIONS[name](block)
     base = {o.name: o for o in base_outlines(block)}
     checked = 0
@@ -89,14 +89,14 @@ def test_width_at_each_level_is_base_width_plus_both_shifts(block, name):
     assert checked >= 3 * len(block.panels)
 
 
-def test_base_width_at_levels_is_the_drafted_width():
+def test_it_checks_that_base_width_at_levels_is_the_drafted_width():
     block = corset_block("10")
     for outline, panel in zip(base_outlines(block), block.panels):
         for level in levels_on_both_edges(block, outline):
             assert width_at(outline, outline.level_y[level]) == pytest.approx(panel.width(level), abs=0.01)
 
 
-def test_the_base_outlines_are_built_once_per_block_and_equal_a_fresh_build():
+def test_it_checks_that_the_base_outlines_are_built_once_per_block_and_equal_a_fresh_build():
     block = corset_block("10")
     first = alter_pattern(block, _at_waist(block, -4.0))
     second = alter_pattern(block, _at_waist(block, 3.0))
@@ -123,7 +123,7 @@ def alterations(draw, block):
 
 @settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(data=st.data(), which=st.sampled_from(["10", "6", "14", "bodice"]))
-def test_width_at_levels_for_generated_alterations(data, which):
+def test_it_checks_that_width_at_levels_for_generated_alterations(data, which):
     block = bodice_block() if which == "bodice" else corset_block(which)
     alteration = data.draw(alterations(block))
     base = {o.name: o for o in base_outlines(block)}
@@ -134,7 +134,7 @@ def test_width_at_levels_for_generated_alterations(data, which):
             assert width_at(outline, outline.level_y[level]) == pytest.approx(expected, abs=0.01)
 
 
-def test_a_level_below_a_panels_bottom_edge_gets_no_notch_and_no_width():
+def test_it_checks_that_a_level_below_a_panels_bottom_edge_gets_no_notch_and_no_width():
     from dataclasses import replace
 
     from patterns.core.block import Point
@@ -152,7 +152,7 @@ def test_a_level_below_a_panels_bottom_edge_gets_no_notch_and_no_width():
 # --- vertical bands ------------------------------------------------------------------
 
 
-def test_band_change_moves_levels_below_and_inside_the_band():
+def test_it_checks_that_band_change_moves_levels_below_and_inside_the_band():
     block = corset_block("10")
     y = {lv.name: lv.y for lv in block.levels}
     alteration = Alteration(shifts={}, bands={("waist", "hip"): 20.0})
@@ -171,7 +171,7 @@ def test_band_change_moves_levels_below_and_inside_the_band():
     assert outlines[0].left_line[-1][1] == pytest.approx(block.panels[0].bottom_left.y + 20.0)  # below the hip
 
 
-def test_bands_add_up_and_shortening_works():
+def test_it_checks_that_bands_add_up_and_shortening_works():
     block = corset_block("10")
     y = {lv.name: lv.y for lv in block.levels}
     pattern = alter_pattern(block, Alteration(shifts={}, bands={("bust", "underbust"): -6.0, ("waist", "hip"): 10.0}))
@@ -181,7 +181,7 @@ def test_bands_add_up_and_shortening_works():
     assert pattern.findings == ()
 
 
-def test_widths_follow_the_levels_after_a_band_change():
+def test_it_checks_that_widths_follow_the_levels_after_a_band_change():
     block = corset_block("12")
     alteration = Alteration(shifts={"Back": {"waist": PanelShift(5, 5)}}, bands={("underbust", "waist"): 15.0})
     base = {o.name: o for o in base_outlines(block)}
@@ -203,7 +203,7 @@ def _unbound(block):
 @pytest.mark.parametrize("block", [_unbound(corset_block("10")), _unbound(corset_block("6")), bodice_block()],
                          ids=["c10", "c6", "bodice"])
 @pytest.mark.parametrize("allowance", [None, 10.0])  # block's 15 mm (corsetry, common practice); 1 cm industry
-def test_cutting_line_is_the_allowance_away_from_the_stitch_line(block, allowance):
+def test_it_checks_that_cutting_line_is_the_allowance_away_from_the_stitch_line(block, allowance):
     alteration = _at_waist(block, -8.0)
     for outline in alter_block(block, alteration, seam_allowance_mm=allowance):
         sa = block.seam_allowance_mm if allowance is None else allowance
@@ -216,7 +216,7 @@ def test_cutting_line_is_the_allowance_away_from_the_stitch_line(block, allowanc
         assert cut.area > stitch.area + 0.9 * sa * stitch.exterior.length * (0.5 if outline.on_fold else 1.0) - 1.0
 
 
-def test_a_fold_edge_has_no_allowance():
+def test_it_checks_that_a_fold_edge_has_no_allowance():
     centre_front = base_outlines(bodice_block())[0]
     assert centre_front.on_fold
     fold_x = min(x for x, _ in centre_front.left_line)
@@ -225,7 +225,7 @@ def test_a_fold_edge_has_no_allowance():
     assert "cut 1 on fold" in centre_front.labels
 
 
-def test_negative_allowance_is_refused():
+def test_it_checks_that_negative_allowance_is_refused():
     with pytest.raises(ValueError):
         base_outlines(corset_block("10"), seam_allowance_mm=-1)
 
@@ -234,7 +234,7 @@ def test_negative_allowance_is_refused():
 
 
 @pytest.mark.parametrize("block", DEMO_BLOCKS[:1] + DEMO_BLOCKS[-1:], ids=["c6", "bodice"])
-def test_both_raw_edges_of_every_seam_are_notched_at_the_same_heights(block):
+def test_it_checks_that_both_raw_edges_of_every_seam_are_notched_at_the_same_heights(block):
     outlines = {o.name: o for o in alter_block(block, _at_waist(block, 6.0))}
     for seam in block.seams:
         front = {n.level: n for n in outlines[seam.front_panel].notches if n.edge == RIGHT}
@@ -246,7 +246,7 @@ def test_both_raw_edges_of_every_seam_are_notched_at_the_same_heights(block):
             assert front[level].direction[0] > 0.9 and back[level].direction[0] < -0.9
 
 
-def test_notch_directions_are_unit_and_square_to_the_stitch_line():
+def test_it_checks_that_notch_directions_are_unit_and_square_to_the_stitch_line():
     for outline in alter_block(corset_block("10"), _at_waist(corset_block("10"), -10.0)):
         for notch in outline.notches:
             line = np.asarray(outline.edge_line(notch.edge))
@@ -260,7 +260,7 @@ def test_notch_directions_are_unit_and_square_to_the_stitch_line():
             assert not Polygon(outline.stitch).contains(outward)
 
 
-def test_grainline_is_parallel_to_centre_front_and_inside_the_panel():
+def test_it_checks_that_grainline_is_parallel_to_centre_front_and_inside_the_panel():
     for outline in alter_block(bodice_block(), _at_waist(bodice_block(), 5.0)):
         (x0, y0), (x1, y1) = outline.grainline
         assert x0 == x1 and y1 - y0 > 200
@@ -272,12 +272,12 @@ def test_grainline_is_parallel_to_centre_front_and_inside_the_panel():
 # agreement): Threads magazine no. 200, "10 patternwork skills".
 
 
-def test_truing_tolerance_is_an_eighth_of_an_inch():
+def test_it_checks_that_truing_tolerance_is_an_eighth_of_an_inch():
     assert TRUING_TOLERANCE_MM == pytest.approx(float(MM_PER_INCH) / 8, abs=0.01)
 
 
 @pytest.mark.parametrize("block", DEMO_BLOCKS, ids=DEMO_IDS)
-def test_the_same_shift_at_every_level_on_both_edges_keeps_every_seam_as_it_was(block):
+def test_it_checks_that_the_same_shift_at_every_level_on_both_edges_keeps_every_seam_as_it_was(block):
     for t in seam_truing(block, uniform_alteration(block, 7.0, 7.0)):
         assert t.change_mm == pytest.approx(0.0, abs=0.01)
         assert t.front_after_mm == pytest.approx(t.front_base_mm, abs=0.01)
@@ -289,7 +289,7 @@ def test_the_same_shift_at_every_level_on_both_edges_keeps_every_seam_as_it_was(
     bend=st.fixed_dictionaries({lv: st.floats(-20, 20, allow_nan=False) for lv in ALL_LEVELS}),
     shifts=st.fixed_dictionaries({lv: st.floats(-15, 15, allow_nan=False) for lv in ALL_LEVELS}),
 )
-def test_mirrored_raw_edges_shifted_alike_keep_their_difference(bend, shifts):
+def test_it_checks_that_mirrored_raw_edges_shifted_alike_keep_their_difference(bend, shifts):
     block = mirrored_pair_block(bend)
     alteration = Alteration(shifts={
         "Front": {lv: PanelShift(right=s) for lv, s in shifts.items()},
@@ -302,7 +302,7 @@ def test_mirrored_raw_edges_shifted_alike_keep_their_difference(bend, shifts):
     assert "seam_not_true" not in {f.code for f in pattern.findings}
 
 
-def test_an_uneven_shift_is_flagged_with_the_edge_end_and_amount():
+def test_it_checks_that_an_uneven_shift_is_flagged_with_the_edge_end_and_amount():
     block = corset_block("10")
     # Let out the side front's right edge at the bust and take it in at the underbust:
     # that edge alone bends into an S near the top.
@@ -321,7 +321,7 @@ def test_an_uneven_shift_is_flagged_with_the_edge_end_and_amount():
     assert "top end" in finding.message and f"{abs(side.change_mm):.1f} mm" in finding.message
 
 
-def test_an_uneven_shift_near_the_bottom_points_at_the_bottom_end():
+def test_it_checks_that_an_uneven_shift_near_the_bottom_points_at_the_bottom_end():
     block = corset_block("10")
     alteration = Alteration(shifts={"Back": {"abdomen": PanelShift(left=15.0), "hip": PanelShift(left=-15.0)}})
     t = next(t for t in seam_truing(block, alteration) if t.seam == "Back princess seam")
@@ -330,7 +330,7 @@ def test_an_uneven_shift_near_the_bottom_points_at_the_bottom_end():
     assert finding.panel == "Back" and "bottom end" in finding.message
 
 
-def test_a_seam_uneven_in_the_base_pattern_is_not_flagged_unless_it_grows():
+def test_it_checks_that_a_seam_uneven_in_the_base_pattern_is_not_flagged_unless_it_grows():
     block = bodice_block()
     base = {t.seam: t for t in seam_truing(block, Alteration(shifts={}))}
     # The demo bodice eases its front princess seam by more than the tolerance as drafted.
@@ -343,11 +343,11 @@ def test_a_seam_uneven_in_the_base_pattern_is_not_flagged_unless_it_grows():
 
 @pytest.mark.parametrize("block", DEMO_BLOCKS, ids=DEMO_IDS)
 @pytest.mark.parametrize("name", ["none", "uniform widen", "uniform narrow", "waist taken in", "waist let out"])
-def test_checks_are_silent_on_the_demo_blocks(block, name):
+def test_it_checks_that_checks_are_silent_on_the_demo_blocks(block, name):
     assert alter_pattern(block, FIXED_ALTERATIONS[name](block)).findings == ()
 
 
-def test_a_panel_folded_over_itself_is_an_error():
+def test_it_checks_that_a_panel_folded_over_itself_is_an_error():
     block = corset_block("10")
     pattern = alter_pattern(block, Alteration(shifts={"Front": {"waist": PanelShift(-40.0, -40.0)}}))
     codes = {(f.code, f.severity, f.panel) for f in pattern.findings}
@@ -357,7 +357,7 @@ def test_a_panel_folded_over_itself_is_an_error():
     assert crossing.level == "waist" and abs(crossing.y - pattern.level_y["waist"]) < 60
 
 
-def test_a_panel_narrower_than_the_minimum_at_a_level_is_warned():
+def test_it_checks_that_a_panel_narrower_than_the_minimum_at_a_level_is_warned():
     block = corset_block("10")
     pattern = alter_pattern(block, Alteration(shifts={"Side front": {"waist": PanelShift(-20.0, -20.0)}}))
     (finding,) = [f for f in pattern.findings if f.code == "panel_too_narrow"]
@@ -367,7 +367,7 @@ def test_a_panel_narrower_than_the_minimum_at_a_level_is_warned():
     assert finding.amount_mm < MIN_PANEL_WIDTH_MM  # 20 mm: common practice / our choice
 
 
-def test_narrowness_between_levels_is_found():
+def test_it_checks_that_narrowness_between_levels_is_found():
     block = s_bend_block()
     outline = base_outlines(block)[0]
     for level, y in outline.level_y.items():
@@ -380,7 +380,7 @@ def test_narrowness_between_levels_is_found():
     assert finding.amount_mm == pytest.approx(narrowest, abs=0.05)
 
 
-def test_a_sharp_turn_at_a_level_is_warned():
+def test_it_checks_that_a_sharp_turn_at_a_level_is_warned():
     block = corset_block("10")
     pattern = alter_pattern(block, Alteration(shifts={"Front": {"waist": PanelShift(left=40.0)}}))
     turns = [f for f in pattern.findings if f.code == "seam_turns_sharply"]
@@ -388,13 +388,13 @@ def test_a_sharp_turn_at_a_level_is_warned():
     assert f"more than {MAX_TURN_DEGREES:g}°" in turns[0].message  # 30 degrees: our choice
 
 
-def test_a_gentle_turn_is_not_warned():
+def test_it_checks_that_a_gentle_turn_is_not_warned():
     block = corset_block("10")
     pattern = alter_pattern(block, Alteration(shifts={"Front": {"waist": PanelShift(left=10.0)}}))
     assert "seam_turns_sharply" not in {f.code for f in pattern.findings}
 
 
-def test_a_bent_fold_is_an_error():
+def test_it_checks_that_a_bent_fold_is_an_error():
     block = bodice_block()
     pattern = alter_pattern(block, Alteration(shifts={"Centre front": {"waist": PanelShift(left=5.0)}}))
     (fold,) = [f for f in pattern.findings if f.code == "fold_not_straight"]
@@ -402,14 +402,14 @@ def test_a_bent_fold_is_an_error():
     assert fold.amount_mm == pytest.approx(5.0, abs=0.01)
 
 
-def test_a_band_shortened_to_nothing_is_the_only_error_reported():
+def test_it_checks_that_a_band_shortened_to_nothing_is_the_only_error_reported():
     block = bodice_block()
     pattern = alter_pattern(block, Alteration(shifts={}, bands={("waist", "abdomen"): -95.0}))
     assert [(f.code, f.severity) for f in pattern.findings] == [("band_too_short", "error")]
     assert alter_pattern(block, Alteration(shifts={}, bands={("waist", "abdomen"): -30.0})).findings == ()
 
 
-def test_a_centre_front_moved_evenly_stays_on_the_fold():
+def test_it_checks_that_a_centre_front_moved_evenly_stays_on_the_fold():
     block = bodice_block()
     even = {lv: PanelShift(left=5.0) for lv in block.level_names}
     pattern = alter_pattern(block, Alteration(shifts={"Centre front": even}))
@@ -421,14 +421,14 @@ def test_a_centre_front_moved_evenly_stays_on_the_fold():
     Alteration(shifts={"Front": {"knee": PanelShift(1, 1)}}),
     Alteration(shifts={}, bands={("hip", "waist"): 5.0}),
 ])
-def test_names_the_block_does_not_have_are_refused(bad):
+def test_it_checks_that_names_the_block_does_not_have_are_refused(bad):
     with pytest.raises(ValueError):
         alter_block(corset_block("10"), bad)
 
 
 @settings(max_examples=25, deadline=None)
 @given(data=st.data())
-def test_wild_shifts_never_fail_and_every_crossed_outline_is_reported(data):
+def test_it_checks_that_wild_shifts_never_fail_and_every_crossed_outline_is_reported(data):
     block = corset_block("8")
     wild = st.floats(-60.0, 60.0, allow_nan=False)
     shifts = {p.name: {lv: PanelShift(data.draw(wild), data.draw(wild))
@@ -442,7 +442,7 @@ def test_wild_shifts_never_fail_and_every_crossed_outline_is_reported(data):
         assert Polygon(outline.cutting).is_valid
 
 
-def test_geometry_findings_are_core_findings():
+def test_it_checks_that_geometry_findings_are_core_findings():
     from patterns.core.findings import Finding
 
     (finding,) = alter_pattern(s_bend_block(), Alteration(shifts={})).findings

@@ -34,7 +34,7 @@ def _texts(svg: str) -> list[str]:
     return ["".join(el.itertext()).strip() for el in root.iter(f"{SVG}text")]
 
 
-def test_demo_preview_renders_without_any_warning():
+def test_it_checks_that_demo_preview_renders_without_any_warning():
     block = corset_block("10")
     with warnings.catch_warnings():
         warnings.simplefilter("error")
@@ -42,7 +42,7 @@ def test_demo_preview_renders_without_any_warning():
     assert ET.fromstring(svg).tag == f"{SVG}svg"
 
 
-def test_same_input_gives_byte_identical_svg():
+def test_it_checks_that_same_input_gives_byte_identical_svg():
     block = corset_block("10")
     first = preview_svg(block, _alteration(block), markers=[("Back", "hip", "check")])
     second = preview_svg(block, _alteration(block), markers=[("Back", "hip", "check")])
@@ -50,7 +50,7 @@ def test_same_input_gives_byte_identical_svg():
     assert "<dc:date>" not in first
 
 
-def test_renders_in_threads_give_the_same_svg():
+def test_it_renders_in_threads_give_the_same_svg():
     block = corset_block("10")
     expected = preview_svg(block, _alteration(block))
     results = []
@@ -65,7 +65,7 @@ def test_renders_in_threads_give_the_same_svg():
     assert results == [expected] * 4
 
 
-def test_svg_names_every_level_and_writes_shifts_in_the_plan_unit():
+def test_it_checks_that_svg_names_every_level_and_writes_shifts_in_the_plan_unit():
     block = corset_block("10")
     texts = _texts(preview_svg(block, _alteration(block), unit="cm"))
     for level in block.level_names:
@@ -76,7 +76,7 @@ def test_svg_names_every_level_and_writes_shifts_in_the_plan_unit():
     assert not [t for t in texts if t in ("0.0", "+0.0", f"{MINUS}0.0")]
 
 
-def test_the_printed_picture_leaves_the_amounts_to_the_tables():
+def test_it_checks_that_the_printed_picture_leaves_the_amounts_to_the_tables():
     block = corset_block("10")
     with_amounts = _texts(preview_svg(block, _alteration(block), unit="cm"))
     without = _texts(preview_svg(block, _alteration(block), unit="cm", amounts=False,
@@ -87,7 +87,7 @@ def test_the_printed_picture_leaves_the_amounts_to_the_tables():
     assert {p.name for p in block.panels} <= set(without) and "seam not true" in without
 
 
-def test_shift_labels_in_inches_and_with_a_formatter():
+def test_it_checks_that_shift_labels_in_inches_and_with_a_formatter():
     block = corset_block("10")
     # 1/8 in and 1/4 in: 1 in = 25.4 mm exactly (international yard and pound agreement, 1959).
     alteration = Alteration(shifts={"Front": {"waist": PanelShift(3.175, -6.35)}})
@@ -98,7 +98,7 @@ def test_shift_labels_in_inches_and_with_a_formatter():
     assert not [t for t in custom if t.startswith("moved")]
 
 
-def test_markers_appear_where_asked():
+def test_it_checks_that_markers_appear_where_asked():
     block = bodice_block()
     alteration = Alteration(shifts={"Side front": {"waist": PanelShift(-45.0, -45.0)}})
     pattern = alter_pattern(block, alteration)
@@ -108,7 +108,7 @@ def test_markers_appear_where_asked():
     assert "too narrow" in texts
 
 
-def test_drawing_keeps_true_proportion():
+def test_it_checks_that_drawing_keeps_true_proportion():
     block = bodice_block()
     with warnings.catch_warnings():
         warnings.simplefilter("error")
@@ -122,13 +122,13 @@ def test_drawing_keeps_true_proportion():
     assert y1 < y0  # y grows downwards on the pattern, upwards on screen
 
 
-def test_uses_colour_blind_safe_colours():
+def test_it_uses_colour_blind_safe_colours():
     block = corset_block("10")
     svg = preview_svg(block, _alteration(block)).upper()
     assert OKABE_ITO["blue"].upper() in svg and OKABE_ITO["orange"].upper() in svg
     assert "#FF0000" not in svg and "#00FF00" not in svg
 
 
-def test_unknown_unit_is_refused():
+def test_it_checks_that_unknown_unit_is_refused():
     with pytest.raises(ValueError):
         shift_formatter("furlong")
