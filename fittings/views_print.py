@@ -14,6 +14,7 @@ from fittings.printing.registry import DOCUMENTS
 from fittings.services.printing import PrintRefused, settle_abandoned, start_print, waiting_for_a_worker
 from patterns.core.tiling import LARGE_FORMATS, TilingError
 
+
 class PrintForm(forms.Form):
     paper = forms.ChoiceField(choices=PrintPaper.choices, label="Paper")
     kind = forms.ChoiceField(choices=PrintKind.choices, label="Print", initial=PrintKind.BOTH)

@@ -17,7 +17,10 @@ from django.template.loader import render_to_string
 
 from fittings.printing.data import DocumentData, _header, altered_pattern, cautions
 from fittings.printing.engine import html_to_pdf, svg_data_uri
+from patterns.core.boning import BoningList, boning_list
 from patterns.core.export import _n, _path
+from patterns.core.lacing import Lacing, lacing
+from patterns.core.outline import AlteredPattern
 from patterns.core.sheets import (
     CUT_COLOUR,
     FONT_FAMILY,
@@ -34,9 +37,6 @@ from patterns.core.sheets import (
     piece_labels,
     square_svg,
 )
-from patterns.core.boning import BoningList, boning_list
-from patterns.core.lacing import Lacing, lacing
-from patterns.core.outline import AlteredPattern
 from patterns.core.tiling import PORTRAIT, LargeSheet, PaperSize, TileGrid, large_format, large_sheet
 from patterns.core.units import DEFAULT_STEP_MM, format_with_unit
 

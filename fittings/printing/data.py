@@ -29,7 +29,6 @@ from patterns.core.report import direction
 from patterns.core.tiling import paper_size
 from patterns.core.units import UNIT_LABELS, format_length
 
-
 # Shown whenever a plan reduces the waist; the fitter's and the client's
 # judgment come first (common practice).
 WAIST_REDUCTION_CAUTION = (

@@ -17,9 +17,9 @@ from django.db import transaction
 from django.utils import timezone
 
 from atelier.roles import EDITORS, role_of
+from fittings.models import PrintFile, PrintJob, PrintKind, PrintPaper, PrintStatus, RevisionStatus
 from fittings.printing.data import DocumentError, check_printable, document_data
 from fittings.printing.registry import DOCUMENTS, draw
-from fittings.models import PrintFile, PrintJob, PrintKind, PrintPaper, PrintStatus, RevisionStatus
 from fittings.services.plans import issue_revision
 
 logger = logging.getLogger(__name__)

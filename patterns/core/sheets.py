@@ -17,7 +17,6 @@ from patterns.core.export import _grain_path, _n, _path, notch_segments, sheet_l
 from patterns.core.outline import AlteredPattern, PanelOutline
 from patterns.core.tiling import PAGE_MARGIN_MM, TileGrid, tile_grid, tile_label
 
-
 # Panels on the cutting sheet: this far apart, and this far in from the
 # sheet's edge (mm).
 PANEL_GAP_MM = 10.0
