@@ -88,7 +88,7 @@ def _draw_a_preview():
 
 def _printing():
     """WeasyPrint's font configuration (built once per process) and its first, slowest document."""
-    from fittings import documents
+    from fittings.printing import engine
 
-    documents.font_config()
-    documents.html_to_pdf("<!doctype html><title>warm-up</title><p>One line.</p>")
+    engine.font_config()
+    engine.html_to_pdf("<!doctype html><title>warm-up</title><p>One line.</p>")

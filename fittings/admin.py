@@ -159,6 +159,7 @@ class PinAdjustmentAdmin(ReadOnlyAdmin):
 from django.utils.html import format_html_join  # noqa: E402  (printing, appended below)
 
 from fittings.models import PrintJob  # noqa: E402
+from fittings.printing.registry import DOCUMENTS  # noqa: E402
 
 
 @admin.register(PrintJob)
@@ -183,9 +184,8 @@ class PrintJobAdmin(ReadOnlyAdmin):
     def downloads(self, job):
         links = [
             format_html('<a href="{}">{}</a>', reverse("fittings:print_download", args=[job.pk, name]), label)
-            for name, label, file in (("work-order", "Work order", job.work_order),
-                                      ("cutting-sheet", "Cutting sheet", job.cutting_sheet))
-            if file
+            for name, label in ((kept.document, DOCUMENTS[kept.document].label)
+                                for kept in job.files.all() if kept.file and kept.document in DOCUMENTS)
         ]
         return format_html_join(" · ", "{}", ((link,) for link in links)) if links else "–"
 

@@ -345,6 +345,14 @@ class PrintKind(models.TextChoices):
     CUTTING_SHEET = "cutting_sheet", "Cutting sheet"
 
 
+# The documents each kind of print draws (slugs of fittings.printing.registry.DOCUMENTS).
+KIND_DOCUMENTS = {
+    PrintKind.BOTH: ("work-order", "cutting-sheet"),
+    PrintKind.WORK_ORDER: ("work-order",),
+    PrintKind.CUTTING_SHEET: ("cutting-sheet",),
+}
+
+
 class PrintStatus(models.TextChoices):
     QUEUED = "queued", "Waiting to start"
     RUNNING = "running", "Drawing"
@@ -368,8 +376,6 @@ class PrintJob(models.Model):
     site_url = models.CharField(
         max_length=200, blank=True, help_text="The app's address when printing was asked for (for the QR code).",
     )
-    work_order = models.FileField(upload_to=print_upload_to, storage=private_storage, blank=True)
-    cutting_sheet = models.FileField(upload_to=print_upload_to, storage=private_storage, blank=True)
     task_id = models.CharField(max_length=64, blank=True)
     created_by = models.ForeignKey(settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+")
     created_at = models.DateTimeField(default=timezone.now)
@@ -394,12 +400,52 @@ class PrintJob(models.Model):
         return self.status in (PrintStatus.DONE, PrintStatus.FAILED)
 
     @property
+    def documents(self) -> tuple[str, ...]:
+        """The slugs of the documents this job draws (fittings.printing.registry.DOCUMENTS), in order."""
+        return KIND_DOCUMENTS[self.kind]
+
+    @property
     def wants_work_order(self):
-        return self.kind in (PrintKind.BOTH, PrintKind.WORK_ORDER)
+        return "work-order" in self.documents
 
     @property
     def wants_cutting_sheet(self):
-        return self.kind in (PrintKind.BOTH, PrintKind.CUTTING_SHEET)
+        return "cutting-sheet" in self.documents
+
+    def file_of(self, document: str):
+        """The stored file of one document of this job, or None."""
+        kept = next((f for f in self.files.all() if f.document == document), None)
+        return kept.file if kept is not None and kept.file else None
+
+    @property
+    def work_order(self):
+        return self.file_of("work-order")
+
+    @property
+    def cutting_sheet(self):
+        return self.file_of("cutting-sheet")
+
+
+class PrintFile(models.Model):
+    """One drawn document of a print job, kept privately; a job keeps one file per document."""
+
+    job = models.ForeignKey(PrintJob, models.CASCADE, related_name="files")
+    document = models.SlugField(max_length=40, help_text="Which document (fittings.printing.registry.DOCUMENTS).")
+    file = models.FileField(upload_to=print_upload_to, storage=private_storage)
+
+    class Meta:
+        ordering = ["job", "id"]
+        constraints = [models.UniqueConstraint(fields=["job", "document"], name="print_file_one_per_document")]
+
+    def __str__(self):
+        return f"{self.document} of print job {self.job_id}"
+
+    @property
+    def label(self) -> str:
+        from fittings.printing.registry import DOCUMENTS
+
+        known = DOCUMENTS.get(self.document)
+        return known.label if known else self.document
 
 
 # --- audit trail (security and data safety) ---------------------------------------------

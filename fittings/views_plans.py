@@ -470,31 +470,28 @@ def revision_checks(request, pk, number):
     return _checks_response(request, block, result, result.unit)
 
 
-PROOFS = {"work-order": "work order", "cutting-sheet": "cutting sheet"}
-
-
 @require_GET
 @role_required(*EDITORS)
 def revision_proof(request, pk, number, document):
     """A proof of a revision's document, drawn at once and not issuing it: a draft's pages say DRAFT on each."""
-    from fittings import documents
+    from fittings.printing.data import DocumentError, check_printable, document_data
+    from fittings.printing.registry import DOCUMENTS
     from fittings.views_print import default_paper
 
-    if document not in PROOFS:
+    if document not in DOCUMENTS:
         raise Http404("No such document.")
     plan = _plan(pk)
     revision = _found(selectors.revision_for_print(plan, number), "revision")
-    data = documents.document_data(revision, request.build_absolute_uri("/"))
+    data = document_data(revision, request.build_absolute_uri("/"))
     try:
-        documents.check_printable(data)
-    except documents.DocumentError as exc:
+        check_printable(data)
+    except DocumentError as exc:
         return render(request, "fittings/proof_refused.html", {"plan": plan, "revision": revision, "error": str(exc)},
                       status=409)
     paper = request.GET.get("paper") or default_paper(revision)
     if paper not in ("a4", "letter"):
         return HttpResponse("Choose a paper size: a4 or letter.", status=400, content_type="text/plain")
-    render_pdf = documents.render_work_order if document == "work-order" else documents.render_cutting_sheet
-    response = HttpResponse(render_pdf(data, paper), content_type="application/pdf")
+    response = HttpResponse(DOCUMENTS[document].render(data, paper), content_type="application/pdf")
     state = "draft" if revision.status != "issued" else "issued"
     response["Content-Disposition"] = (f'inline; filename="proof-{document}-{plan.client.reference}-plan{plan.pk}'
                                        f'-r{number}-{state}.pdf"')

@@ -10,11 +10,9 @@ from django.views.decorators.http import require_http_methods
 
 from atelier.roles import EDITORS, ROLES, WORKROOM, role_of, role_required
 from fittings.models import PlanRevision, PrintJob, PrintKind, PrintPaper, PrintStatus
+from fittings.printing.registry import DOCUMENTS
 from fittings.services.printing import PrintRefused, settle_abandoned, start_print, waiting_for_a_worker
 from patterns.core.tiling import LARGE_FORMATS, TilingError
-
-# The file a download link names, and the job's field that holds it.
-DOCUMENTS = {"work-order": "work_order", "cutting-sheet": "cutting_sheet"}
 
 
 class PrintForm(forms.Form):
@@ -75,7 +73,8 @@ def print_status(request, job_id):
     job = settle_abandoned(_job(job_id))
     partial = request.htmx and not request.htmx.history_restore_request
     template = "fittings/print/_status.html" if partial else "fittings/print/status.html"
-    context = {"job": job, "revision": job.revision, "no_worker": waiting_for_a_worker(job),
+    files = [kept for kept in job.files.all() if kept.file]
+    context = {"job": job, "revision": job.revision, "no_worker": waiting_for_a_worker(job), "files": files,
                "keep_days": settings.ATELIER_KEEP_PRINTS_DAYS, "large_formats": LARGE_FORMATS.values()}
     return render(request, template, context)
 
@@ -89,11 +88,10 @@ def download_name(job, document: str) -> str:
 @role_required(*ROLES)
 @require_http_methods(["GET"])
 def print_download(request, job_id, document):
-    field = DOCUMENTS.get(document)
-    if field is None:
+    if document not in DOCUMENTS:
         raise Http404("No such document.")
     job = _job(job_id)
-    file = getattr(job, field)
+    file = job.file_of(document)
     if job.status != PrintStatus.DONE or not file:
         raise Http404("This document is not ready.")
     try:
@@ -114,7 +112,7 @@ def print_large(request, job_id, fmt):
     Drawn when asked for and kept nowhere (one page takes about a tenth of a
     second): nothing to clear or erase later, and the job's own files stay as they were.
     """
-    from fittings.documents import document_data
+    from fittings.printing.data import document_data
     from fittings.workroom import render_large_sheet
 
     if fmt not in LARGE_FORMATS:

@@ -28,7 +28,7 @@ def projector(request, plan_id, number):
 @require_http_methods(["GET"])
 def projector_pieces(request, plan_id, number):
     """The pieces as SVG, one user unit to the millimetre; the page scales it to the calibrated screen."""
-    from fittings.documents import document_data
+    from fittings.printing.data import document_data
     from fittings.workroom import projector_svg
 
     revision = _revision(request, plan_id, number)

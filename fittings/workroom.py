@@ -1,6 +1,6 @@
 """The workroom's side of a print: boning and lacing lists, one-sheet large-format PDFs, the projector's SVG.
 
-Plain data in (fittings.documents.DocumentData and the altered outlines),
+Plain data in (fittings.printing.data.DocumentData and the altered outlines),
 strings and bytes out; the lists themselves are worked out by
 patterns/core/boning.py and patterns/core/lacing.py.  Lengths are shown in
 the plan's unit (cm to 1 mm, inches to 1/16 in).  Bones are cut to the
@@ -15,33 +15,28 @@ from xml.etree import ElementTree as ET
 
 from django.template.loader import render_to_string
 
-from fittings.documents import (
+from fittings.printing.data import DocumentData, _header, altered_pattern, cautions
+from fittings.printing.engine import html_to_pdf, svg_data_uri
+from patterns.core.boning import BoningList, boning_list
+from patterns.core.export import _n, _path
+from patterns.core.lacing import Lacing, lacing
+from patterns.core.outline import AlteredPattern
+from patterns.core.sheets import (
     CUT_COLOUR,
     FONT_FAMILY,
     SQUARE_PAD_MM,
     TEST_SQUARES,
-    DocumentData,
     Sheet,
     SheetPiece,
-    _d,
     _draw_piece,
-    _header,
     _line,
-    _n,
     _svg_root,
     _text,
     _thin,
-    altered_pattern,
-    cautions,
-    html_to_pdf,
     lay_out,
     piece_labels,
     square_svg,
-    svg_data_uri,
 )
-from patterns.core.boning import BoningList, boning_list
-from patterns.core.lacing import Lacing, lacing
-from patterns.core.outline import AlteredPattern
 from patterns.core.tiling import PORTRAIT, LargeSheet, PaperSize, TileGrid, large_format, large_sheet
 from patterns.core.units import DEFAULT_STEP_MM, format_with_unit
 
@@ -138,7 +133,7 @@ def _workroom_marks(parent, data: DocumentData, pattern: AlteredPattern, offsets
         if c.kind == "seam":
             continue  # on the stitch line, already drawn
         g = ET.SubElement(parent, "g", {"transform": f"translate({_n(dx)} {_n(dy)})"})
-        _line(g, _d(c.line, False), CHANNEL_COLOUR, CHANNEL_WIDTH_MM, stroke_dasharray=CHANNEL_DASH,
+        _line(g, _path(c.line, False), CHANNEL_COLOUR, CHANNEL_WIDTH_MM, stroke_dasharray=CHANNEL_DASH,
               **{"class": "channel"})
     if laces is not None and laces.eyelets:
         dx, dy = offsets.get(laces.panel, (0.0, 0.0))

@@ -18,7 +18,8 @@ from django.utils import timezone
 from atelier.storage import private_storage
 from fittings import audit
 from fittings.models import (
-    AuditEntry, Client, FabricLayout, Measurement, MeasurementSession, Photo, PinAdjustment, Plan, PlanRevision, PrintJob,
+    AuditEntry, Client, FabricLayout, Measurement, MeasurementSession, Photo, PinAdjustment, Plan, PlanRevision, PrintFile,
+    PrintJob,
 )
 from patterns.core.measures import MEASURE_BY_CODE
 from patterns.core.units import format_length
@@ -67,8 +68,7 @@ def client_records(reference: str) -> ClientRecords:
     photos = Photo.objects.filter(session__client=client)
     jobs = PrintJob.objects.filter(revision_id__in=revision_ids)
     files = [name for name in photos.values_list("image", flat=True) if name]
-    for work_order, cutting_sheet in jobs.values_list("work_order", "cutting_sheet"):
-        files += [name for name in (work_order, cutting_sheet) if name]
+    files += [name for name in PrintFile.objects.filter(job__in=jobs).values_list("file", flat=True) if name]
     return ClientRecords(
         client=client, sessions=sessions, measurements=Measurement.objects.filter(session__client=client),
         photos=photos, plans=plans, revision_ids=revision_ids,

@@ -17,8 +17,9 @@ from django.db import transaction
 from django.utils import timezone
 
 from atelier.roles import EDITORS, role_of
-from fittings.documents import DocumentError, check_printable, document_data, render_documents
-from fittings.models import PrintJob, PrintKind, PrintPaper, PrintStatus, RevisionStatus
+from fittings.models import PrintFile, PrintJob, PrintKind, PrintPaper, PrintStatus, RevisionStatus
+from fittings.printing.data import DocumentError, check_printable, document_data
+from fittings.printing.registry import DOCUMENTS, draw
 from fittings.services.plans import issue_revision
 
 logger = logging.getLogger(__name__)
@@ -97,13 +98,12 @@ def clear_old_files(*, older_than: timedelta) -> int:
     """
     cutoff = timezone.now() - older_than
     cleared = 0
-    old = PrintJob.objects.filter(finished_at__lt=cutoff).exclude(work_order="", cutting_sheet="")
+    old = PrintJob.objects.filter(finished_at__lt=cutoff, files__isnull=False).distinct()
     for job in old.iterator():
-        for field in ("work_order", "cutting_sheet"):
-            file = getattr(job, field)
-            if file:
-                file.storage.delete(file.name)
-        PrintJob.objects.filter(pk=job.pk).update(work_order="", cutting_sheet="")
+        for kept in PrintFile.objects.filter(job=job):
+            if kept.file:
+                kept.file.storage.delete(kept.file.name)
+            kept.delete()
         cleared += 1
     return cleared
 
@@ -126,20 +126,20 @@ def run_print_job(job_id: int) -> str:
     ).get(pk=job_id)
     try:
         data = document_data(job.revision, job.site_url)
-        _step(job_id, "Drawing " + " and ".join(
-            name for name, wanted in (("the work order", job.wants_work_order),
-                                      ("the cutting sheet", job.wants_cutting_sheet)) if wanted))
+        _step(job_id, "Drawing " + " and ".join(f"the {DOCUMENTS[slug].label.lower()}" for slug in job.documents))
         started = time.perf_counter()
-        files = render_documents(data, job.paper, work_order=job.wants_work_order,
-                                 cutting_sheet=job.wants_cutting_sheet)
+        files = draw(data, job.paper, job.documents)
         logger.info("Print job %s: %s drawn in %.2f s", job_id, " and ".join(files), time.perf_counter() - started)
         _step(job_id, "Saving the files")
-        for field, content in files.items():
-            getattr(job, field).save(f"{field}.pdf", ContentFile(content), save=False)
-        job.status = PrintStatus.DONE
-        job.step = ""
-        job.finished_at = timezone.now()
-        job.save(update_fields=[*files, "status", "step", "finished_at"])
+        with transaction.atomic():
+            for slug, content in files.items():
+                kept = PrintFile(job=job, document=slug)
+                kept.file.save(f"{slug}.pdf", ContentFile(content), save=False)
+                kept.save()
+            job.status = PrintStatus.DONE
+            job.step = ""
+            job.finished_at = timezone.now()
+            job.save(update_fields=["status", "step", "finished_at"])
     except Exception as exc:
         logger.exception("Print job %s failed", job_id)
         reason = f"{type(exc).__name__}: {exc}"[:400]

@@ -127,6 +127,7 @@ _NUM_TRIM = re.compile(r"\.?0+$")
 
 
 def _n(value: float) -> str:
+    """A number for SVG: three decimals (a micrometre), no trailing zeros."""
     text = f"{value:.3f}"
     text = _NUM_TRIM.sub("", text) if "." in text else text
     return "0" if text in ("-0", "") else text
@@ -139,8 +140,9 @@ def _path(points, closed: bool) -> str:
 
 
 def _grain_path(grain: tuple[Pt, Pt]) -> str:
+    """The grainline with an arrowhead at each end."""
     (x0, y0), (x1, y1) = grain
-    length = math.hypot(x1 - x0, y1 - y0)
+    length = math.hypot(x1 - x0, y1 - y0) or 1.0
     ux, uy = (x1 - x0) / length, (y1 - y0) / length
     head, spread = 6.0, math.radians(25)
 

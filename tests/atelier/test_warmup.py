@@ -14,10 +14,10 @@ def test_it_loads_what_the_first_requests_need_without_touching_the_database(set
     # after the warm-up must not share a database connection.
     from django.template import engines
 
-    from fittings import documents
+    from fittings.printing import engine
 
     warm_up()
     assert "fittings.views_plans" in sys.modules and "shapely" in sys.modules
     cached = engines["django"].engine.template_loaders[0].get_template_cache
     assert "fittings/_plan_table.html" in cached
-    assert documents.font_config.cache_info().currsize == 1
+    assert engine.font_config.cache_info().currsize == 1

@@ -2,7 +2,7 @@
 
     .venv/bin/python tests/bench/bench_pdf.py [--runs 7] [--paper a4] [--json]
 
-Renders from plain data (fittings.documents.render_documents, as the print
+Renders from plain data (fittings.printing.registry.render_documents, as the print
 worker does), so no database is needed; Django is set up only for its
 templates.  For the demo's six-panel corset (size 10) and an invented
 twelve-panel block it prints the median and p95 wall time and CPU time
@@ -45,9 +45,11 @@ import pypdf  # noqa: E402  (only to count the pages; installed with the test ex
 
 django.setup()
 
-from fittings.documents import (  # noqa: E402
-    DocumentData, altered_pattern, cutting_sheet_html, html_to_pdf, render_documents, work_order_html,
-)
+from fittings.printing.cutting_sheet import cutting_sheet_html  # noqa: E402
+from fittings.printing.data import DocumentData, altered_pattern  # noqa: E402
+from fittings.printing.engine import html_to_pdf  # noqa: E402
+from fittings.printing.registry import render_documents  # noqa: E402
+from fittings.printing.work_order import work_order_html  # noqa: E402
 from fittings import previews  # noqa: E402
 from patterns.core.defaults import default_options  # noqa: E402
 from patterns import demo  # noqa: E402

@@ -26,12 +26,13 @@ from django.utils import timezone
 import atelier.urls
 import fittings.urls
 import fittings.urls_print
-from fittings import documents
+from fittings.printing import cutting_sheet as cutting_sheet_doc, engine, registry, work_order as work_order_doc
 from fittings.services import printing
-from fittings.documents import (
-    PANEL_GAP_MM, SHEET_MARGIN_MM, WAIST_REDUCTION_CAUTION, DocumentData, altered_pattern, client_label,
-    document_data, render_cutting_sheet, render_work_order, work_order_pdf,
-)
+from fittings.printing.data import WAIST_REDUCTION_CAUTION, DocumentData, altered_pattern, client_label, document_data
+from fittings.printing.cutting_sheet import render_cutting_sheet
+from fittings.printing.work_order import render_work_order, work_order_pdf
+from patterns.core import sheets
+from patterns.core.sheets import PANEL_GAP_MM, SHEET_MARGIN_MM
 from fittings.models import MeasurementSession, PrintJob, RevisionStatus
 from fittings.wording import in_unit
 from fittings.services import plans as plan_services
@@ -186,7 +187,7 @@ def test_it_draws_every_panel_at_true_size_across_the_tiles(pdfs, strong, bodice
     data = {"strong": strong, "bodice": bodice}[name]
     _, rows, cols = expected_grid(data, paper)
     pattern = altered_pattern(data)
-    cut_width_pt = documents.CUT_WIDTH_MM / MM_PER_PT
+    cut_width_pt = sheets.CUT_WIDTH_MM / MM_PER_PT
     groups: dict[tuple, list] = {}
     with pdfplumber.open(io.BytesIO(pdfs("cutting_sheet", name, paper))) as doc:
         for index, page in enumerate(doc.pages[1:]):
@@ -224,10 +225,10 @@ def test_it_draws_every_panel_at_true_size_across_the_tiles(pdfs, strong, bodice
 @pytest.mark.parametrize("paper", ["a4", "letter"])
 def test_it_keeps_each_panel_label_within_one_row_of_tiles(strong, gentle, bodice, name, paper):
     data = {"strong": strong, "gentle": gentle, "bodice": bodice}[name]
-    sheet, grid = documents.sheet_grid(altered_pattern(data), paper)
+    sheet, grid = sheets.sheet_grid(altered_pattern(data), paper)
     rows_of: dict[str, set[int]] = {}
     for tile in grid.tiles():
-        for label in documents.piece_labels(sheet, grid, tile):
+        for label in sheets.piece_labels(sheet, grid, tile):
             if label.bold:
                 rows_of.setdefault(label.text, set()).add(tile.row)
     assert sorted(rows_of) == sorted(o.name for o in altered_pattern(data).altered)
@@ -380,14 +381,14 @@ def forks(monkeypatch):
     """Counts the child processes a print starts, in a process taken for the one-thread task worker
     (the test run may have a live server's thread waiting on its socket)."""
     started = []
-    real = documents._in_forked_process
+    real = engine._in_forked_process
 
     def counting(make):
         started.append(make)
         return real(make)
 
-    monkeypatch.setattr(documents, "_in_forked_process", counting)
-    monkeypatch.setattr(documents.threading, "active_count", lambda: 1)
+    monkeypatch.setattr(engine, "_in_forked_process", counting)
+    monkeypatch.setattr(engine.threading, "active_count", lambda: 1)
     return started
 
 
@@ -397,42 +398,42 @@ FORK_WITH_IDLE_THREADS = pytest.mark.filterwarnings("ignore:This process .* is m
 @FORK_WITH_IDLE_THREADS
 def test_it_draws_the_cutting_sheet_in_a_second_process_with_the_same_bytes(pdfs, strong, forks, settings):
     settings.ATELIER_PRINT_PROCESSES = 2
-    files = documents.render_documents(strong, "a4")
+    files = registry.render_documents(strong, "a4")
     assert len(forks) == 1
     assert files == {"work_order": pdfs("work_order", "strong", "a4"),
                      "cutting_sheet": pdfs("cutting_sheet", "strong", "a4")}
 
 
 def test_it_draws_one_after_the_other_when_told_or_when_threads_run(strong, forks, settings, monkeypatch):
-    monkeypatch.setattr(documents, "render_work_order", lambda data, paper, pattern=None: b"WO")
-    monkeypatch.setattr(documents, "render_cutting_sheet", lambda data, paper, pattern=None: b"CS")
+    monkeypatch.setattr(work_order_doc, "render_work_order", lambda data, paper, pattern=None: b"WO")
+    monkeypatch.setattr(cutting_sheet_doc, "render_cutting_sheet", lambda data, paper, pattern=None: b"CS")
     settings.ATELIER_PRINT_PROCESSES = 1
-    assert documents.render_documents(strong, "a4") == {"work_order": b"WO", "cutting_sheet": b"CS"}
+    assert registry.render_documents(strong, "a4") == {"work_order": b"WO", "cutting_sheet": b"CS"}
     settings.ATELIER_PRINT_PROCESSES = 2
-    monkeypatch.setattr(documents.threading, "active_count", lambda: 3)  # as in a threaded web server
-    assert documents.render_documents(strong, "a4") == {"work_order": b"WO", "cutting_sheet": b"CS"}
-    assert documents.render_documents(strong, "a4", work_order=False) == {"cutting_sheet": b"CS"}
+    monkeypatch.setattr(engine.threading, "active_count", lambda: 3)  # as in a threaded web server
+    assert registry.render_documents(strong, "a4") == {"work_order": b"WO", "cutting_sheet": b"CS"}
+    assert registry.render_documents(strong, "a4", work_order=False) == {"cutting_sheet": b"CS"}
     assert forks == []
 
 
 @FORK_WITH_IDLE_THREADS
 def test_it_reports_a_failed_or_vanished_second_process_in_words(strong, forks, settings, monkeypatch):
     settings.ATELIER_PRINT_PROCESSES = 2
-    monkeypatch.setattr(documents, "render_work_order", lambda data, paper, pattern=None: b"WO")
+    monkeypatch.setattr(work_order_doc, "render_work_order", lambda data, paper, pattern=None: b"WO")
 
     def broken(data, paper, pattern=None):
         raise ValueError("no paper left")
 
-    monkeypatch.setattr(documents, "render_cutting_sheet", broken)
+    monkeypatch.setattr(cutting_sheet_doc, "render_cutting_sheet", broken)
     with pytest.raises(RuntimeError, match=r"could not be drawn \(ValueError: no paper left\)"):
-        documents.render_documents(strong, "a4")
+        registry.render_documents(strong, "a4")
 
     def killed(data, paper, pattern=None):
         os.kill(os.getpid(), signal.SIGKILL)
 
-    monkeypatch.setattr(documents, "render_cutting_sheet", killed)
+    monkeypatch.setattr(cutting_sheet_doc, "render_cutting_sheet", killed)
     with pytest.raises(RuntimeError, match="stopped"):
-        documents.render_documents(strong, "a4")
+        registry.render_documents(strong, "a4")
     assert len(forks) == 2
 
 
@@ -449,8 +450,8 @@ PDF_STUB = b"%PDF-1.7\n% test stand-in\n"
 @pytest.fixture
 def quick_render(monkeypatch):
     """Stand-ins for WeasyPrint where a test is about the job, not the pages."""
-    monkeypatch.setattr("fittings.documents.render_work_order", lambda data, paper, pattern=None: PDF_STUB + b"WO")
-    monkeypatch.setattr("fittings.documents.render_cutting_sheet", lambda data, paper, pattern=None: PDF_STUB + b"CS")
+    monkeypatch.setattr("fittings.printing.work_order.render_work_order", lambda data, paper, pattern=None: PDF_STUB + b"WO")
+    monkeypatch.setattr("fittings.printing.cutting_sheet.render_cutting_sheet", lambda data, paper, pattern=None: PDF_STUB + b"CS")
 
 
 def start_url(revision):
@@ -656,7 +657,7 @@ def test_it_records_a_failed_drawing_in_words(fitter_client, plan, monkeypatch):
     def broken(data, paper, pattern=None):
         raise RuntimeError("the pen ran dry")
 
-    monkeypatch.setattr("fittings.documents.render_work_order", broken)
+    monkeypatch.setattr("fittings.printing.work_order.render_work_order", broken)
     revision = selectors.latest_revision(plan)
     response = fitter_client.post(start_url(revision), {"paper": "a4", "kind": "both"})
     job = PrintJob.objects.get()
@@ -741,7 +742,7 @@ def fonttools_subsetting(monkeypatch):
     import weasyprint.pdf.fonts as weasy_fonts
     from fontTools.misc import timeTools
 
-    documents.weasyprint()
+    engine.weasyprint()
     calls = []
     real = weasy_fonts.Font._fonttools_subset
 
@@ -765,7 +766,7 @@ def test_it_prints_the_same_bytes_when_fonts_are_subset_with_fonttools(fonttools
 
 def test_it_keeps_the_font_library_notes_off_the_console(fonttools_subsetting, caplog):
     with caplog.at_level("INFO"):
-        documents.html_to_pdf("<!doctype html><p>One line.</p>")
+        engine.html_to_pdf("<!doctype html><p>One line.</p>")
     assert fonttools_subsetting
     assert [r.getMessage() for r in caplog.records if r.levelno >= logging.WARNING] == []
 
@@ -785,8 +786,8 @@ def test_it_imports_weasyprint_without_its_deprecation_warning_where_harfbuzz_su
         "    return real(self, name, *a, **k)\n"
         "cffi.FFI.dlopen = dlopen\n"
         "import django; django.setup()\n"
-        "from fittings import documents\n"
-        "pdf = documents.html_to_pdf('<!doctype html><p>One line.</p>')\n"
+        "from fittings.printing import engine\n"
+        "pdf = engine.html_to_pdf('<!doctype html><p>One line.</p>')\n"
         "import weasyprint.text.ffi as ffi\n"
         "print('subset library:', ffi.harfbuzz_subset, len(pdf) > 500)\n"
     )

@@ -8,7 +8,8 @@ from django.test import override_settings
 from django.urls import reverse
 
 from fittings import fabric
-from fittings.documents import document_data, work_order_html
+from fittings.printing.data import document_data
+from fittings.printing.work_order import work_order_html
 from fittings.previews import altered_for
 from fittings.models import Client, FabricLayout, LayoutStatus, Plan, PlanRevision
 from fittings.services import layouts as layout_services

@@ -77,13 +77,13 @@ def test_it_writes_every_length_of_an_inch_plan_in_inches(fitter_client, plan):
 
 
 def test_it_prints_the_findings_of_an_inch_plan_in_inches(fitter_client, plan):
-    from fittings import documents
+    from fittings.printing import data as printed, work_order
 
     assert fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]),
                               _inch_plan_with_a_heavy_fixed_cell(plan)).status_code == 302
-    data = documents.document_data(selectors.latest_revision(plan))
-    pattern = documents.altered_pattern(data)
-    texts = [row["message"] for row in documents.finding_rows(data, pattern)] + documents.cautions(data)
+    data = printed.document_data(selectors.latest_revision(plan))
+    pattern = printed.altered_pattern(data)
+    texts = [row["message"] for row in work_order.finding_rows(data, pattern)] + printed.cautions(data)
     assert any("set by hand" in t for t in texts) and any("6 in" in t for t in texts)
     assert not [t for t in texts if re.search(r"\d\s?(mm|cm)\b", t)]
 
@@ -120,7 +120,7 @@ def test_it_names_the_measurement_and_puts_the_advice_beside_it(fitter_client, r
 
 def test_it_starts_an_inch_plan_from_the_trades_inch_values(fitter_client, plan):
     """5/8 in seam allowance and a 2 in lacing gap (common practice), not 1.5 cm and 5 cm converted."""
-    from fittings import documents
+    from fittings.printing import data as printed, work_order
 
     revision = selectors.latest_revision(plan)
     values, block, options = selectors.revision_inputs(revision)
@@ -130,7 +130,7 @@ def test_it_starts_an_inch_plan_from_the_trades_inch_values(fitter_client, plan)
         assert options.lacing_gap_mm == pytest.approx(50.8)  # 2 in = 50.8 mm
         page = fitter_client.get(reverse("fittings:plan_edit", args=[plan.pk])).content.decode()
         assert re.search(r'name="lacing_gap"[^>]*value="2"', page) or re.search(r'value="2"[^>]*name="lacing_gap"', page)
-    html = documents.work_order_html(documents.document_data(revision), "a4")
+    html = work_order.work_order_html(printed.document_data(revision), "a4")
     assert "5/8 in" in re.search(r"Seam allowance</th><td>([^<]*)", html).group(1)
 
 

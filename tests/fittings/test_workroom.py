@@ -22,7 +22,8 @@ from django.urls import reverse
 
 from atelier.models import AtelierSettings, parse_stock
 from fittings import workroom
-from fittings.documents import DocumentData, altered_pattern, document_data, render_work_order
+from fittings.printing.data import DocumentData, altered_pattern, document_data
+from fittings.printing.work_order import render_work_order
 from fittings.models import PrintJob
 from fittings.services import plans as plan_services
 from fittings.tasks import run_print_job
@@ -264,7 +265,7 @@ def done_job(plan):
 
 @pytest.mark.django_db
 def test_it_offers_the_large_sheets_and_the_projector_once_a_print_is_ready(workroom_client, done_job, monkeypatch):
-    monkeypatch.setattr("fittings.documents.render_work_order", lambda data, paper, pattern=None: b"%PDF-1.7\n")
+    monkeypatch.setattr("fittings.printing.work_order.render_work_order", lambda data, paper, pattern=None: b"%PDF-1.7\n")
     assert run_print_job(done_job.pk) == "done"
     page = workroom_client.get(reverse("fittings:print_status", args=[done_job.pk])).content.decode()
     for fmt in LARGE_FORMATS:
@@ -317,7 +318,7 @@ def test_it_projects_only_issued_revisions_for_the_workroom(workroom_client, pla
 
 @pytest.mark.django_db
 def test_it_says_plainly_when_the_pieces_do_not_fit_one_a0_sheet(workroom_client, done_job, monkeypatch):
-    monkeypatch.setattr("fittings.documents.render_work_order", lambda data, paper, pattern=None: b"%PDF-1.7\n")
+    monkeypatch.setattr("fittings.printing.work_order.render_work_order", lambda data, paper, pattern=None: b"%PDF-1.7\n")
     assert run_print_job(done_job.pk) == "done"
 
     def too_large(*args, **kwargs):

@@ -11,7 +11,7 @@ from django.core.files.base import ContentFile
 from django.utils import timezone
 from PIL import Image
 
-from fittings.models import Client, Photo, Plan, PlanRevision, PrintJob, PrintStatus
+from fittings.models import Client, Photo, Plan, PlanRevision, PrintFile, PrintJob, PrintStatus
 from tests.fittings.conftest import corset_12, plan, reducing_client  # noqa: F401  (shared fixtures)
 from fittings import selectors
 
@@ -79,7 +79,8 @@ def world(demo_atelier):
     photo = Photo.objects.create(session=session, view="front", image=ContentFile(jpeg_bytes(), name="p.jpg"))
     issued = plan.revisions.get(number=1)
     job = PrintJob.objects.create(revision=issued, status=PrintStatus.DONE, finished_at=timezone.now())
-    job.work_order.save("w.pdf", ContentFile(b"%PDF-1.4 test\n%%EOF\n"), save=True)
+    kept = PrintFile(job=job, document="work-order")
+    kept.file.save("w.pdf", ContentFile(b"%PDF-1.4 test\n%%EOF\n"), save=True)
     return World(
         client=client, other_client=other, session=session, plan=plan, issued=issued,
         draft=plan.revisions.get(number=2), other_plan=Plan.objects.get(client=other), photo=photo, job=job,
