@@ -10,8 +10,10 @@ class AtelierSettingsAdmin(admin.ModelAdmin):
 
     fieldsets = [
         ("Boning and busk", {"fields": ["busk_stock", "bone_clearance_mm", "busk_clearance_mm"]}),
-        ("Lacing", {"fields": ["eyelet_spacing_mm", "waist_pair_mm", "eyelet_margin_mm", "eyelet_inset_mm",
-                               "lace_tail_mm"]}),
+        (
+            "Lacing",
+            {"fields": ["eyelet_spacing_mm", "waist_pair_mm", "eyelet_margin_mm", "eyelet_inset_mm", "lace_tail_mm"]},
+        ),
     ]
 
     def _owner(self, request):

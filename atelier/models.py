@@ -63,34 +63,55 @@ class AtelierSettings(models.Model):
     """
 
     busk_stock = models.TextField(
-        "Busk lengths in stock", default=DEFAULT_STOCK_TEXT,
+        "Busk lengths in stock",
+        default=DEFAULT_STOCK_TEXT,
         help_text="Separated by semicolons or new lines: millimetres, or with cm or in (for example 10 in; 28 cm). "
-                  "The busk chosen is the longest of these not longer than the centre front less the busk clearance.",
+        "The busk chosen is the longest of these not longer than the centre front less the busk clearance.",
     )
     bone_clearance_mm = mm_field(
-        "Bone clearance (mm, both ends together)", default=BONE_CLEARANCE_MM,
+        "Bone clearance (mm, both ends together)",
+        default=BONE_CLEARANCE_MM,
         help_text="A bone is its channel less this, clear of the bound top and bottom edges (about 12 mm is usual).",
     )
     busk_clearance_mm = mm_field(
-        "Busk clearance (mm, both ends together)", null=True, blank=True,
+        "Busk clearance (mm, both ends together)",
+        null=True,
+        blank=True,
         help_text="Leave empty to use the bone clearance.",
     )
-    eyelet_spacing_mm = mm_field("Eyelet spacing (mm)", default=EYELET_SPACING_MM, validators=[_positive],
-                                 help_text="No gap between neighbouring eyelets wider than this (about 25 mm is usual).")
-    waist_pair_mm = mm_field("Waist pair (mm apart)", default=WAIST_PAIR_MM, validators=[_positive],
-                             help_text="The two eyelets either side of the waistline (12-15 mm is usual).")
+    eyelet_spacing_mm = mm_field(
+        "Eyelet spacing (mm)",
+        default=EYELET_SPACING_MM,
+        validators=[_positive],
+        help_text="No gap between neighbouring eyelets wider than this (about 25 mm is usual).",
+    )
+    waist_pair_mm = mm_field(
+        "Waist pair (mm apart)",
+        default=WAIST_PAIR_MM,
+        validators=[_positive],
+        help_text="The two eyelets either side of the waistline (12-15 mm is usual).",
+    )
     eyelet_margin_mm = mm_field("First and last eyelet from the edges (mm)", default=END_MARGIN_MM)
     eyelet_inset_mm = mm_field("Eyelet centres in from the back stitch line (mm)", default=EYELET_INSET_MM)
-    lace_tail_mm = mm_field("Each tail of the lace (mm)", default=LACE_TAIL_MM,
-                            help_text="Added twice to the lace's estimate, for tying and for opening the back to dress.")
+    lace_tail_mm = mm_field(
+        "Each tail of the lace (mm)",
+        default=LACE_TAIL_MM,
+        help_text="Added twice to the lace's estimate, for tying and for opening the back to dress.",
+    )
 
     class Meta:
         verbose_name = verbose_name_plural = "workroom settings"
         constraints = [
             models.CheckConstraint(condition=models.Q(pk=1), name="atelier_settings_single_row"),
             models.CheckConstraint(
-                condition=models.Q(bone_clearance_mm__gte=0, eyelet_spacing_mm__gt=0, waist_pair_mm__gt=0,
-                                   eyelet_margin_mm__gte=0, eyelet_inset_mm__gte=0, lace_tail_mm__gte=0),
+                condition=models.Q(
+                    bone_clearance_mm__gte=0,
+                    eyelet_spacing_mm__gt=0,
+                    waist_pair_mm__gt=0,
+                    eyelet_margin_mm__gte=0,
+                    eyelet_inset_mm__gte=0,
+                    lace_tail_mm__gte=0,
+                ),
                 name="atelier_settings_lengths_sensible",
             ),
         ]
@@ -124,7 +145,10 @@ class AtelierSettings(models.Model):
     def lacing_rules(self) -> LacingRules:
         margin = float(self.eyelet_margin_mm)
         return LacingRules(
-            spacing_mm=float(self.eyelet_spacing_mm), waist_pair_mm=float(self.waist_pair_mm),
-            top_margin_mm=margin, bottom_margin_mm=margin, inset_mm=float(self.eyelet_inset_mm),
+            spacing_mm=float(self.eyelet_spacing_mm),
+            waist_pair_mm=float(self.waist_pair_mm),
+            top_margin_mm=margin,
+            bottom_margin_mm=margin,
+            inset_mm=float(self.eyelet_inset_mm),
             tail_mm=float(self.lace_tail_mm),
         )

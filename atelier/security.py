@@ -26,6 +26,7 @@ class RequestSizeLimitMiddleware:
             return HttpResponse(
                 f"The request is too large ({length // (1024 * 1024)} MB; at most {limit // (1024 * 1024)} MB). "
                 "Photos are limited to 8 MB each.",
-                status=413, content_type="text/plain",
+                status=413,
+                content_type="text/plain",
             )
         return self.get_response(request)

@@ -159,7 +159,9 @@ TEMPLATES = [
 if os.environ.get("DATABASE_URL"):
     DATABASES = {
         "default": dj_database_url.parse(
-            os.environ["DATABASE_URL"], conn_max_age=600, conn_health_checks=True,
+            os.environ["DATABASE_URL"],
+            conn_max_age=600,
+            conn_health_checks=True,
         ),
     }
 else:

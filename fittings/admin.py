@@ -3,10 +3,16 @@ from django.db.models import Count
 from django.urls import reverse
 from django.utils.html import format_html
 
-from fittings.services import clients as client_services
 from fittings.models import (
-    Client, Measurement, MeasurementSession, Photo, PinAdjustment, Plan, PlanRevision,
+    Client,
+    Measurement,
+    MeasurementSession,
+    Photo,
+    PinAdjustment,
+    Plan,
+    PlanRevision,
 )
+from fittings.services import clients as client_services
 
 
 class ReadOnlyAdmin(admin.ModelAdmin):
@@ -147,7 +153,6 @@ class PlanRevisionAdmin(ReadOnlyAdmin):
     list_select_related = ["plan", "plan__client", "author"]
 
 
-
 @admin.register(PinAdjustment)
 class PinAdjustmentAdmin(ReadOnlyAdmin):
     list_display = ["revision", "seam", "level", "amount_mm", "created_by", "created_at"]
@@ -170,8 +175,20 @@ class PrintJobAdmin(ReadOnlyAdmin):
     list_filter = ["status", "kind", "paper", "created_at"]
     search_fields = ["revision__plan__garment", "revision__plan__client__reference", "revision__plan__client__name"]
     list_select_related = ["revision", "revision__plan", "revision__plan__client", "created_by"]
-    fields = ["revision", "kind", "paper", "status", "step", "error", "downloads", "task_id", "created_by",
-              "created_at", "started_at", "finished_at"]
+    fields = [
+        "revision",
+        "kind",
+        "paper",
+        "status",
+        "step",
+        "error",
+        "downloads",
+        "task_id",
+        "created_by",
+        "created_at",
+        "started_at",
+        "finished_at",
+    ]
     readonly_fields = fields
 
     def has_add_permission(self, request):
@@ -184,8 +201,11 @@ class PrintJobAdmin(ReadOnlyAdmin):
     def downloads(self, job):
         links = [
             format_html('<a href="{}">{}</a>', reverse("fittings:print_download", args=[job.pk, name]), label)
-            for name, label in ((kept.document, DOCUMENTS[kept.document].label)
-                                for kept in job.files.all() if kept.file and kept.document in DOCUMENTS)
+            for name, label in (
+                (kept.document, DOCUMENTS[kept.document].label)
+                for kept in job.files.all()
+                if kept.file and kept.document in DOCUMENTS
+            )
         ]
         return format_html_join(" · ", "{}", ((link,) for link in links)) if links else "–"
 
@@ -203,7 +223,16 @@ class AuditEntryAdmin(ReadOnlyAdmin):
     list_filter = ["action", "object_type", "at"]
     search_fields = ["client_reference", "username", "summary"]
     date_hierarchy = "at"
-    fields = ["at", "username", "user", "action", "object_type", "object_id", "client_reference", "summary",
-              "before", "after"]
+    fields = [
+        "at",
+        "username",
+        "user",
+        "action",
+        "object_type",
+        "object_id",
+        "client_reference",
+        "summary",
+        "before",
+        "after",
+    ]
     readonly_fields = fields
-

@@ -27,16 +27,33 @@ def _who(user, actor):
     return None, actor or ""
 
 
-def record(*, user, action, object_type: str, object_id="", client=None, client_reference: str = "",
-           summary: str, before=None, after=None, actor: str = "") -> AuditEntry:
+def record(
+    *,
+    user,
+    action,
+    object_type: str,
+    object_id="",
+    client=None,
+    client_reference: str = "",
+    summary: str,
+    before=None,
+    after=None,
+    actor: str = "",
+) -> AuditEntry:
     """Add one entry.  ``client`` (or ``client_reference``) says whose records these are."""
     linked, username = _who(user, actor)
     if client is not None and not client_reference:
         client_reference = client.reference
     return AuditEntry.objects.create(
-        user=linked, username=username[:150], action=action, object_type=object_type,
-        object_id="" if object_id is None else str(object_id), client_reference=client_reference or "",
-        summary=summary[:SUMMARY_MAX], before=before, after=after,
+        user=linked,
+        username=username[:150],
+        action=action,
+        object_type=object_type,
+        object_id="" if object_id is None else str(object_id),
+        client_reference=client_reference or "",
+        summary=summary[:SUMMARY_MAX],
+        before=before,
+        after=after,
     )
 
 
@@ -58,6 +75,10 @@ def session_snapshot(session) -> dict:
 
 def client_snapshot(client) -> dict:
     return {
-        "reference": client.reference, "name": client.name, "contact": client.contact, "notes": client.notes,
-        "consent_given_on": client.consent_given_on, "is_deleted": client.is_deleted,
+        "reference": client.reference,
+        "name": client.name,
+        "contact": client.contact,
+        "notes": client.notes,
+        "consent_given_on": client.consent_given_on,
+        "is_deleted": client.is_deleted,
     }

@@ -19,7 +19,15 @@ from shapely.geometry import Polygon
 
 from fittings.models import FabricLayout, LayoutStatus
 from patterns.core.layout import (
-    DEFAULT_GAP_MM, DEFAULT_WIDTH_MM, SHELF, LayerRequest, Layout, best_of, cut_pieces, default_layers, layer_label,
+    DEFAULT_GAP_MM,
+    DEFAULT_WIDTH_MM,
+    SHELF,
+    LayerRequest,
+    Layout,
+    best_of,
+    cut_pieces,
+    default_layers,
+    layer_label,
     shelf_layers,
 )
 from patterns.core.units import format_with_unit
@@ -38,8 +46,9 @@ def _n(v: float) -> str:
     return "0" if text in ("-0", "") else text
 
 
-def layout_svg(layout: Layout, title: str = "", cls: str = "fabric-layout",
-               fit_mm: tuple[float, float] | None = None) -> str:
+def layout_svg(
+    layout: Layout, title: str = "", cls: str = "fabric-layout", fit_mm: tuple[float, float] | None = None
+) -> str:
     """The layout drawn at one unit to the millimetre: across the fabric left to right, its length downwards.
 
     The drawing says it is as large as the fabric, or, with ``fit_mm`` (width, height), the largest it can
@@ -49,36 +58,78 @@ def layout_svg(layout: Layout, title: str = "", cls: str = "fabric-layout",
     pad = 10.0
     box_w, box_h = w + 2 * pad, length + 2 * pad
     scale = min(fit_mm[0] / box_w, fit_mm[1] / box_h) if fit_mm else 1.0
-    root = ET.Element("svg", {
-        "xmlns": "http://www.w3.org/2000/svg", "class": cls,
-        "viewBox": f"{_n(-pad)} {_n(-pad)} {_n(box_w)} {_n(box_h)}",
-        "width": f"{_n(box_w * scale)}mm", "height": f"{_n(box_h * scale)}mm", "role": "img",
-    })
+    root = ET.Element(
+        "svg",
+        {
+            "xmlns": "http://www.w3.org/2000/svg",
+            "class": cls,
+            "viewBox": f"{_n(-pad)} {_n(-pad)} {_n(box_w)} {_n(box_h)}",
+            "width": f"{_n(box_w * scale)}mm",
+            "height": f"{_n(box_h * scale)}mm",
+            "role": "img",
+        },
+    )
     if title:
         ET.SubElement(root, "title").text = title
-    ET.SubElement(root, "rect", {"class": "fabric", "x": "0", "y": "0", "width": _n(w), "height": _n(length),
-                                 "fill": "#FFFFFF", "stroke": FABRIC_LINE, "stroke-width": "1.5",
-                                 "stroke-dasharray": "8 4"})
+    ET.SubElement(
+        root,
+        "rect",
+        {
+            "class": "fabric",
+            "x": "0",
+            "y": "0",
+            "width": _n(w),
+            "height": _n(length),
+            "fill": "#FFFFFF",
+            "stroke": FABRIC_LINE,
+            "stroke-width": "1.5",
+            "stroke-dasharray": "8 4",
+        },
+    )
     for placement, outline in layout.outlines():
         piece = layout.piece(placement.piece)
         g = ET.SubElement(root, "g", {"class": "piece mirrored" if placement.mirrored else "piece"})
         ET.SubElement(g, "title").text = piece.name + (", turned half round" if placement.rotation else "")
-        ET.SubElement(g, "polygon", {
-            "points": " ".join(f"{_n(x)},{_n(y)}" for x, y in outline),
-            "fill": MIRRORED_FILL if placement.mirrored else PIECE_FILL, "stroke": PIECE_LINE, "stroke-width": "1",
-        })
+        ET.SubElement(
+            g,
+            "polygon",
+            {
+                "points": " ".join(f"{_n(x)},{_n(y)}" for x, y in outline),
+                "fill": MIRRORED_FILL if placement.mirrored else PIECE_FILL,
+                "stroke": PIECE_LINE,
+                "stroke-width": "1",
+            },
+        )
         c = Polygon(outline).representative_point()
         ys = [y for _, y in outline]
         span = max(ys) - min(ys)
         x, y0, y1, h = c.x + 1.3 * LABEL_MM, c.y - 0.3 * span, c.y + 0.3 * span, GRAIN_HEAD_MM
-        ET.SubElement(g, "path", {  # the grainline, along the selvedge, arrowheads at both ends
-            "class": "grain", "fill": "none", "stroke": PIECE_LINE, "stroke-width": "1",
-            "d": (f"M{_n(x)} {_n(y0)}L{_n(x)} {_n(y1)}M{_n(x - h / 2)} {_n(y0 + h)}L{_n(x)} {_n(y0)}"
-                  f"L{_n(x + h / 2)} {_n(y0 + h)}M{_n(x - h / 2)} {_n(y1 - h)}L{_n(x)} {_n(y1)}L{_n(x + h / 2)} {_n(y1 - h)}"),
-        })
-        label = ET.SubElement(g, "text", {"x": _n(c.x - 0.2 * LABEL_MM), "y": _n(c.y + LABEL_MM / 3),
-                                          "font-size": _n(LABEL_MM), "font-family": "DejaVu Sans",
-                                          "text-anchor": "middle", "fill": PIECE_LINE})
+        ET.SubElement(
+            g,
+            "path",
+            {  # the grainline, along the selvedge, arrowheads at both ends
+                "class": "grain",
+                "fill": "none",
+                "stroke": PIECE_LINE,
+                "stroke-width": "1",
+                "d": (
+                    f"M{_n(x)} {_n(y0)}L{_n(x)} {_n(y1)}M{_n(x - h / 2)} {_n(y0 + h)}L{_n(x)} {_n(y0)}"
+                    f"L{_n(x + h / 2)} {_n(y0 + h)}M{_n(x - h / 2)} {_n(y1 - h)}L{_n(x)} {_n(y1)}L{_n(x + h / 2)} {_n(y1 - h)}"
+                ),
+            },
+        )
+        label = ET.SubElement(
+            g,
+            "text",
+            {
+                "x": _n(c.x - 0.2 * LABEL_MM),
+                "y": _n(c.y + LABEL_MM / 3),
+                "font-size": _n(LABEL_MM),
+                "font-family": "DejaVu Sans",
+                "text-anchor": "middle",
+                "fill": PIECE_LINE,
+            },
+        )
         label.text = _short(piece.panel, placement.mirrored)
     return ET.tostring(root, encoding="unicode")
 
@@ -149,24 +200,28 @@ def layer_rows(layers, unit: str, drawn: bool = True) -> list[dict]:
     rows = []
     for lay in layers:
         shown = lay.shown
-        rows.append({
-            "layer": lay.layer,
-            "label": lay.label,
-            "width": format_with_unit(shown.width_mm, unit),
-            "gap": format_with_unit(shown.gap_mm, unit),
-            "length": format_with_unit(shown.length_mm, unit),
-            "utilisation": f"{100 * shown.utilisation:.1f} %",
-            "method": METHOD_WORDS.get(shown.method, shown.method),
-            "note": shown.note,
-            "shelf_length": format_with_unit(lay.shelf.length_mm, unit),
-            "shelf_utilisation": f"{100 * lay.shelf.utilisation:.1f} %",
-            "improved": shown is not lay.shelf and shown.length_mm < lay.shelf.length_mm,
-            "improvement": f"{100 * lay.improvement():.1f} %",
-            "pieces": len(shown.placements),
-        })
+        rows.append(
+            {
+                "layer": lay.layer,
+                "label": lay.label,
+                "width": format_with_unit(shown.width_mm, unit),
+                "gap": format_with_unit(shown.gap_mm, unit),
+                "length": format_with_unit(shown.length_mm, unit),
+                "utilisation": f"{100 * shown.utilisation:.1f} %",
+                "method": METHOD_WORDS.get(shown.method, shown.method),
+                "note": shown.note,
+                "shelf_length": format_with_unit(lay.shelf.length_mm, unit),
+                "shelf_utilisation": f"{100 * lay.shelf.utilisation:.1f} %",
+                "improved": shown is not lay.shelf and shown.length_mm < lay.shelf.length_mm,
+                "improvement": f"{100 * lay.improvement():.1f} %",
+                "pieces": len(shown.placements),
+            }
+        )
         if drawn:
-            rows[-1]["svg"] = layout_svg(shown, f"{lay.label}: {len(shown.placements)} pieces on fabric "
-                                                f"{format_with_unit(shown.width_mm, unit)} wide")
+            rows[-1]["svg"] = layout_svg(
+                shown,
+                f"{lay.label}: {len(shown.placements)} pieces on fabric {format_with_unit(shown.width_mm, unit)} wide",
+            )
     return rows
 
 
@@ -186,11 +241,18 @@ def fabric_layout_context(data, pattern) -> dict:
         key = json.dumps([lay.shown.width_mm, [p.to_dict() for p in lay.shown.placements]])
         if key not in drawings:
             svg = layout_svg(lay.shown, cls="fabric-layout print", fit_mm=PRINT_BOX_MM)
-            drawings[key] = {"labels": [], "width": row["width"], "length": row["length"],
-                             "src": "data:image/svg+xml;base64," + base64.b64encode(svg.encode("utf-8")).decode("ascii")}
+            drawings[key] = {
+                "labels": [],
+                "width": row["width"],
+                "length": row["length"],
+                "src": "data:image/svg+xml;base64," + base64.b64encode(svg.encode("utf-8")).decode("ascii"),
+            }
         drawings[key]["labels"].append(row["label"])
     for drawing in drawings.values():
         names = drawing.pop("labels")
         drawing["layers"] = names[0] if len(names) == 1 else ", ".join(names[:-1]) + " and " + names[-1]
-    return {"fabric_layouts": rows, "fabric_drawings": list(drawings.values()),
-            "fabric_layout_asked": bool(data.fabric_layouts)}
+    return {
+        "fabric_layouts": rows,
+        "fabric_drawings": list(drawings.values()),
+        "fabric_layout_asked": bool(data.fabric_layouts),
+    }

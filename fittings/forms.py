@@ -8,15 +8,23 @@ from django.core.exceptions import ValidationError
 from django.utils import timezone
 from PIL import Image
 
-from fittings.models import Client, MeasurementSession, PhotoView, SessionKind
+from fittings.models import Client, MeasurementSession, PhotoView, PrintKind, SessionKind
 from patterns.core.allot import Override, PlanOptions
-from patterns.core.policies import POLICY_CHOICES
 from patterns.core.block import Block
 from patterns.core.measures import LEVEL_LABELS, MEASURES
+from patterns.core.policies import POLICY_CHOICES
+from patterns.core.tiling import PAPER_CHOICES
 from patterns.core.units import (
-    DEFAULT_STEP_MM, UNIT_CHOICES, UNIT_LABELS, UNITS, LengthError, format_exact, format_length, parse_length, parse_signed_length,
+    DEFAULT_STEP_MM,
+    UNIT_CHOICES,
+    UNIT_LABELS,
+    UNITS,
+    LengthError,
+    format_exact,
+    format_length,
+    parse_length,
+    parse_signed_length,
 )
-
 
 # --- upload checks -----------------------------------------------------------------------
 MAX_PHOTO_BYTES = 8 * 1024 * 1024
@@ -43,7 +51,8 @@ class PhotoField(forms.ImageField):
         if f.size > MAX_PHOTO_BYTES:
             raise ValidationError(f"The photo is larger than {MAX_PHOTO_BYTES // (1024 * 1024)} MB.", code="too_big")
         not_a_photo = ValidationError(
-            "This file is not a photo that can be read (JPEG, PNG or WebP), or it is damaged.", code="invalid_image",
+            "This file is not a photo that can be read (JPEG, PNG or WebP), or it is damaged.",
+            code="invalid_image",
         )
         try:
             f.seek(0)
@@ -54,7 +63,8 @@ class PhotoField(forms.ImageField):
                 if width * height > MAX_PHOTO_PIXELS:
                     raise ValidationError(
                         f"The photo has too many pixels ({width} × {height}); "
-                        "take it again at the camera's normal size.", code="too_many_pixels",
+                        "take it again at the camera's normal size.",
+                        code="too_many_pixels",
                     )
                 image.verify()
             f.seek(0)
@@ -65,14 +75,17 @@ class PhotoField(forms.ImageField):
         except ValidationError:
             raise
         except (Image.DecompressionBombError, Image.DecompressionBombWarning):
-            raise ValidationError("The photo has too many pixels; take it again at the camera's normal size.",
-                                  code="too_many_pixels") from None
+            raise ValidationError(
+                "The photo has too many pixels; take it again at the camera's normal size.", code="too_many_pixels"
+            ) from None
         except Exception:  # noqa: BLE001 - Pillow raises many kinds of error for a bad file
             raise not_a_photo from None
         finally:
             if hasattr(f, "seek") and callable(f.seek):
                 f.seek(0)
         return f
+
+
 # ------------------------------------------------------------------------------------------
 
 
@@ -108,7 +121,8 @@ class LengthField(forms.CharField):
             if not Decimal(low) <= mm <= Decimal(high):
                 raise ValidationError(
                     f"Must be between {format_length(low, self.unit)} and {format_length(high, self.unit)} "
-                    f"{UNIT_LABELS[self.unit]}.", code="range",
+                    f"{UNIT_LABELS[self.unit]}.",
+                    code="range",
                 )
         return mm
 
@@ -153,7 +167,8 @@ class SessionForm(UnitFormMixin, forms.Form):
             self.fields[m.code] = LengthField(label=m.label, help_text=m.hint, required=False, limits=m.limits)
         for view in PhotoView:
             self.fields[f"photo_{view.value}"] = PhotoField(
-                label=f"{view.label} photo", required=False,
+                label=f"{view.label} photo",
+                required=False,
                 widget=forms.ClearableFileInput(attrs={"accept": "image/*", "capture": "environment"}),
             )
         unit = self.data.get("unit") if self.is_bound else self.initial.get("unit")
@@ -200,8 +215,12 @@ class SessionForm(UnitFormMixin, forms.Form):
     @classmethod
     def initial_for(cls, session: MeasurementSession):
         initial = {
-            "taken_on": session.taken_on, "kind": session.kind, "unit": session.unit,
-            "posture_notes": session.posture_notes, "notes": session.notes, "version": session.version,
+            "taken_on": session.taken_on,
+            "kind": session.kind,
+            "unit": session.unit,
+            "posture_notes": session.posture_notes,
+            "notes": session.notes,
+            "version": session.version,
         }
         for m in session.measurements.all():
             initial[m.code] = format_exact(m.value_mm, session.unit)
@@ -228,8 +247,12 @@ class PlanOptionsForm(UnitFormMixin, forms.Form):
 
     policy = forms.ChoiceField(choices=POLICY_CHOICES, label="Spread the change")
     lacing_gap = LengthField(label="Lacing gap", required=False, limits=(0, 200))
-    centre_front_width = LengthField(label="Centre-front width", required=False, limits=(10, 600),
-                                     help_text="Across the whole front panel. Leave empty to keep the pattern's.")
+    centre_front_width = LengthField(
+        label="Centre-front width",
+        required=False,
+        limits=(10, 600),
+        help_text="Across the whole front panel. Leave empty to keep the pattern's.",
+    )
     step = forms.ChoiceField(label="Round to", choices=[])
     version = forms.IntegerField(widget=forms.HiddenInput, required=False)
 
@@ -238,13 +261,18 @@ class PlanOptionsForm(UnitFormMixin, forms.Form):
         self.block = block
         for level in block.level_names:
             self.fields[f"ease_{level}"] = LengthField(
-                label=f"{LEVEL_LABELS[level]} ease", signed=True, required=False, limits=(-400, 400),
+                label=f"{LEVEL_LABELS[level]} ease",
+                signed=True,
+                required=False,
+                limits=(-400, 400),
                 help_text="Negative reduces (a corset's waist).",
             )
         for i, seam in enumerate(block.seams):
             for level in block.level_names:
                 for edge in (0, 1):
-                    self.fields[cell_name(i, level, edge)] = LengthField(signed=True, required=False, limits=(-200, 200))
+                    self.fields[cell_name(i, level, edge)] = LengthField(
+                        signed=True, required=False, limits=(-200, 200)
+                    )
         self.fields["step"].choices = step_choices(unit)
         self.set_unit(unit)
 
@@ -271,7 +299,10 @@ class PlanOptionsForm(UnitFormMixin, forms.Form):
             ease={lv: float(data[f"ease_{lv}"] or 0) for lv in self.block.level_names},
             lacing_gap_mm=float(data["lacing_gap"] or 0),
             centre_front_width_mm=None if data.get("centre_front_width") is None else float(data["centre_front_width"]),
-            step_mm=data["step"], unit=self.unit, policy=data["policy"], overrides=tuple(overrides),
+            step_mm=data["step"],
+            unit=self.unit,
+            policy=data["policy"],
+            overrides=tuple(overrides),
         )
 
     @staticmethod
@@ -302,7 +333,11 @@ def step_key(mm: float) -> str:
 def step_choices(unit: str):
     if unit == "in":
         sixteenth = DEFAULT_STEP_MM["in"]
-        return [(step_key(sixteenth), "1/16 in"), (step_key(2 * sixteenth), "1/8 in"), (step_key(4 * sixteenth), "1/4 in")]
+        return [
+            (step_key(sixteenth), "1/16 in"),
+            (step_key(2 * sixteenth), "1/8 in"),
+            (step_key(4 * sixteenth), "1/4 in"),
+        ]
     return [(step_key(1.0), "1 mm"), (step_key(2.0), "2 mm"), (step_key(5.0), "5 mm")]
 
 
@@ -336,16 +371,23 @@ MAX_FITTING_FILE_BYTES = 512 * 1024
 class FittingImportForm(forms.Form):
     """A fitting file to take into one client's record, read as text (what the engine reads is checked there)."""
 
-    file = forms.FileField(allow_empty_file=True, error_messages={"required": "Choose a fitting file (JSON) to import."})
-    garment = forms.CharField(max_length=200, required=False, strip=True,
-                              error_messages={"max_length": "The garment name is too long (200 characters at most)."})
+    file = forms.FileField(
+        allow_empty_file=True, error_messages={"required": "Choose a fitting file (JSON) to import."}
+    )
+    garment = forms.CharField(
+        max_length=200,
+        required=False,
+        strip=True,
+        error_messages={"max_length": "The garment name is too long (200 characters at most)."},
+    )
     other_client = forms.BooleanField(required=False)
 
     def clean_file(self) -> str:
         upload = self.cleaned_data["file"]
         if upload.size > MAX_FITTING_FILE_BYTES:
-            raise ValidationError(f"The file is larger than {MAX_FITTING_FILE_BYTES // 1024} KB; "
-                                  "a fitting file is far smaller.")
+            raise ValidationError(
+                f"The file is larger than {MAX_FITTING_FILE_BYTES // 1024} KB; a fitting file is far smaller."
+            )
         try:
             return upload.read().decode("utf-8")
         except UnicodeDecodeError:
@@ -353,3 +395,8 @@ class FittingImportForm(forms.Form):
 
     def first_error(self) -> str:
         return next(iter(e for errors in self.errors.values() for e in errors), "")
+
+
+class PrintForm(forms.Form):
+    paper = forms.ChoiceField(choices=PAPER_CHOICES, label="Paper")
+    kind = forms.ChoiceField(choices=PrintKind.choices, label="Print", initial=PrintKind.BOTH)

@@ -20,6 +20,7 @@ from django.utils import timezone
 from atelier.storage import private_storage
 from fittings.search import search_expressions
 from patterns.core.measures import LEVEL_CODES, MEASURE_BY_CODE, MEASURES
+from patterns.core.tiling import PAPER_CHOICES, PAPER_SIZES
 from patterns.core.units import UNIT_CHOICES, UNITS
 from patterns.models import LEVEL_CHOICES, BasePattern, mm_field
 
@@ -35,14 +36,20 @@ class Client(models.Model):
     contact = models.CharField(max_length=200, blank=True, help_text="Telephone or e-mail.")
     notes = models.TextField(blank=True)
     consent_given_on = models.DateField(
-        null=True, blank=True, help_text="When the client agreed to their measurements and photos being kept.",
+        null=True,
+        blank=True,
+        help_text="When the client agreed to their measurements and photos being kept.",
     )
     is_deleted = models.BooleanField(default=False)
     deleted_at = models.DateTimeField(null=True, blank=True)
     created_at = models.DateTimeField(auto_now_add=True)
     updated_at = models.DateTimeField(auto_now=True)
     created_by = models.ForeignKey(
-        settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+",
+        settings.AUTH_USER_MODEL,
+        models.PROTECT,
+        null=True,
+        blank=True,
+        related_name="+",
     )
 
     objects = ActiveClientManager()
@@ -79,18 +86,22 @@ class SessionKind(models.TextChoices):
     CHECK = "check", "Check"
 
 
-
-
 class MeasurementSession(models.Model):
     """One sitting with the tape: the readings taken on one day."""
 
     client = models.ForeignKey(Client, models.CASCADE, related_name="sessions")
     taken_on = models.DateField(default=timezone.localdate)
     measured_by = models.ForeignKey(
-        settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+",
+        settings.AUTH_USER_MODEL,
+        models.PROTECT,
+        null=True,
+        blank=True,
+        related_name="+",
     )
     kind = models.CharField(max_length=10, choices=SessionKind.choices, default=SessionKind.FIRST)
-    unit = models.CharField(max_length=2, choices=UNIT_CHOICES, default="cm", help_text="The unit the tape was read in.")
+    unit = models.CharField(
+        max_length=2, choices=UNIT_CHOICES, default="cm", help_text="The unit the tape was read in."
+    )
     posture_notes = models.TextField(blank=True)
     notes = models.TextField(blank=True)
     version = models.PositiveIntegerField(default=1, help_text="Raised on every edit, to catch two edits at once.")
@@ -135,9 +146,7 @@ class Measurement(models.Model):
             return
         low, high = measure.limits
         if not low <= self.value_mm <= high:
-            raise ValidationError(
-                {"value_mm": f"{measure.label} must be between {low / 10:g} and {high / 10:g} cm."}
-            )
+            raise ValidationError({"value_mm": f"{measure.label} must be between {low / 10:g} and {high / 10:g} cm."})
 
 
 class PhotoView(models.TextChoices):
@@ -176,10 +185,17 @@ class Plan(models.Model):
     garment = models.CharField(max_length=200, help_text="What is being made, e.g. 'Wedding corset'.")
     base_pattern = models.ForeignKey(BasePattern, models.PROTECT, related_name="plans")
     session = models.ForeignKey(
-        MeasurementSession, models.PROTECT, related_name="plans", help_text="The readings this plan answers.",
+        MeasurementSession,
+        models.PROTECT,
+        related_name="plans",
+        help_text="The readings this plan answers.",
     )
     created_by = models.ForeignKey(
-        settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+",
+        settings.AUTH_USER_MODEL,
+        models.PROTECT,
+        null=True,
+        blank=True,
+        related_name="+",
     )
     created_at = models.DateTimeField(auto_now_add=True)
     version = models.PositiveIntegerField(default=1, help_text="Raised on every edit, to catch two edits at once.")
@@ -244,7 +260,11 @@ class PlanRevision(models.Model):
     status = models.CharField(max_length=10, choices=RevisionStatus.choices, default=RevisionStatus.DRAFT)
     issued_at = models.DateTimeField(null=True, blank=True)
     issued_by = models.ForeignKey(
-        settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+",
+        settings.AUTH_USER_MODEL,
+        models.PROTECT,
+        null=True,
+        blank=True,
+        related_name="+",
     )
 
     objects = PlanRevisionQuerySet.as_manager()
@@ -277,8 +297,10 @@ class PlanRevision(models.Model):
         if stored is None:
             raise RevisionLocked(f"Revision {self.number} no longer exists and cannot be saved again.")
         changed = [
-            name.removesuffix("_id") for name in _REVISION_FIXED
-            if (_json_normal(getattr(self, name)) if name in ("inputs", "result") else getattr(self, name)) != stored[name]
+            name.removesuffix("_id")
+            for name in _REVISION_FIXED
+            if (_json_normal(getattr(self, name)) if name in ("inputs", "result") else getattr(self, name))
+            != stored[name]
         ]
         if changed:
             raise RevisionLocked(
@@ -333,12 +355,6 @@ class PinAdjustment(models.Model):
 # --- printing ----------------------------------------------------------------------------
 
 
-class PrintPaper(models.TextChoices):
-    # ISO 216 A4; ANSI/ASME Y14.1 US Letter.
-    A4 = "a4", "A4 (210 × 297 mm)"
-    LETTER = "letter", "US Letter (8.5 × 11 in)"
-
-
 class PrintKind(models.TextChoices):
     BOTH = "both", "Work order and cutting sheet"
     WORK_ORDER = "work_order", "Work order"
@@ -369,12 +385,14 @@ class PrintJob(models.Model):
     """One request to print a revision: drawn in the background, kept privately."""
 
     revision = models.ForeignKey(PlanRevision, models.PROTECT, related_name="print_jobs")
-    paper = models.CharField(max_length=10, choices=PrintPaper.choices, default=PrintPaper.A4)
+    paper = models.CharField(max_length=10, choices=PAPER_CHOICES, default="a4")
     kind = models.CharField(max_length=20, choices=PrintKind.choices, default=PrintKind.BOTH)
     status = models.CharField(max_length=10, choices=PrintStatus.choices, default=PrintStatus.QUEUED)
     step = models.CharField(max_length=100, blank=True, help_text="What the job is drawing now, in words.")
     site_url = models.CharField(
-        max_length=200, blank=True, help_text="The app's address when printing was asked for (for the QR code).",
+        max_length=200,
+        blank=True,
+        help_text="The app's address when printing was asked for (for the QR code).",
     )
     task_id = models.CharField(max_length=64, blank=True)
     created_by = models.ForeignKey(settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+")
@@ -387,7 +405,7 @@ class PrintJob(models.Model):
         ordering = ["-created_at", "-id"]
         indexes = [models.Index(fields=["revision", "-created_at"], name="print_job_by_revision")]
         constraints = [
-            models.CheckConstraint(condition=Q(paper__in=PrintPaper.values), name="print_paper_known"),
+            models.CheckConstraint(condition=Q(paper__in=list(PAPER_SIZES)), name="print_paper_known"),
             models.CheckConstraint(condition=Q(kind__in=PrintKind.values), name="print_kind_known"),
             models.CheckConstraint(condition=Q(status__in=PrintStatus.values), name="print_status_known"),
         ]
@@ -532,7 +550,9 @@ class LayoutStatus(models.TextChoices):
 
 class FabricLayout(models.Model):
     revision = models.ForeignKey("fittings.PlanRevision", models.PROTECT, related_name="fabric_layouts")
-    layers = models.JSONField(help_text='The fabric layers and their widths: [{"layer": "fashion", "width_mm": 1400.0}].')
+    layers = models.JSONField(
+        help_text='The fabric layers and their widths: [{"layer": "fashion", "width_mm": 1400.0}].'
+    )
     gap_mm = mm_field(help_text="The least room between two pieces.")
     budget_s = models.PositiveSmallIntegerField(help_text="How long the solver may search, in seconds.")
     status = models.CharField(max_length=10, choices=LayoutStatus.choices, default=LayoutStatus.QUEUED)

@@ -17,7 +17,6 @@ import weakref
 from django.core.cache import caches
 
 from atelier.memo import Recent
-
 from fittings.wording import short_words
 from patterns.core.allot import Allotment
 from patterns.core.fitting import block_to_dict

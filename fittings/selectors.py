@@ -10,15 +10,17 @@ from django.db import connection
 from django.db.models import Count, Prefetch, Q
 
 from atelier.memo import Recent
-from fittings.models import Client, MeasurementSession, Photo, Plan, PlanRevision
+from fittings.models import Client, MeasurementSession, Photo, Plan, PlanRevision, PrintJob
 from fittings.search import search_expressions
-from patterns.core.sizing import suggest_size
 from patterns.core.defaults import default_options
 from patterns.core.fitting import (
-    allotment_from_dict, block_from_dict, body_from_measurements, options_from_dict,
+    allotment_from_dict,
+    block_from_dict,
+    body_from_measurements,
+    options_from_dict,
 )
+from patterns.core.sizing import suggest_size
 from patterns.selectors import block_for
-
 
 MATCH_LIMIT = 250
 _ASCII_LOWER = str.maketrans("ABCDEFGHIJKLMNOPQRSTUVWXYZ", "abcdefghijklmnopqrstuvwxyz")
@@ -80,7 +82,8 @@ def client_search(query: str = "") -> ClientMatches:
             condition |= Q(**{f"starts_{name}__startswith": query})
     rows = (
         Client.objects.alias(**{f"starts_{name}": e for name, e in expressions.items()})
-        .filter(condition).values_list("name", "reference", "pk")
+        .filter(condition)
+        .values_list("name", "reference", "pk")
     )
     # SQLite orders text by code point, as Python does: sorting here spares it sorting every match.
     rows = list((rows.order_by() if sqlite else rows.order_by("name", "reference"))[: MATCH_LIMIT + 1])
@@ -158,9 +161,21 @@ def workroom_queue(limit: int = QUEUE_LIMIT) -> list[PlanRevision]:
     revisions = (
         PlanRevision.objects.filter(status="issued", plan__client__is_deleted=False)
         .select_related("plan__base_pattern", "issued_by")
-        .only("id", "number", "status", "issued_at", "created_at", "plan_id", "issued_by__username",
-              "issued_by__first_name", "issued_by__last_name", "plan__garment", "plan__client_id",
-              "plan__base_pattern__name", "plan__base_pattern__size_label")
+        .only(
+            "id",
+            "number",
+            "status",
+            "issued_at",
+            "created_at",
+            "plan_id",
+            "issued_by__username",
+            "issued_by__first_name",
+            "issued_by__last_name",
+            "plan__garment",
+            "plan__client_id",
+            "plan__base_pattern__name",
+            "plan__base_pattern__size_label",
+        )
         .order_by("-issued_at", "-id")
     )
     seen, out = set(), []
@@ -175,7 +190,6 @@ def workroom_queue(limit: int = QUEUE_LIMIT) -> list[PlanRevision]:
     for revision in out:
         revision.client_reference = refs.get(revision.plan.client_id, "")
     return out
-
 
 
 # --- a client's history --------------------------------------------------------------------
@@ -195,14 +209,17 @@ def client_timeline(client: Client) -> list[TimelineItem]:
     timeline does not show.
     """
     sessions = list(
-        MeasurementSession.objects.filter(client=client).select_related("measured_by")
+        MeasurementSession.objects.filter(client=client)
+        .select_related("measured_by")
         .annotate(measure_count=Count("measurements", distinct=True), photo_count=Count("photos", distinct=True))
         .order_by("-taken_on", "-id")
     )
     revisions = PlanRevision.objects.defer("inputs", "result").order_by("-number")
     plans = list(
-        Plan.objects.filter(client=client).select_related("base_pattern", "session")
-        .prefetch_related(Prefetch("revisions", queryset=revisions)).order_by("-created_at", "-id")
+        Plan.objects.filter(client=client)
+        .select_related("base_pattern", "session")
+        .prefetch_related(Prefetch("revisions", queryset=revisions))
+        .order_by("-created_at", "-id")
     )
     items = [TimelineItem("session", s.taken_on, s) for s in sessions]
     items += [TimelineItem("plan", p.created_at.date(), p) for p in plans]
@@ -284,12 +301,18 @@ def suggestions_for_session(session, patterns, garment: str | None = None) -> li
         options = default_options(first, session.unit)
         for choice in suggest_size(list(blocks.values()), body_from_measurements(values), options):
             pk = pattern_of[id(choice.block)]
-            out.append(Suggestion(
-                pattern_pk=pk, label=f"{choice.block.name}, size {choice.block.size}",
-                reason=choice.reason, largest_edge_mm=choice.largest_edge_mm,
-                total_edges_mm=choice.total_edges_mm, errors=choice.errors, garment=choice.block.garment,
-                over_cap=choice.over_cap,
-            ))
+            out.append(
+                Suggestion(
+                    pattern_pk=pk,
+                    label=f"{choice.block.name}, size {choice.block.size}",
+                    reason=choice.reason,
+                    largest_edge_mm=choice.largest_edge_mm,
+                    total_edges_mm=choice.total_edges_mm,
+                    errors=choice.errors,
+                    garment=choice.block.garment,
+                    over_cap=choice.over_cap,
+                )
+            )
 
     def rank(s):
         return (s.errors, s.over_cap, round(s.largest_edge_mm, 6), round(s.total_edges_mm, 6))
@@ -298,8 +321,6 @@ def suggestions_for_session(session, patterns, garment: str | None = None) -> li
         garment = min(out, key=rank).garment
     out.sort(key=lambda s: (s.garment != garment, *rank(s)))
     return out
-
-
 
 
 # --- one record for a screen: None where there is none (the views answer 404) ---------------------
@@ -318,18 +339,39 @@ def session_with_readings(pk: int, client: Client | None = None) -> MeasurementS
 
 
 def plan_for_page(pk: int) -> Plan | None:
-    return Plan.objects.select_related("client", "session", "base_pattern").filter(pk=pk, client__is_deleted=False).first()
+    return (
+        Plan.objects.select_related("client", "session", "base_pattern").filter(pk=pk, client__is_deleted=False).first()
+    )
 
 
 def plan_revision(plan: Plan, number: int) -> PlanRevision | None:
     """A revision with its pins; its inputs and result stay in the database unless not decoded yet."""
-    return PlanRevision.objects.defer("inputs", "result").prefetch_related("pins").filter(plan=plan, number=number).first()
+    return (
+        PlanRevision.objects.defer("inputs", "result").prefetch_related("pins").filter(plan=plan, number=number).first()
+    )
 
 
 def revision_for_print(plan: Plan, number: int) -> PlanRevision | None:
     """A revision with everything its printed pages name (client, who measured, who issued, what it came from)."""
-    return (PlanRevision.objects.select_related("plan__client", "plan__session__measured_by", "issued_by", "based_on")
-            .filter(plan=plan, number=number).first())
+    return (
+        PlanRevision.objects.select_related("plan__client", "plan__session__measured_by", "issued_by", "based_on")
+        .filter(plan=plan, number=number)
+        .first()
+    )
+
+
+def revision_for_print_by_plan(plan_id: int, number: int) -> PlanRevision | None:
+    """The same, found by the plan's id, for a plan of an active client."""
+    return (
+        PlanRevision.objects.select_related("plan__client", "plan__session__measured_by", "issued_by", "based_on")
+        .filter(plan_id=plan_id, number=number, plan__client__is_deleted=False)
+        .first()
+    )
+
+
+def print_jobs():
+    """Print jobs with what their pages show (the revision, its plan and client)."""
+    return PrintJob.objects.select_related("revision__plan__client")
 
 
 def client_revision(client: Client, pk: int) -> PlanRevision | None:

@@ -9,9 +9,8 @@ from dataclasses import dataclass, field
 from functools import lru_cache
 from html import escape
 
-from django.utils.safestring import mark_safe
-
 from django.utils.formats import date_format
+from django.utils.safestring import mark_safe
 
 from fittings.forms import cell_name
 from fittings.selectors import revision_result, session_values
@@ -82,11 +81,19 @@ def _input(form, name: str, placeholder: str, label: str) -> CellInput:
     value = bound.value()
     errors = form.errors.get(name) if form.is_bound else None
     return CellInput(
-        attrs=_attrs({
-            "id": bound.auto_id, "name": bound.html_name, "value": "" if value is None else str(value),
-            "placeholder": placeholder, "inputmode": "decimal", "autocomplete": "off", "class": "cell",
-            "aria-label": label, **({"aria-invalid": "true"} if errors else {}),
-        }),
+        attrs=_attrs(
+            {
+                "id": bound.auto_id,
+                "name": bound.html_name,
+                "value": "" if value is None else str(value),
+                "placeholder": placeholder,
+                "inputmode": "decimal",
+                "autocomplete": "off",
+                "class": "cell",
+                "aria-label": label,
+                **({"aria-invalid": "true"} if errors else {}),
+            }
+        ),
         error=errors[0] if errors else "",
     )
 
@@ -114,15 +121,21 @@ def plan_table(block: Block, result: Allotment, form=None):
     unit = result.unit
     levels = [
         LevelRow(
-            level=lv.level, label=LEVEL_LABELS.get(lv.level, lv.level), body=_f(lv.body, unit),
-            ease=_f(lv.ease, unit, True), target=_f(lv.target, unit), pattern=_f(lv.pattern, unit),
-            difference=_f(lv.difference, unit, True), seams=_f(lv.allotted + lv.centre_front, unit, True),
+            level=lv.level,
+            label=LEVEL_LABELS.get(lv.level, lv.level),
+            body=_f(lv.body, unit),
+            ease=_f(lv.ease, unit, True),
+            target=_f(lv.target, unit),
+            pattern=_f(lv.pattern, unit),
+            difference=_f(lv.difference, unit, True),
+            seams=_f(lv.allotted + lv.centre_front, unit, True),
             residual=_f(lv.residual, unit, True),
             gap=_f(lv.lacing_gap, unit) if lv.lacing_gap else "",
             pinned=_f(lv.pinned, unit, True) if lv.pinned else "",
             front_back=(
                 f"front {_f(lv.front.difference, unit, True)}, back {_f(lv.back.difference, unit, True)}"
-                if lv.front else ""
+                if lv.front
+                else ""
             ),
         )
         for lv in result.levels
@@ -138,13 +151,18 @@ def plan_table(block: Block, result: Allotment, form=None):
                 words = locked_reason(block, seam, level) if s is None else direction(s.shift_mm)
                 fixed, pinned = bool(s and s.fixed), bool(s and s.pin_mm)
                 cell = Cell(
-                    level=level, shift=None if s is None else s.shift_mm, text=text, words=words,
-                    fixed=fixed, pinned=pinned,
+                    level=level,
+                    shift=None if s is None else s.shift_mm,
+                    text=text,
+                    words=words,
+                    fixed=fixed,
+                    pinned=pinned,
                     css=("fixed" if fixed else "") + (" pinned" if pinned else "") + (" locked" if s is None else ""),
                 )
                 if form is not None and s is not None:
-                    cell.input = _input(form, cell_name(i, level, edge), text,
-                                        f"{seam.name}, {panel} edge, {level}: {words} {text}")
+                    cell.input = _input(
+                        form, cell_name(i, level, edge), text, f"{seam.name}, {panel} edge, {level}: {words} {text}"
+                    )
                 row.cells.append(cell)
             rows.append(row)
     return {
@@ -153,12 +171,15 @@ def plan_table(block: Block, result: Allotment, form=None):
         "rows": rows,
         "centre_front": (
             f"{direction(result.centre_front_shift_mm)} {_length(abs(result.centre_front_shift_mm), unit, False)} {unit}"
-            if result.centre_front_shift_mm else ""
+            if result.centre_front_shift_mm
+            else ""
         ),
         "bands": [
-            {"label": f"{LEVEL_LABELS[b.upper]} to {LEVEL_LABELS[b.lower]}",
-             "change": _length(abs(b.change_mm), unit, False),
-             "words": "lengthen" if b.change_mm > 0 else ("shorten" if b.change_mm < 0 else "no change")}
+            {
+                "label": f"{LEVEL_LABELS[b.upper]} to {LEVEL_LABELS[b.lower]}",
+                "change": _length(abs(b.change_mm), unit, False),
+                "words": "lengthen" if b.change_mm > 0 else ("shorten" if b.change_mm < 0 else "no change"),
+            }
             for b in result.bands
         ],
         "findings": findings_for_screen(result.findings, unit),
@@ -218,12 +239,19 @@ def comparison(kind: str, first, second) -> Comparison:
         unit = second.unit
         va, vb = session_values(first), session_values(second)
         rows = [_row(m.label, va.get(m.code), vb.get(m.code), unit) for m in MEASURES if m.code in va or m.code in vb]
-        return Comparison("sessions", f"{first.get_kind_display()}, {_day(first.taken_on)}",
-                          f"{second.get_kind_display()}, {_day(second.taken_on)}", unit, [("Measurements", rows)])
+        return Comparison(
+            "sessions",
+            f"{first.get_kind_display()}, {_day(first.taken_on)}",
+            f"{second.get_kind_display()}, {_day(second.taken_on)}",
+            unit,
+            [("Measurements", rows)],
+        )
     ra, rb = revision_result(first), revision_result(second)
     unit = rb.unit
     ma, mb = first.inputs["measurements"], second.inputs["measurements"]
-    measurements = [_row(m.label, ma.get(m.code), mb.get(m.code), unit) for m in MEASURES if m.code in ma or m.code in mb]
+    measurements = [
+        _row(m.label, ma.get(m.code), mb.get(m.code), unit) for m in MEASURES if m.code in ma or m.code in mb
+    ]
     la = {lv.level: lv for lv in ra.levels}
     lb = {lv.level: lv for lv in rb.levels}
     levels = [lv for lv in LEVEL_LABELS if lv in la or lv in lb]
@@ -236,11 +264,18 @@ def comparison(kind: str, first, second) -> Comparison:
     sb = {(s.seam, s.level, s.panel): s.shift_mm for s in rb.shifts}
     keys = list(dict.fromkeys([*sa, *sb]))
     shifts = [
-        _row(f"{seam}, {panel} edge, {LEVEL_LABELS.get(level, level).lower()}", sa.get((seam, level, panel)),
-             sb.get((seam, level, panel)), unit)
+        _row(
+            f"{seam}, {panel} edge, {LEVEL_LABELS.get(level, level).lower()}",
+            sa.get((seam, level, panel)),
+            sb.get((seam, level, panel)),
+            unit,
+        )
         for seam, level, panel in keys
     ]
     return Comparison(
-        "revisions", f"{first.plan.garment}, revision {first.number}", f"{second.plan.garment}, revision {second.number}",
-        unit, [("Measurements", measurements), ("Ease and targets", targets), ("Raw edges", shifts)],
+        "revisions",
+        f"{first.plan.garment}, revision {first.number}",
+        f"{second.plan.garment}, revision {second.number}",
+        unit,
+        [("Measurements", measurements), ("Ease and targets", targets), ("Raw edges", shifts)],
     )

@@ -6,6 +6,9 @@ from fittings import views_layout
 
 urlpatterns = [
     path("plans/<int:pk>/revisions/<int:number>/layout/", views_layout.fabric_layout, name="fabric_layout"),
-    path("plans/<int:pk>/revisions/<int:number>/layout/new/", views_layout.fabric_layout_start,
-         name="fabric_layout_start"),
+    path(
+        "plans/<int:pk>/revisions/<int:number>/layout/new/",
+        views_layout.fabric_layout_start,
+        name="fabric_layout_start",
+    ),
 ]

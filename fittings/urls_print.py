@@ -10,6 +10,9 @@ urlpatterns = [
     path("print/<int:job_id>/<slug:document>.pdf", views_print.print_download, name="print_download"),
     path("print/<int:job_id>/large/<slug:fmt>.pdf", views_print.print_large, name="print_large"),
     path("plans/<int:plan_id>/revisions/<int:number>/projector/", views_workroom.projector, name="projector"),
-    path("plans/<int:plan_id>/revisions/<int:number>/projector/pieces.svg", views_workroom.projector_pieces,
-         name="projector_pieces"),
+    path(
+        "plans/<int:plan_id>/revisions/<int:number>/projector/pieces.svg",
+        views_workroom.projector_pieces,
+        name="projector_pieces",
+    ),
 ]

@@ -1,8 +1,8 @@
 import mimetypes
 
-from django.core.paginator import Paginator
 from django import forms
 from django.contrib import messages
+from django.core.paginator import Paginator
 from django.http import FileResponse, Http404
 from django.shortcuts import redirect, render
 from django.utils.http import url_has_allowed_host_and_scheme
@@ -88,9 +88,12 @@ def photo_replace(request, pk):
         error = form.errors["image"][0] if "image" in form.errors else "Choose the new photo."
         if error == forms.Field.default_error_messages["required"]:
             error = "Choose the new photo first, then tap Replace."
-        return render(request, "fittings/photo_refused.html", {"photo": photo, "error": error,
-                                                                 "next": request.POST.get("next", "")}, status=400)
+        return render(
+            request,
+            "fittings/photo_refused.html",
+            {"photo": photo, "error": error, "next": request.POST.get("next", "")},
+            status=400,
+        )
     client_services.replace_photo(photo=photo, upload=form.cleaned_data["image"], user=request.user)
     messages.success(request, f"{photo.get_view_display()} photo replaced.")
     return _back(request, photo)
-

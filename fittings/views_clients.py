@@ -9,8 +9,8 @@ from atelier.roles import EDITORS, OWNER, role_of, role_required
 from fittings import selectors, tables
 from fittings.forms import ClientForm, SessionForm
 from fittings.services import clients as client_services
-from patterns.core.measures import MEASURES, plausibility_notes
 from fittings.wording import in_unit
+from patterns.core.measures import MEASURES, plausibility_notes
 from patterns.core.units import UNITS
 
 
@@ -52,10 +52,16 @@ def client_detail(request, pk):
     """The client's timeline: sessions and plans, newest first."""
     client = _client(pk)
     timeline = selectors.client_timeline(client)
-    return render(request, "fittings/client_detail.html", {
-        "client": client, "timeline": timeline, "can_edit": role_of(request.user) in EDITORS,
-        "sessions": [item.obj for item in timeline if item.kind == "session"],
-    })
+    return render(
+        request,
+        "fittings/client_detail.html",
+        {
+            "client": client,
+            "timeline": timeline,
+            "can_edit": role_of(request.user) in EDITORS,
+            "sessions": [item.obj for item in timeline if item.kind == "session"],
+        },
+    )
 
 
 @role_required(*EDITORS)
@@ -65,16 +71,25 @@ def session_new(request, client_pk):
     if request.method == "POST":
         form = SessionForm(request.POST, request.FILES)
         if form.is_valid():
-            session = client_services.record_session(client=client, user=request.user, form_data=form.cleaned_data,
-                                                     values=form.values_mm())
+            session = client_services.record_session(
+                client=client, user=request.user, form_data=form.cleaned_data, values=form.values_mm()
+            )
             messages.success(request, "Measurements saved.")
-            return redirect("fittings:client_detail", client.pk) if "done" in request.POST else redirect(
-                "fittings:plan_new", session.pk)
+            return (
+                redirect("fittings:client_detail", client.pk)
+                if "done" in request.POST
+                else redirect("fittings:plan_new", session.pk)
+            )
         status = 400
     else:
         unit = previous.unit if previous else "cm"
-        form = SessionForm(initial={"unit": unit, "kind": "first" if previous is None else "toile",
-                                    "taken_on": client_services.today()})
+        form = SessionForm(
+            initial={
+                "unit": unit,
+                "kind": "first" if previous is None else "toile",
+                "taken_on": client_services.today(),
+            }
+        )
         status = 200
     return _session_page(request, client, form, previous, None, status)
 
@@ -92,9 +107,13 @@ def session_edit(request, pk):
         form = SessionForm(request.POST, request.FILES)
         if form.is_valid():
             try:
-                client_services.update_session(session=session, user=request.user, form_data=form.cleaned_data,
-                                               values=form.values_mm(),
-                                               expected_version=form.cleaned_data.get("version") or 0)
+                client_services.update_session(
+                    session=session,
+                    user=request.user,
+                    form_data=form.cleaned_data,
+                    values=form.values_mm(),
+                    expected_version=form.cleaned_data.get("version") or 0,
+                )
             except client_services.ConcurrentEdit as exc:
                 conflict = str(exc)
                 status = 409
@@ -120,11 +139,24 @@ def _session_page(request, client, form, previous, session, status, conflict=Non
     _hints_in_unit(form)
     notes = _notes(form, previous)
     # A chosen file cannot be put back into a file input: when the form comes back, say which photos to choose again.
-    lost = [form.fields[name].label.removesuffix(" photo").lower() for name in request.FILES
-            if name.startswith("photo_") and name in form.fields] if form.is_bound and status != 200 else []
+    lost = (
+        [
+            form.fields[name].label.removesuffix(" photo").lower()
+            for name in request.FILES
+            if name.startswith("photo_") and name in form.fields
+        ]
+        if form.is_bound and status != 200
+        else []
+    )
     context = {
-        "client": client, "form": form, "session": session, "previous": previous, "conflict": conflict,
-        "notes": notes, "advice": _advice(notes), "lost_photos": lost,
+        "client": client,
+        "form": form,
+        "session": session,
+        "previous": previous,
+        "conflict": conflict,
+        "notes": notes,
+        "advice": _advice(notes),
+        "lost_photos": lost,
     }
     return render(request, "fittings/session_form.html", context, status=status)
 
@@ -163,8 +195,11 @@ def session_check(request, client_pk):
     previous = selectors.latest_session(client, before=current)
     form = SessionForm(request.POST)
     notes = _notes(form, previous)
-    return render(request, "fittings/session_form.html#session-notes",
-                  {"notes": notes, "advice": _advice(notes), "form": form, "client": client, "oob": True})
+    return render(
+        request,
+        "fittings/session_form.html#session-notes",
+        {"notes": notes, "advice": _advice(notes), "form": form, "client": client, "oob": True},
+    )
 
 
 @require_POST
@@ -181,8 +216,11 @@ def session_convert(request, client_pk):
             data[code] = text
     form = _hints_in_unit(SessionForm(data))
     notes = _notes(form, None)
-    return render(request, "fittings/session_form.html#session-measures",
-                  {"form": form, "client": client, "notes": notes, "advice": _advice(notes)})
+    return render(
+        request,
+        "fittings/session_form.html#session-measures",
+        {"form": form, "client": client, "notes": notes, "advice": _advice(notes)},
+    )
 
 
 @role_required(*EDITORS)
@@ -202,11 +240,23 @@ def compare(request, client_pk):
     try:
         comparison = tables.comparison(*selectors.comparison_pair(client, a, b))
     except selectors.NotComparable as exc:
-        return render(request, "fittings/compare.html", {
-            "client": client, "error": str(exc), "choices": choices, "a": a, "b": b,
-        }, status=400)
-    return render(request, "fittings/compare.html",
-                  {"client": client, "comparison": comparison, "choices": choices, "a": a, "b": b})
+        return render(
+            request,
+            "fittings/compare.html",
+            {
+                "client": client,
+                "error": str(exc),
+                "choices": choices,
+                "a": a,
+                "b": b,
+            },
+            status=400,
+        )
+    return render(
+        request,
+        "fittings/compare.html",
+        {"client": client, "comparison": comparison, "choices": choices, "a": a, "b": b},
+    )
 
 
 def _compare_choices(timeline):
@@ -231,5 +281,3 @@ def client_delete(request, pk):
     client_services.soft_delete_client(client=client, user=request.user)
     messages.success(request, f"{client.reference} is removed from the lists; the records are kept.")
     return redirect("fittings:client_list")
-
-

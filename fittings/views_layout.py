@@ -8,12 +8,18 @@ from django.views.decorators.http import require_GET, require_POST
 
 from atelier.roles import ROLES, WORKROOM, role_of, role_required
 from fittings import selectors
-from fittings.fabric import latest_layout, job_layers, layer_rows
+from fittings.fabric import job_layers, latest_layout, layer_rows
 from fittings.models import LayoutStatus, Plan, PlanRevision
-from fittings.services.printing import NO_WORKER_AFTER
 from fittings.services.layouts import request_layout, settle_abandoned
+from fittings.services.printing import NO_WORKER_AFTER
 from patterns.core.layout import (
-    DEFAULT_BUDGET_S, DEFAULT_GAP_MM, DEFAULT_WIDTH_MM, LAYERS, MAX_BUDGET_S, LayerRequest, LayoutError,
+    DEFAULT_BUDGET_S,
+    DEFAULT_GAP_MM,
+    DEFAULT_WIDTH_MM,
+    LAYERS,
+    MAX_BUDGET_S,
+    LayerRequest,
+    LayoutError,
     default_layers,
 )
 from patterns.core.units import LengthError, format_length, format_with_unit, parse_length
@@ -23,8 +29,9 @@ class LayoutForm(forms.Form):
     """Which layers, how wide each fabric is and the gap, typed in the plan's unit; the solver's time."""
 
     gap = forms.CharField(label="Gap between pieces", max_length=32)
-    seconds = forms.IntegerField(label="Time for the search (s)", min_value=1, max_value=MAX_BUDGET_S,
-                                 initial=DEFAULT_BUDGET_S)
+    seconds = forms.IntegerField(
+        label="Time for the search (s)", min_value=1, max_value=MAX_BUDGET_S, initial=DEFAULT_BUDGET_S
+    )
 
     def __init__(self, *args, unit: str, garment: str = "", **kwargs):
         super().__init__(*args, **kwargs)
@@ -32,8 +39,9 @@ class LayoutForm(forms.Form):
         chosen = default_layers(garment)
         for code, label in LAYERS.items():
             self.fields[f"use_{code}"] = forms.BooleanField(label=label, required=False, initial=code in chosen)
-            self.fields[f"width_{code}"] = forms.CharField(label=f"{label} width", max_length=32, required=False,
-                                                           initial=format_length(DEFAULT_WIDTH_MM, unit))
+            self.fields[f"width_{code}"] = forms.CharField(
+                label=f"{label} width", max_length=32, required=False, initial=format_length(DEFAULT_WIDTH_MM, unit)
+            )
         self.fields["gap"].initial = format_length(DEFAULT_GAP_MM, unit)
 
     def layer_fields(self):
@@ -77,11 +85,21 @@ def _context(plan, revision, form=None, job=None):
         job = settle_abandoned(job)
     form = form or LayoutForm(unit=options.unit, garment=block.garment, initial=_initial(job, options.unit))
     no_worker = bool(job and job.status == LayoutStatus.QUEUED and timezone.now() - job.created_at > NO_WORKER_AFTER)
-    return {"plan": plan, "client": plan.client, "revision": revision, "form": form, "job": job, "no_worker": no_worker,
-            "layers": layer_rows(job_layers(job), options.unit) if job is not None else [],
-            "unit": options.unit,
-            "best_so_far": (format_with_unit(job.best_length_mm, options.unit)
-                            if job is not None and job.best_length_mm and not job.is_finished else "")}
+    return {
+        "plan": plan,
+        "client": plan.client,
+        "revision": revision,
+        "form": form,
+        "job": job,
+        "no_worker": no_worker,
+        "layers": layer_rows(job_layers(job), options.unit) if job is not None else [],
+        "unit": options.unit,
+        "best_so_far": (
+            format_with_unit(job.best_length_mm, options.unit)
+            if job is not None and job.best_length_mm and not job.is_finished
+            else ""
+        ),
+    }
 
 
 def _initial(job, unit):
@@ -116,8 +134,13 @@ def fabric_layout_start(request, pk, number):
     form = LayoutForm(request.POST, unit=options.unit, garment=block.garment)
     if form.is_valid():
         try:
-            request_layout(revision=revision, user=request.user, layers=form.cleaned_data["layers"],
-                           gap_mm=form.cleaned_data["gap_mm"], budget_s=form.cleaned_data["seconds"])
+            request_layout(
+                revision=revision,
+                user=request.user,
+                layers=form.cleaned_data["layers"],
+                gap_mm=form.cleaned_data["gap_mm"],
+                budget_s=form.cleaned_data["seconds"],
+            )
         except LayoutError as exc:
             form.add_error(None, str(exc))
         else:

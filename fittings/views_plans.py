@@ -5,8 +5,8 @@ from django.core.exceptions import PermissionDenied
 from django.http import Http404, HttpResponse
 from django.shortcuts import redirect, render
 from django.urls import reverse
-from django.utils.http import urlencode
 from django.utils.csp import CSP
+from django.utils.http import urlencode
 from django.views.decorators.csp import csp_override
 from django.views.decorators.http import require_GET, require_POST
 
@@ -60,8 +60,10 @@ def plan_new(request, session_pk):
     session = _session(session_pk)
     based_on = None
     if request.GET.get("from") or request.POST.get("from"):
-        based_on = _found(selectors.client_revision(session.client, _int(request.GET.get("from") or request.POST.get("from"))),
-                          "revision")
+        based_on = _found(
+            selectors.client_revision(session.client, _int(request.GET.get("from") or request.POST.get("from"))),
+            "revision",
+        )
     patterns = active_patterns().order_by("name", "size_order")
     # The garment being planned: the one carried over, else the client's last plan's, else the best size's.
     earlier = based_on.plan if based_on else selectors.latest_plan(session.client)
@@ -69,17 +71,26 @@ def plan_new(request, session_pk):
     suggestions = selectors.suggestions_for_session(session, patterns, garment=garment)
     unit = session.unit
     for_page = [
-        {"label": s.label, "garment": s.garment, "largest": format_with_unit(s.largest_edge_mm, unit),
-         "total": format_with_unit(s.total_edges_mm, unit), "errors": s.errors,
-         "same": s.garment == (suggestions[0].garment if suggestions else None)}
+        {
+            "label": s.label,
+            "garment": s.garment,
+            "largest": format_with_unit(s.largest_edge_mm, unit),
+            "total": format_with_unit(s.total_edges_mm, unit),
+            "errors": s.errors,
+            "same": s.garment == (suggestions[0].garment if suggestions else None),
+        }
         for s in suggestions
     ]
     if request.method == "POST":
         form = NewPlanForm(request.POST, patterns=patterns)
         if form.is_valid():
             plan = plan_services.start_plan(
-                client=session.client, session=session, pattern=form.cleaned_data["base_pattern"],
-                garment=form.cleaned_data["garment"], user=request.user, based_on=based_on,
+                client=session.client,
+                session=session,
+                pattern=form.cleaned_data["base_pattern"],
+                garment=form.cleaned_data["garment"],
+                user=request.user,
+                based_on=based_on,
             )
             return redirect("fittings:plan_edit", plan.pk)
         status = 400
@@ -89,9 +100,16 @@ def plan_new(request, session_pk):
             initial["base_pattern"] = suggestions[0].pattern_pk
         form = NewPlanForm(initial=initial, patterns=patterns)
         status = 200
-    context = {"session": session, "client": session.client, "form": form, "suggestions": suggestions, "based_on": based_on,
-               "sizes": for_page, "reason": in_unit(suggestions[0].reason, unit) if suggestions else "",
-               "others": any(not row["same"] for row in for_page)}
+    context = {
+        "session": session,
+        "client": session.client,
+        "form": form,
+        "suggestions": suggestions,
+        "based_on": based_on,
+        "sizes": for_page,
+        "reason": in_unit(suggestions[0].reason, unit) if suggestions else "",
+        "others": any(not row["same"] for row in for_page),
+    }
     return render(request, "fittings/plan_new.html", context, status=status)
 
 
@@ -124,16 +142,21 @@ def plan_edit(request, pk):
         expected = form.cleaned_data.get("version") or plan.version
         try:
             revision = plan_services.save_revision(
-                plan=plan, options=form.options(), user=request.user, expected_version=expected,
+                plan=plan,
+                options=form.options(),
+                user=request.user,
+                expected_version=expected,
             )
         except ConcurrentEdit as exc:
             plan.refresh_from_db()
-            return _plan_page(request, plan, selectors.latest_revision(plan), form, block, values, None,
-                              status=409, conflict=str(exc))
+            return _plan_page(
+                request, plan, selectors.latest_revision(plan), form, block, values, None, status=409, conflict=str(exc)
+            )
         messages.success(request, f"Saved as revision {revision.number}.")
         return redirect("fittings:revision_detail", plan.pk, revision.number)
-    form = PlanOptionsForm(initial={**PlanOptionsForm.initial_for(options, block), "version": plan.version},
-                           block=block, unit=unit)
+    form = PlanOptionsForm(
+        initial={**PlanOptionsForm.initial_for(options, block), "version": plan.version}, block=block, unit=unit
+    )
     return _plan_page(request, plan, latest, form, block, values, selectors.revision_result(latest))
 
 
@@ -149,8 +172,14 @@ def plan_recompute(request, pk):
             # Swapped by htmx (base.html's responseHandling): the message at the top of the table, the fields
             # beside the options marked out of band, the cells' own errors in the saved revision's table.
             context = _result_context(request, plan, form, block, selectors.revision_result(latest), options)
-            context.update({"invalid": True, "oob": True, "option_fields": _option_fields(form),
-                            "problems": _problems(form, block)})
+            context.update(
+                {
+                    "invalid": True,
+                    "oob": True,
+                    "option_fields": _option_fields(form),
+                    "problems": _problems(form, block),
+                }
+            )
             return render(request, "fittings/plan_edit.html#plan-result", context, status=422)
         return _plan_page(request, plan, latest, form, block, values, None, status=400)
     result = allot_measurements(block, values, form.options())
@@ -165,8 +194,14 @@ def plan_recompute(request, pk):
 # own <style> and style attributes, which the site's policy (style-src 'self') would block, leaving a black
 # shape.  Its response alone allows inline styles; it may run no script and load nothing.
 SVG_CSP = {
-    "default-src": [CSP.NONE], "style-src": [CSP.UNSAFE_INLINE], "img-src": ["data:"], "font-src": [CSP.NONE],
-    "script-src": [CSP.NONE], "base-uri": [CSP.NONE], "form-action": [CSP.NONE], "frame-ancestors": [CSP.SELF],
+    "default-src": [CSP.NONE],
+    "style-src": [CSP.UNSAFE_INLINE],
+    "img-src": ["data:"],
+    "font-src": [CSP.NONE],
+    "script-src": [CSP.NONE],
+    "base-uri": [CSP.NONE],
+    "form-action": [CSP.NONE],
+    "frame-ancestors": [CSP.SELF],
 }
 
 
@@ -190,7 +225,9 @@ def _problems(form, block) -> list[str]:
     for i, seam in enumerate(block.seams):
         for level in block.level_names:
             for edge, panel in enumerate((seam.front_panel, seam.back_panel)):
-                names[cell_name(i, level, edge)] = f"{seam.name}, {panel} edge, {LEVEL_LABELS.get(level, level).lower()}"
+                names[cell_name(i, level, edge)] = (
+                    f"{seam.name}, {panel} edge, {LEVEL_LABELS.get(level, level).lower()}"
+                )
     out = []
     for name, errors in form.errors.items():
         if name == "__all__":
@@ -221,17 +258,24 @@ def _svg_response(svg: str, cached: bool):
 
 def _can_edit(user):
     from atelier.roles import role_of
+
     return role_of(user) in EDITORS
 
 
 def _result_context(request, plan, form, block, result, options):
-    preview_query = urlencode(
-        [(k, v) for k, values in form.data.lists() if k != "csrfmiddlewaretoken" for v in values]
-    ) if form.is_bound else ""
+    preview_query = (
+        urlencode([(k, v) for k, values in form.data.lists() if k != "csrfmiddlewaretoken" for v in values])
+        if form.is_bound
+        else ""
+    )
     return {
-        "plan": plan, "form": form, "block": block, "result": result,
+        "plan": plan,
+        "form": form,
+        "block": block,
+        "result": result,
         "table": plan_table(block, result, form=form),
-        "preview_url": reverse("fittings:plan_preview", args=[plan.pk]) + (f"?{preview_query}" if preview_query else ""),
+        "preview_url": reverse("fittings:plan_preview", args=[plan.pk])
+        + (f"?{preview_query}" if preview_query else ""),
         "checks_url": reverse("fittings:plan_checks", args=[plan.pk]) + (f"?{preview_query}" if preview_query else ""),
         "unit": options.unit,
     }
@@ -249,12 +293,20 @@ def _plan_page(request, plan, latest, form, block, values, result, status=200, c
     if not form.is_bound:
         context["preview_url"] = reverse("fittings:revision_preview", args=[plan.pk, latest.number])
         context["checks_url"] = reverse("fittings:revision_checks", args=[plan.pk, latest.number])
-    context.update({
-        "client": plan.client, "session": plan.session, "latest": latest, "conflict": conflict,
-        "can_edit": _can_edit(request.user), "values": values, "photos": plan.session.photos.all(),
-        "ease_fields": form.ease_fields(), "problems": _problems(form, block) if form.is_bound else [],
-        "bust_span_text": format_with_unit(values["bust_span"], options.unit) if values.get("bust_span") else "",
-    })
+    context.update(
+        {
+            "client": plan.client,
+            "session": plan.session,
+            "latest": latest,
+            "conflict": conflict,
+            "can_edit": _can_edit(request.user),
+            "values": values,
+            "photos": plan.session.photos.all(),
+            "ease_fields": form.ease_fields(),
+            "problems": _problems(form, block) if form.is_bound else [],
+            "bust_span_text": format_with_unit(values["bust_span"], options.unit) if values.get("bust_span") else "",
+        }
+    )
     return render(request, "fittings/plan_edit.html", context, status=status)
 
 
@@ -269,8 +321,15 @@ def revision_detail(request, pk, number):
     revisions = plan.revisions.defer("inputs", "result").order_by("-number")
     context = {
         "workroom": workroom,
-        "plan": plan, "client": plan.client, "revision": revision, "block": block, "result": result,
-        "table": plan_table(block, result), "unit": options.unit, "options": options, "values": values,
+        "plan": plan,
+        "client": plan.client,
+        "revision": revision,
+        "block": block,
+        "result": result,
+        "table": plan_table(block, result),
+        "unit": options.unit,
+        "options": options,
+        "values": values,
         "preview_url": reverse("fittings:revision_preview", args=[plan.pk, revision.number]),
         "checks_url": reverse("fittings:revision_checks", args=[plan.pk, revision.number]),
         "can_edit": _can_edit(request.user),
@@ -314,7 +373,9 @@ def revision_pins(request, pk, number):
     if request.method == "POST":
         form = PinForm(request.POST, block=block, unit=options.unit)
         if form.is_valid() and form.pins():
-            plan_services.record_pins(revision=revision, pins=form.pins(), note=form.cleaned_data["note"], user=request.user)
+            plan_services.record_pins(
+                revision=revision, pins=form.pins(), note=form.cleaned_data["note"], user=request.user
+            )
             messages.success(request, "Pins recorded.")
             return redirect("fittings:revision_pins", plan.pk, revision.number)
         if form.is_valid():
@@ -325,18 +386,38 @@ def revision_pins(request, pk, number):
     # Not "block" in the context: Django's templates keep their own {% block %} state under that name.
     levels = [{"code": level, "label": LEVEL_LABELS.get(level, level)} for level in block.level_names]
     rows = [
-        {"seam": seam, "cells": [
-            {"field": form[f"pin-{i}-{lv['code']}"], "label": f"{seam.name}, {lv['label'].lower()}: pin, {options.unit}"}
-            for lv in levels]}
+        {
+            "seam": seam,
+            "cells": [
+                {
+                    "field": form[f"pin-{i}-{lv['code']}"],
+                    "label": f"{seam.name}, {lv['label'].lower()}: pin, {options.unit}",
+                }
+                for lv in levels
+            ],
+        }
         for i, seam in enumerate(block.seams)
     ]
     pins = [
-        {"seam": p.seam, "level": p.get_level_display(), "note": p.note,
-         "amount": format_with_unit(p.amount_mm, options.unit, signed=True), "words": direction(float(p.amount_mm))}
+        {
+            "seam": p.seam,
+            "level": p.get_level_display(),
+            "note": p.note,
+            "amount": format_with_unit(p.amount_mm, options.unit, signed=True),
+            "words": direction(float(p.amount_mm)),
+        }
         for p in revision.pins.all()
     ]
-    context = {"plan": plan, "client": plan.client, "revision": revision, "levels": levels, "form": form, "rows": rows,
-               "pins": pins, "unit": options.unit}
+    context = {
+        "plan": plan,
+        "client": plan.client,
+        "revision": revision,
+        "levels": levels,
+        "form": form,
+        "rows": rows,
+        "pins": pins,
+        "unit": options.unit,
+    }
     return render(request, "fittings/revision_pins.html", context, status=status)
 
 
@@ -361,7 +442,6 @@ def revision_apply_pins(request, pk, number):
     return redirect("fittings:revision_detail", plan.pk, new.number)
 
 
-
 @require_GET
 @role_required(*ROLES)
 def revision_fitting_file(request, pk, number):
@@ -373,8 +453,6 @@ def revision_fitting_file(request, pk, number):
     response = HttpResponse(json.dumps(revision.inputs, indent=2), content_type="application/json")
     response["Content-Disposition"] = f'attachment; filename="{plan.client.reference}-plan{plan.pk}-rev{number}.json"'
     return response
-
-
 
 
 @role_required(*EDITORS)
@@ -392,9 +470,11 @@ def fitting_import(request, client_pk):
         made_for = _file_client(text)
         if made_for and made_for != client.reference and not form.cleaned_data["other_client"]:
             other = made_for
-            error = (f"This fitting file was made for client {made_for}, not {client.reference}. "
-                     f"Nothing was imported. To take its readings into {client.reference}'s record anyway, "
-                     "tick the box below and choose the file again.")
+            error = (
+                f"This fitting file was made for client {made_for}, not {client.reference}. "
+                f"Nothing was imported. To take its readings into {client.reference}'s record anyway, "
+                "tick the box below and choose the file again."
+            )
         else:
             try:
                 plan = plan_services.import_fitting(client=client, text=text, user=request.user, garment=garment)
@@ -403,9 +483,17 @@ def fitting_import(request, client_pk):
             else:
                 messages.success(request, "Fitting file imported as a new session and plan.")
                 return redirect("fittings:plan_edit", plan.pk)
-    return render(request, "fittings/fitting_import.html", {
-        "client": client, "error": error, "other": other, "garment": (request.POST.get("garment") or "").strip()[:200],
-    }, status=400)
+    return render(
+        request,
+        "fittings/fitting_import.html",
+        {
+            "client": client,
+            "error": error,
+            "other": other,
+            "garment": (request.POST.get("garment") or "").strip()[:200],
+        },
+        status=400,
+    )
 
 
 def _file_client(text: str) -> str:
@@ -424,18 +512,29 @@ def _checks_response(request, block, result, unit):
     pattern = previews.altered_for(block, result)
     rows = [
         {
-            "seam": t.seam, "front": t.front_panel, "back": t.back_panel,
-            "front_base": format_length(t.front_base_mm, unit), "back_base": format_length(t.back_base_mm, unit),
-            "front_after": format_length(t.front_after_mm, unit), "back_after": format_length(t.back_after_mm, unit),
+            "seam": t.seam,
+            "front": t.front_panel,
+            "back": t.back_panel,
+            "front_base": format_length(t.front_base_mm, unit),
+            "back_base": format_length(t.back_base_mm, unit),
+            "front_after": format_length(t.front_after_mm, unit),
+            "back_after": format_length(t.back_after_mm, unit),
             "difference": format_length(t.after_difference_mm, unit, signed=True),
-            "words": _truing_words(t, unit), "ok": t.within_tolerance,
+            "words": _truing_words(t, unit),
+            "ok": t.within_tolerance,
         }
         for t in pattern.seams
     ]
-    return render(request, "fittings/_seam_checks.html", {
-        "rows": rows, "findings": findings_for_screen(pattern.findings, unit), "unit": unit,
-        "tolerance": in_unit("1/8 in (3.2 mm)", unit) if unit == "cm" else "1/8 in",
-    })
+    return render(
+        request,
+        "fittings/_seam_checks.html",
+        {
+            "rows": rows,
+            "findings": findings_for_screen(pattern.findings, unit),
+            "unit": unit,
+            "tolerance": in_unit("1/8 in (3.2 mm)", unit) if unit == "cm" else "1/8 in",
+        },
+    )
 
 
 def _longer(front: str, back: str, difference_mm: float, unit: str) -> str:
@@ -486,15 +585,16 @@ def revision_proof(request, pk, number, document):
     try:
         check_printable(data)
     except DocumentError as exc:
-        return render(request, "fittings/proof_refused.html", {"plan": plan, "revision": revision, "error": str(exc)},
-                      status=409)
+        return render(
+            request, "fittings/proof_refused.html", {"plan": plan, "revision": revision, "error": str(exc)}, status=409
+        )
     paper = request.GET.get("paper") or default_paper(revision)
     if paper not in ("a4", "letter"):
         return HttpResponse("Choose a paper size: a4 or letter.", status=400, content_type="text/plain")
     response = HttpResponse(DOCUMENTS[document].render(data, paper), content_type="application/pdf")
     state = "draft" if revision.status != "issued" else "issued"
-    response["Content-Disposition"] = (f'inline; filename="proof-{document}-{plan.client.reference}-plan{plan.pk}'
-                                       f'-r{number}-{state}.pdf"')
+    response["Content-Disposition"] = (
+        f'inline; filename="proof-{document}-{plan.client.reference}-plan{plan.pk}-r{number}-{state}.pdf"'
+    )
     response["Cache-Control"] = "private, no-store"
     return response
-

@@ -1,6 +1,5 @@
 """Printing a revision: ask for it, watch it being drawn, download the PDFs."""
 
-from django import forms
 from django.conf import settings
 from django.core.exceptions import PermissionDenied
 from django.http import FileResponse, Http404, HttpResponse
@@ -9,33 +8,31 @@ from django.utils.text import slugify
 from django.views.decorators.http import require_http_methods
 
 from atelier.roles import EDITORS, ROLES, WORKROOM, role_of, role_required
-from fittings.models import PlanRevision, PrintJob, PrintKind, PrintPaper, PrintStatus
+from fittings import selectors
+from fittings.forms import PrintForm
+from fittings.models import PrintKind, PrintStatus
 from fittings.printing.registry import DOCUMENTS
 from fittings.services.printing import PrintRefused, settle_abandoned, start_print, waiting_for_a_worker
 from patterns.core.tiling import LARGE_FORMATS, TilingError
 
 
-class PrintForm(forms.Form):
-    paper = forms.ChoiceField(choices=PrintPaper.choices, label="Paper")
-    kind = forms.ChoiceField(choices=PrintKind.choices, label="Print", initial=PrintKind.BOTH)
-
-
 def default_paper(revision) -> str:
     """Letter for a plan kept in inches, A4 otherwise."""
-    return PrintPaper.LETTER if revision.inputs.get("unit") == "in" else PrintPaper.A4
+    return "letter" if revision.inputs.get("unit") == "in" else "a4"
 
 
 def _revision(plan_id, number):
-    return get_object_or_404(
-        PlanRevision.objects.select_related("plan__client", "plan__session__measured_by", "issued_by", "based_on"),
-        plan_id=plan_id, number=number, plan__client__is_deleted=False,
-    )
+    revision = selectors.revision_for_print_by_plan(plan_id, number)
+    if revision is None:
+        raise Http404("No such revision.")
+    return revision
 
 
 def _job(job_id):
     return get_object_or_404(
-        PrintJob.objects.select_related("revision__plan__client"),
-        pk=job_id, revision__plan__client__is_deleted=False,
+        selectors.print_jobs(),
+        pk=job_id,
+        revision__plan__client__is_deleted=False,
     )
 
 
@@ -44,16 +41,21 @@ def _job(job_id):
 def print_start(request, plan_id, number):
     revision = _revision(plan_id, number)
     if not revision.is_issued and role_of(request.user) == WORKROOM:
-        raise PermissionDenied("This revision is a draft: the workroom prints a revision once it is issued. "
-                               "Its fitter issues it from the revision's page.")
+        raise PermissionDenied(
+            "This revision is a draft: the workroom prints a revision once it is issued. "
+            "Its fitter issues it from the revision's page."
+        )
     status = 200
     if request.method == "POST":
         form = PrintForm(request.POST)
         if form.is_valid():
             try:
                 job = start_print(
-                    revision=revision, user=request.user, paper=form.cleaned_data["paper"],
-                    kind=form.cleaned_data["kind"], site_url=request.build_absolute_uri("/"),
+                    revision=revision,
+                    user=request.user,
+                    paper=form.cleaned_data["paper"],
+                    kind=form.cleaned_data["kind"],
+                    site_url=request.build_absolute_uri("/"),
                 )
             except PrintRefused as exc:
                 form.add_error(None, str(exc))
@@ -74,8 +76,14 @@ def print_status(request, job_id):
     partial = request.htmx and not request.htmx.history_restore_request
     template = "fittings/print/_status.html" if partial else "fittings/print/status.html"
     files = [kept for kept in job.files.all() if kept.file]
-    context = {"job": job, "revision": job.revision, "no_worker": waiting_for_a_worker(job), "files": files,
-               "keep_days": settings.ATELIER_KEEP_PRINTS_DAYS, "large_formats": LARGE_FORMATS.values()}
+    context = {
+        "job": job,
+        "revision": job.revision,
+        "no_worker": waiting_for_a_worker(job),
+        "files": files,
+        "keep_days": settings.ATELIER_KEEP_PRINTS_DAYS,
+        "large_formats": LARGE_FORMATS.values(),
+    }
     return render(request, template, context)
 
 
@@ -98,8 +106,9 @@ def print_download(request, job_id, document):
         handle = file.open("rb")
     except FileNotFoundError:
         raise Http404("The document's file is missing; print the revision again.") from None
-    response = FileResponse(handle, as_attachment=True, filename=download_name(job, document),
-                            content_type="application/pdf")
+    response = FileResponse(
+        handle, as_attachment=True, filename=download_name(job, document), content_type="application/pdf"
+    )
     response["Cache-Control"] = "private, no-store"
     return response
 

@@ -62,35 +62,62 @@ def short_words(code: str) -> str:
 
 def findings_for_screen(findings, unit: str) -> list[dict]:
     """The findings as the page and the printout list them: severity and message in the unit, no code."""
-    return [{"severity": f.severity, "message": in_unit(f.message, unit), "level": f.level, "seam": f.seam,
-             "panel": f.panel, "code": f.code} for f in findings]
+    return [
+        {
+            "severity": f.severity,
+            "message": in_unit(f.message, unit),
+            "level": f.level,
+            "seam": f.seam,
+            "panel": f.panel,
+            "code": f.code,
+        }
+        for f in findings
+    ]
 
 
 # Words of jsonschema's own messages: a file whose shape is wrong, said plainly instead.
-_SCHEMA_WORDS = ("is a required property", "is not of type", "is not one of", "does not match", "Additional properties",
-                 "is too long", "is too short", "is less than", "is greater than", "should be non-empty", "is not valid under")
+_SCHEMA_WORDS = (
+    "is a required property",
+    "is not of type",
+    "is not one of",
+    "does not match",
+    "Additional properties",
+    "is too long",
+    "is too short",
+    "is less than",
+    "is greater than",
+    "should be non-empty",
+    "is not valid under",
+)
 
 
 def import_refusal(field: str, message: str) -> str:
     """Why a fitting file was refused, as a fitter can act on it (never a parser's own message)."""
     if message.startswith("Not valid JSON"):
-        return ("This file is damaged or is not a fitting file: it could not be read. "
-                "Export the fitting file again from where it was made and import the new copy.")
+        return (
+            "This file is damaged or is not a fitting file: it could not be read. "
+            "Export the fitting file again from where it was made and import the new copy."
+        )
     if any(words in message for words in _SCHEMA_WORDS):
         where = field.replace("/", " › ") if field and field != "(file)" else "the file"
         unexpected = re.findall(r"'([^']{1,60})'", message.split("(", 1)[1]) if "was unexpected" in message else []
         if unexpected:
             what = f"{where} holds {', '.join(unexpected)}, which a fitting file does not have"
-        elif (found := re.match(r"^'?(.{1,60}?)'? is (not one of|greater than|less than)", message)):
+        elif found := re.match(r"^'?(.{1,60}?)'? is (not one of|greater than|less than)", message):
             value = found[1]
-            what = (f"{where} holds “{value}”, which a fitting file cannot have there" if found[2] == "not one of"
-                    else f"{where} holds {value}, which is out of range")
+            what = (
+                f"{where} holds “{value}”, which a fitting file cannot have there"
+                if found[2] == "not one of"
+                else f"{where} holds {value}, which is out of range"
+            )
         elif "is not of type" in message:
             what = f"{where} holds the wrong kind of value"
         else:
             what = f"{where} is missing or not as a fitting file has it"
-        return (f"This is not a fitting file this app can use: {what}. "
-                "Export the fitting file again from this app, or ask whoever made it.")
+        return (
+            f"This is not a fitting file this app can use: {what}. "
+            "Export the fitting file again from this app, or ask whoever made it."
+        )
     if field in ("", "(file)", "pattern"):
         return message
     return f"In the file's {field.replace('/', ' › ')}: {message}"

@@ -66,24 +66,38 @@ def _len(mm, unit) -> str:
 def boning_context(data: DocumentData, pattern: AlteredPattern, bones: BoningList | None = None) -> dict:
     bones = bones or workroom_lists(data, pattern)[0]
     unit = data.unit
-    rows = [{"name": c.name, "where": "seam" if c.kind == "seam" else "marked",
-             "channel": _len(c.channel_mm, unit), "bone": _len(c.cut_mm, unit) if c.cut_mm > 0 else "none",
-             "count": c.count} for c in bones.channels]
+    rows = [
+        {
+            "name": c.name,
+            "where": "seam" if c.kind == "seam" else "marked",
+            "channel": _len(c.channel_mm, unit),
+            "bone": _len(c.cut_mm, unit) if c.cut_mm > 0 else "none",
+            "count": c.count,
+        }
+        for c in bones.channels
+    ]
     busk = None
     if bones.busk is not None:
         b = bones.busk
-        busk = {"centre_front": _len(b.centre_front_mm, unit), "room": _len(b.room_mm, unit),
-                "length": _len(b.length_mm, unit) if b.length_mm is not None else "",
-                # The same busk in the other unit, as suppliers sell in either.
-                "length_other": format_with_unit(b.length_mm, "cm" if unit == "in" else "in")
-                if b.length_mm is not None else "",
-                "short_by": _len(b.short_by_mm, unit) if b.short_by_mm is not None else "",
-                "clearance": _len(bones.rules.busk_clearance, unit)}
+        busk = {
+            "centre_front": _len(b.centre_front_mm, unit),
+            "room": _len(b.room_mm, unit),
+            "length": _len(b.length_mm, unit) if b.length_mm is not None else "",
+            # The same busk in the other unit, as suppliers sell in either.
+            "length_other": format_with_unit(b.length_mm, "cm" if unit == "in" else "in")
+            if b.length_mm is not None
+            else "",
+            "short_by": _len(b.short_by_mm, unit) if b.short_by_mm is not None else "",
+            "clearance": _len(bones.rules.busk_clearance, unit),
+        }
     return {
         # Columns that would say the same on every row are left out (each cell costs drawing time).
         "any_marked": any(c.kind != "seam" for c in bones.channels),
         "all_pairs": all(c.count == 2 for c in bones.channels),
-        "rows": rows, "busk": busk, "count": bones.bone_count, "total": _len(bones.total_bone_mm, unit),
+        "rows": rows,
+        "busk": busk,
+        "count": bones.bone_count,
+        "total": _len(bones.total_bone_mm, unit),
         "clearance": _len(bones.rules.clearance_mm, unit),
         "stock": ", ".join(format_with_unit(v, unit) for v in sorted(bones.rules.busk_stock_mm)) or "none",
         "step": "1/16 in" if unit == "in" else "1 mm",
@@ -104,13 +118,21 @@ def lacing_context(data: DocumentData, pattern: AlteredPattern, laces: Lacing | 
     spacings = laces.spacings_mm
     usual = max(spacings) if spacings else 0.0
     return {
-        "panel": laces.panel, "count": laces.count, "total": laces.total_count, "edge": _len(laces.edge_mm, unit),
+        "panel": laces.panel,
+        "count": laces.count,
+        "total": laces.total_count,
+        "edge": _len(laces.edge_mm, unit),
         # Four to a row, one cell each: WeasyPrint's time goes by the box.
-        "eyelets": [(eyelets[i:i + 4] + [None] * 3)[:4] for i in range(0, len(eyelets), 4)],
-        "spacing": _len(r.spacing_mm, unit), "widest": _len(usual, unit), "pair": _len(min(r.waist_pair_mm, r.spacing_mm), unit),
-        "margin": _len(r.top_margin_mm, unit), "inset": _len(r.inset_mm, unit),
-        "gap": _len(laces.lacing_gap_mm, unit), "columns": _len(laces.column_gap_mm, unit),
-        "tail": _len(r.tail_mm, unit), "lace": _len(laces.lace_mm, unit),
+        "eyelets": [(eyelets[i : i + 4] + [None] * 3)[:4] for i in range(0, len(eyelets), 4)],
+        "spacing": _len(r.spacing_mm, unit),
+        "widest": _len(usual, unit),
+        "pair": _len(min(r.waist_pair_mm, r.spacing_mm), unit),
+        "margin": _len(r.top_margin_mm, unit),
+        "inset": _len(r.inset_mm, unit),
+        "gap": _len(laces.lacing_gap_mm, unit),
+        "columns": _len(laces.column_gap_mm, unit),
+        "tail": _len(r.tail_mm, unit),
+        "lace": _len(laces.lace_mm, unit),
         "lace_m": f"{laces.lace_mm / 1000:.1f} m",
     }
 
@@ -121,11 +143,15 @@ def lacing_context(data: DocumentData, pattern: AlteredPattern, laces: Lacing | 
 def workroom_sections(data: DocumentData, pattern: AlteredPattern) -> dict:
     """Both sections of the work order, from one working-out of the lists."""
     bones, laces = workroom_lists(data, pattern)
-    return {"boning": boning_context(data, pattern, bones),
-            "lacing": lacing_context(data, pattern, laces) if laces is not None else None}
+    return {
+        "boning": boning_context(data, pattern, bones),
+        "lacing": lacing_context(data, pattern, laces) if laces is not None else None,
+    }
 
 
-def _workroom_marks(parent, data: DocumentData, pattern: AlteredPattern, offsets: dict[str, tuple[float, float]]) -> None:
+def _workroom_marks(
+    parent, data: DocumentData, pattern: AlteredPattern, offsets: dict[str, tuple[float, float]]
+) -> None:
     """Boning channels (dash-dot) and eyelet centres (small circles) over the pieces placed at ``offsets``."""
     bones, laces = workroom_lists(data, pattern)
     for c in bones.channels:
@@ -133,15 +159,31 @@ def _workroom_marks(parent, data: DocumentData, pattern: AlteredPattern, offsets
         if c.kind == "seam":
             continue  # on the stitch line, already drawn
         g = ET.SubElement(parent, "g", {"transform": f"translate({_n(dx)} {_n(dy)})"})
-        _line(g, _path(c.line, False), CHANNEL_COLOUR, CHANNEL_WIDTH_MM, stroke_dasharray=CHANNEL_DASH,
-              **{"class": "channel"})
+        _line(
+            g,
+            _path(c.line, False),
+            CHANNEL_COLOUR,
+            CHANNEL_WIDTH_MM,
+            stroke_dasharray=CHANNEL_DASH,
+            **{"class": "channel"},
+        )
     if laces is not None and laces.eyelets:
         dx, dy = offsets.get(laces.panel, (0.0, 0.0))
         g = ET.SubElement(parent, "g", {"transform": f"translate({_n(dx)} {_n(dy)})", "class": "eyelets"})
         for e in laces.eyelets:
-            ET.SubElement(g, "circle", {"class": "eyelet", "cx": _n(e.point[0]), "cy": _n(e.point[1]),
-                                        "r": _n(EYELET_RADIUS_MM), "fill": "none", "stroke": CUT_COLOUR,
-                                        "stroke-width": "0.3"})
+            ET.SubElement(
+                g,
+                "circle",
+                {
+                    "class": "eyelet",
+                    "cx": _n(e.point[0]),
+                    "cy": _n(e.point[1]),
+                    "r": _n(EYELET_RADIUS_MM),
+                    "fill": "none",
+                    "stroke": CUT_COLOUR,
+                    "stroke-width": "0.3",
+                },
+            )
 
 
 # --- one sheet, large format ---------------------------------------------------------------------
@@ -155,17 +197,27 @@ def large_layout(pattern: AlteredPattern, fmt: str) -> tuple[Sheet, LargeSheet]:
         xs, ys = [x for x, _ in o.cutting], [y for _, y in o.cutting]
         boxes.append((min(xs), min(ys), max(xs) - min(xs), max(ys) - min(ys)))
     sheet = large_sheet(fmt, [(w, h) for _, _, w, h in boxes], header_mm=LARGE_HEADER_MM, gap_mm=LARGE_GAP_MM)
-    pieces = tuple(SheetPiece(o, ox - x0, oy - y0, _thin(o.cutting), _thin(o.stitch))
-                   for o, (x0, y0, _, _), (ox, oy) in zip(outlines, boxes, sheet.offsets))
+    pieces = tuple(
+        SheetPiece(o, ox - x0, oy - y0, _thin(o.cutting), _thin(o.stitch))
+        for o, (x0, y0, _, _), (ox, oy) in zip(outlines, boxes, sheet.offsets)
+    )
     return Sheet(pieces, sheet.printable_width_mm, sheet.printable_height_mm), sheet
 
 
 def _one_tile_grid(sheet: LargeSheet) -> TileGrid:
     paper = PaperSize(sheet.format.code, sheet.format.label, sheet.page_width_mm, sheet.page_height_mm)
-    return TileGrid(paper=paper, orientation=PORTRAIT, page_width_mm=sheet.page_width_mm,
-                    page_height_mm=sheet.page_height_mm, margin_mm=sheet.margin_mm, overlap_mm=0.0,
-                    sheet_width_mm=sheet.printable_width_mm, sheet_height_mm=sheet.printable_height_mm,
-                    rows=1, columns=1)
+    return TileGrid(
+        paper=paper,
+        orientation=PORTRAIT,
+        page_width_mm=sheet.page_width_mm,
+        page_height_mm=sheet.page_height_mm,
+        margin_mm=sheet.margin_mm,
+        overlap_mm=0.0,
+        sheet_width_mm=sheet.printable_width_mm,
+        sheet_height_mm=sheet.printable_height_mm,
+        rows=1,
+        columns=1,
+    )
 
 
 def large_sheet_svg(data: DocumentData, pattern: AlteredPattern, sheet: Sheet, layout: LargeSheet) -> str:
@@ -182,23 +234,35 @@ def large_sheet_html(data: DocumentData, fmt: str, pattern: AlteredPattern | Non
     sheet, layout = large_layout(pattern, fmt)
     grid = _one_tile_grid(layout)
     tag = f"{data.client_label.split()[0]} rev. {data.revision_number}" if data.client_label else ""
-    labels = [{"text": label.text, "bold": label.bold, "rule": f"l{j}", "left": _n(label.left_mm),
-               "top": _n(label.top_mm), "size": _n(label.size_mm)}
-              for j, label in enumerate(piece_labels(sheet, grid, grid.tile(0, 0), tag))]
+    labels = [
+        {
+            "text": label.text,
+            "bold": label.bold,
+            "rule": f"l{j}",
+            "left": _n(label.left_mm),
+            "top": _n(label.top_mm),
+            "size": _n(label.size_mm),
+        }
+        for j, label in enumerate(piece_labels(sheet, grid, grid.tile(0, 0), tag))
+    ]
     context = {
         **_header(data),
         "title": f"Large sheet, {data.garment}, revision {data.revision_number}",
         "format_label": layout.format.label,
-        "page_width": _n(layout.page_width_mm), "page_height": _n(layout.page_height_mm),
+        "page_width": _n(layout.page_width_mm),
+        "page_height": _n(layout.page_height_mm),
         "page_size": f"{_n(layout.page_width_mm)} × {_n(layout.page_height_mm)} mm",
         "orientation": layout.orientation,
         "margin": _n(layout.margin_mm),
-        "area_width": _n(layout.printable_width_mm), "area_height": _n(layout.printable_height_mm),
+        "area_width": _n(layout.printable_width_mm),
+        "area_height": _n(layout.printable_height_mm),
         "header_height": _n(LARGE_HEADER_MM),
         "sheet": svg_data_uri(large_sheet_svg(data, pattern, sheet, layout)),
         "labels": labels,
-        "squares": [{"name": name, "src": svg_data_uri(square_svg(side, name, divisions)),
-                     "size": _n(side + 2 * SQUARE_PAD_MM)} for _, side, name, divisions in TEST_SQUARES],
+        "squares": [
+            {"name": name, "src": svg_data_uri(square_svg(side, name, divisions)), "size": _n(side + 2 * SQUARE_PAD_MM)}
+            for _, side, name, divisions in TEST_SQUARES
+        ],
         "seam_allowance": format_with_unit(data.block.seam_allowance_mm, data.unit),
         "cautions": cautions(data),
     }

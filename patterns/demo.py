@@ -13,7 +13,17 @@ from fractions import Fraction
 from pathlib import Path
 
 from patterns.core.block import (
-    BACK, CB_LACED, CB_SEAMED, CF_BUSK, CF_FOLD, FRONT, Block, Level, Panel, Point, Seam,
+    BACK,
+    CB_LACED,
+    CB_SEAMED,
+    CF_BUSK,
+    CF_FOLD,
+    FRONT,
+    Block,
+    Level,
+    Panel,
+    Point,
+    Seam,
 )
 from patterns.core.units import MM_PER_INCH
 
@@ -32,11 +42,41 @@ def _in(text: str) -> float:
 # ASTM D5585-11, Table 1 (inches): bust, underbust, waist (curvy).
 # Hip and abdomen: from memory of the same size range.
 CORSET_SIZES = {
-    "6": {"bust": _in("35 1/4"), "underbust": _in("29"), "waist": _in("27"), "abdomen": _in("33 1/2"), "hip": _in("37 1/2")},
-    "8": {"bust": _in("36 1/4"), "underbust": _in("30"), "waist": _in("28"), "abdomen": _in("34 1/2"), "hip": _in("38 1/2")},
-    "10": {"bust": _in("37 1/4"), "underbust": _in("31"), "waist": _in("29"), "abdomen": _in("35 1/2"), "hip": _in("39 1/2")},
-    "12": {"bust": _in("38 3/4"), "underbust": _in("32 1/2"), "waist": _in("30 3/4"), "abdomen": _in("37"), "hip": _in("41")},
-    "14": {"bust": _in("40 3/8"), "underbust": _in("34"), "waist": _in("32 1/2"), "abdomen": _in("38 1/2"), "hip": _in("42 1/2")},
+    "6": {
+        "bust": _in("35 1/4"),
+        "underbust": _in("29"),
+        "waist": _in("27"),
+        "abdomen": _in("33 1/2"),
+        "hip": _in("37 1/2"),
+    },
+    "8": {
+        "bust": _in("36 1/4"),
+        "underbust": _in("30"),
+        "waist": _in("28"),
+        "abdomen": _in("34 1/2"),
+        "hip": _in("38 1/2"),
+    },
+    "10": {
+        "bust": _in("37 1/4"),
+        "underbust": _in("31"),
+        "waist": _in("29"),
+        "abdomen": _in("35 1/2"),
+        "hip": _in("39 1/2"),
+    },
+    "12": {
+        "bust": _in("38 3/4"),
+        "underbust": _in("32 1/2"),
+        "waist": _in("30 3/4"),
+        "abdomen": _in("37"),
+        "hip": _in("41"),
+    },
+    "14": {
+        "bust": _in("40 3/8"),
+        "underbust": _in("34"),
+        "waist": _in("32 1/2"),
+        "abdomen": _in("38 1/2"),
+        "hip": _in("42 1/2"),
+    },
 }
 
 # Share of the half girth each corset panel takes, centre front to centre back.
@@ -71,9 +111,17 @@ _CORSET_SEAMS = (
 _CORSET_Y10 = {"bust": 60.0, "underbust": 150.0, "waist": 250.0, "abdomen": 340.0, "hip": 440.0}
 
 
-def _panels(level_widths: dict[str, list[float]], levels: tuple[Level, ...], *, cf_fold: bool,
-            top: list[float], bottom: list[float], names, gap: float = 50.0,
-            bound: bool = False) -> tuple[Panel, ...]:
+def _panels(
+    level_widths: dict[str, list[float]],
+    levels: tuple[Level, ...],
+    *,
+    cf_fold: bool,
+    top: list[float],
+    bottom: list[float],
+    names,
+    gap: float = 50.0,
+    bound: bool = False,
+) -> tuple[Panel, ...]:
     """Lay the panels out side by side: straight centre front, straight centre back,
     the others symmetric about their grainline."""
     count = len(names)
@@ -92,14 +140,22 @@ def _panels(level_widths: dict[str, list[float]], levels: tuple[Level, ...], *, 
                 centre = origin + widest[i] / 2
                 left[lv.name], right[lv.name] = centre - w / 2, centre + w / 2
         first, last = levels[0].name, levels[-1].name
-        panels.append(Panel(
-            name=name, side=side, left=left, right=right,
-            top_left=Point(left[first], top[i]), top_right=Point(right[first], top[i + 1] if i + 1 < count else top[i]),
-            bottom_left=Point(left[last], bottom[i]), bottom_right=Point(right[last], bottom[i + 1] if i + 1 < count else bottom[i]),
-            cut_count=1 if (i == 0 and cf_fold) else 2,
-            on_fold=(i == 0 and cf_fold),
-            top_bound=bound, bottom_bound=bound,
-        ))
+        panels.append(
+            Panel(
+                name=name,
+                side=side,
+                left=left,
+                right=right,
+                top_left=Point(left[first], top[i]),
+                top_right=Point(right[first], top[i + 1] if i + 1 < count else top[i]),
+                bottom_left=Point(left[last], bottom[i]),
+                bottom_right=Point(right[last], bottom[i + 1] if i + 1 < count else bottom[i]),
+                cut_count=1 if (i == 0 and cf_fold) else 2,
+                on_fold=(i == 0 and cf_fold),
+                top_bound=bound,
+                bottom_bound=bound,
+            )
+        )
         origin += widest[i] + gap
     return tuple(panels)
 
@@ -133,9 +189,16 @@ def corset_block(size: str) -> Block:
         for (name, kind, at), a, b in zip(_CORSET_SEAMS, panels, panels[1:])
     )
     return Block(
-        name="Overbust corset, six panels", size=size, garment="overbust corset",
-        levels=levels, panels=panels, seams=seams,
-        centre_front=CF_BUSK, centre_back=CB_LACED, seam_allowance_mm=15.0, size_order=order,
+        name="Overbust corset, six panels",
+        size=size,
+        garment="overbust corset",
+        levels=levels,
+        panels=panels,
+        seams=seams,
+        centre_front=CF_BUSK,
+        centre_back=CB_LACED,
+        seam_allowance_mm=15.0,
+        size_order=order,
     )
 
 
@@ -172,9 +235,16 @@ def bodice_block() -> Block:
         for (name, kind, at), a, b in zip(seam_specs, panels, panels[1:])
     )
     return Block(
-        name="Fitted evening bodice, four panels", size="12", garment="bodice",
-        levels=levels, panels=panels, seams=seams,
-        centre_front=CF_FOLD, centre_back=CB_SEAMED, seam_allowance_mm=15.0, size_order=0,
+        name="Fitted evening bodice, four panels",
+        size="12",
+        garment="bodice",
+        levels=levels,
+        panels=panels,
+        seams=seams,
+        centre_front=CF_FOLD,
+        centre_back=CB_SEAMED,
+        seam_allowance_mm=15.0,
+        size_order=0,
     )
 
 
@@ -187,10 +257,19 @@ def drawn_underbust_block() -> Block:
     Drafted, like the corset run, to the demo size 10 girths less a 5 cm lacing gap."""
     from patterns.core.importing import ImportOptions, import_block
 
-    return import_block(DRAWN_BLOCK_FILE.read_bytes(), DRAWN_BLOCK_FILE.name, ImportOptions(
-        name="Underbust corset, four panels (drawn)", size="10", garment="underbust corset",
-        front_panels=2, centre_front=CF_BUSK, centre_back=CB_LACED, seam_allowance_mm=15.0,
-    ))
+    return import_block(
+        DRAWN_BLOCK_FILE.read_bytes(),
+        DRAWN_BLOCK_FILE.name,
+        ImportOptions(
+            name="Underbust corset, four panels (drawn)",
+            size="10",
+            garment="underbust corset",
+            front_panels=2,
+            centre_front=CF_BUSK,
+            centre_back=CB_LACED,
+            seam_allowance_mm=15.0,
+        ),
+    )
 
 
 # Invented clients.  Measurements in mm.
@@ -202,12 +281,22 @@ DEMO_CLIENTS = (
         "notes": "Close to the size 10 corset. Wants a first corset for a summer wedding.",
         "sessions": [
             {
-                "kind": "first", "unit": "cm", "days_ago": 42,
+                "kind": "first",
+                "unit": "cm",
+                "days_ago": 42,
                 "values": {
-                    "bust_girth": 955, "underbust_girth": 790, "waist_girth": 742, "abdomen_girth": 905,
-                    "hip_girth": 1008, "bust_to_underbust": 88, "underbust_to_waist": 104,
-                    "waist_to_abdomen": 92, "waist_to_hip": 192, "centre_front_length": 330,
-                    "centre_back_length": 405, "bust_span": 185,
+                    "bust_girth": 955,
+                    "underbust_girth": 790,
+                    "waist_girth": 742,
+                    "abdomen_girth": 905,
+                    "hip_girth": 1008,
+                    "bust_to_underbust": 88,
+                    "underbust_to_waist": 104,
+                    "waist_to_abdomen": 92,
+                    "waist_to_hip": 192,
+                    "centre_front_length": 330,
+                    "centre_back_length": 405,
+                    "bust_span": 185,
                 },
             },
         ],
@@ -219,21 +308,37 @@ DEMO_CLIENTS = (
         "notes": "Experienced corset wearer; asks for a strong waist reduction. Wears corsets daily.",
         "sessions": [
             {
-                "kind": "first", "unit": "in", "days_ago": 30,
+                "kind": "first",
+                "unit": "in",
+                "days_ago": 30,
                 "values": {
-                    "bust_girth": _in("39 1/2"), "underbust_girth": _in("33"), "waist_girth": _in("32"),
-                    "abdomen_girth": _in("38"), "hip_girth": _in("42"), "bust_to_underbust": _in("3 1/2"),
-                    "underbust_to_waist": _in("4 1/8"), "waist_to_abdomen": _in("3 5/8"),
-                    "waist_to_hip": _in("7 3/4"), "bust_span": _in("7 1/2"),
+                    "bust_girth": _in("39 1/2"),
+                    "underbust_girth": _in("33"),
+                    "waist_girth": _in("32"),
+                    "abdomen_girth": _in("38"),
+                    "hip_girth": _in("42"),
+                    "bust_to_underbust": _in("3 1/2"),
+                    "underbust_to_waist": _in("4 1/8"),
+                    "waist_to_abdomen": _in("3 5/8"),
+                    "waist_to_hip": _in("7 3/4"),
+                    "bust_span": _in("7 1/2"),
                 },
             },
             {
-                "kind": "toile", "unit": "in", "days_ago": 9,
+                "kind": "toile",
+                "unit": "in",
+                "days_ago": 9,
                 "values": {
-                    "bust_girth": _in("39 3/8"), "underbust_girth": _in("33"), "waist_girth": _in("31 3/4"),
-                    "abdomen_girth": _in("38"), "hip_girth": _in("42"), "bust_to_underbust": _in("3 1/2"),
-                    "underbust_to_waist": _in("4 1/8"), "waist_to_abdomen": _in("3 5/8"),
-                    "waist_to_hip": _in("7 3/4"), "bust_span": _in("7 1/2"),
+                    "bust_girth": _in("39 3/8"),
+                    "underbust_girth": _in("33"),
+                    "waist_girth": _in("31 3/4"),
+                    "abdomen_girth": _in("38"),
+                    "hip_girth": _in("42"),
+                    "bust_to_underbust": _in("3 1/2"),
+                    "underbust_to_waist": _in("4 1/8"),
+                    "waist_to_abdomen": _in("3 5/8"),
+                    "waist_to_hip": _in("7 3/4"),
+                    "bust_span": _in("7 1/2"),
                 },
             },
         ],
@@ -245,12 +350,23 @@ DEMO_CLIENTS = (
         "notes": "Full bust, narrow back. Front arcs taken. Evening bodice for a gala.",
         "sessions": [
             {
-                "kind": "first", "unit": "cm", "days_ago": 14,
+                "kind": "first",
+                "unit": "cm",
+                "days_ago": 14,
                 "values": {
-                    "bust_girth": 1040, "underbust_girth": 795, "waist_girth": 745, "abdomen_girth": 900,
-                    "bust_front_arc": 590, "underbust_front_arc": 420, "waist_front_arc": 380,
-                    "abdomen_front_arc": 455, "bust_to_underbust": 110, "underbust_to_waist": 100,
-                    "waist_to_abdomen": 90, "bust_span": 215, "centre_front_length": 345,
+                    "bust_girth": 1040,
+                    "underbust_girth": 795,
+                    "waist_girth": 745,
+                    "abdomen_girth": 900,
+                    "bust_front_arc": 590,
+                    "underbust_front_arc": 420,
+                    "waist_front_arc": 380,
+                    "abdomen_front_arc": 455,
+                    "bust_to_underbust": 110,
+                    "underbust_to_waist": 100,
+                    "waist_to_abdomen": 90,
+                    "bust_span": 215,
+                    "centre_front_length": 345,
                     "centre_back_length": 395,
                 },
             },

@@ -10,7 +10,7 @@ from django.db.models import F, Q
 
 from patterns.core import block as core
 from patterns.core.defaults import is_corset
-from patterns.core.measures import LEVEL_LABELS, LEVEL_CODES
+from patterns.core.measures import LEVEL_CODES, LEVEL_LABELS
 from patterns.core.units import STORE_PLACES
 
 MM_PLACES = -STORE_PLACES.as_tuple().exponent
@@ -70,7 +70,11 @@ class BasePattern(models.Model):
     garment = models.CharField(max_length=40, choices=GarmentKind.choices)
     size_label = models.CharField(max_length=20, help_text="As the atelier names the size, e.g. 10 or M.")
     size_run = models.ForeignKey(
-        SizeRun, models.SET_NULL, null=True, blank=True, related_name="patterns",
+        SizeRun,
+        models.SET_NULL,
+        null=True,
+        blank=True,
+        related_name="patterns",
     )
     size_order = models.PositiveSmallIntegerField(default=0, help_text="Position within the size run, smallest first.")
     centre_front = models.CharField(max_length=10, choices=CentreFront.choices, default=CentreFront.BUSK)
@@ -78,17 +82,25 @@ class BasePattern(models.Model):
     seam_allowance_mm = mm_field(default=15)
     notes = models.TextField(blank=True)
     channels = models.JSONField(
-        default=list, blank=True,
+        default=list,
+        blank=True,
         help_text="Boning channels marked inside panels, besides the one on every seam (patterns.core.fitting.channels_to_list).",
     )
     is_active = models.BooleanField(
-        default=True, help_text="Inactive patterns stay for the plans made from them but are not offered for new ones.",
+        default=True,
+        help_text="Inactive patterns stay for the plans made from them but are not offered for new ones.",
     )
     created_at = models.DateTimeField(auto_now_add=True)
     # Editing a block that plans use makes a new version; the plans keep the one they were made from.
-    version = models.PositiveIntegerField(default=1, help_text="1 for a new block, one more at every edit that plans already used.")
+    version = models.PositiveIntegerField(
+        default=1, help_text="1 for a new block, one more at every edit that plans already used."
+    )
     previous = models.ForeignKey(
-        "self", models.PROTECT, null=True, blank=True, related_name="later_versions",
+        "self",
+        models.PROTECT,
+        null=True,
+        blank=True,
+        related_name="later_versions",
         help_text="The version this one was edited from.",
     )
 
@@ -96,10 +108,14 @@ class BasePattern(models.Model):
         ordering = ["name", "size_order", "size_label"]
         constraints = [
             models.UniqueConstraint(
-                fields=["name", "size_label"], condition=Q(is_active=True), name="pattern_active_name_size_unique",
+                fields=["name", "size_label"],
+                condition=Q(is_active=True),
+                name="pattern_active_name_size_unique",
             ),
             models.UniqueConstraint(
-                fields=["size_run", "size_label"], condition=Q(is_active=True), name="pattern_active_size_in_run_unique",
+                fields=["size_run", "size_label"],
+                condition=Q(is_active=True),
+                name="pattern_active_size_in_run_unique",
             ),
             models.CheckConstraint(condition=Q(version__gte=1), name="pattern_version_from_one"),
             models.CheckConstraint(condition=Q(seam_allowance_mm__gte=0), name="pattern_seam_allowance_not_negative"),
@@ -146,7 +162,9 @@ class PatternPanel(models.Model):
     on_fold = models.BooleanField(default=False)
     top_bound = models.BooleanField(default=False, help_text="The top edge is bound: no seam allowance there.")
     bottom_bound = models.BooleanField(default=False, help_text="The bottom edge is bound: no seam allowance there.")
-    grainline_x = mm_field(null=True, blank=True, help_text="Where the grainline runs; empty for the middle of the panel.")
+    grainline_x = mm_field(
+        null=True, blank=True, help_text="Where the grainline runs; empty for the middle of the panel."
+    )
     top_left_x = mm_field()
     top_left_y = mm_field()
     top_right_x = mm_field()
@@ -156,7 +174,8 @@ class PatternPanel(models.Model):
     bottom_right_x = mm_field()
     bottom_right_y = mm_field()
     curves = models.JSONField(
-        null=True, blank=True,
+        null=True,
+        blank=True,
         help_text="The drawn stitch lines of a panel imported from a drawing (patterns.core.fitting.curves_to_dict).",
     )
 

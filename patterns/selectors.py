@@ -35,22 +35,24 @@ def block_for(pattern) -> Block:
     panels = []
     for row in panel_rows:
         lines = sorted(row.lines.all(), key=lambda line: level_rank.get(line.level, len(level_rank)))
-        panels.append(Panel(
-            name=row.name,
-            side=row.side,
-            left={line.level: float(line.left_x) for line in lines},
-            right={line.level: float(line.right_x) for line in lines},
-            top_left=Point(float(row.top_left_x), float(row.top_left_y)),
-            top_right=Point(float(row.top_right_x), float(row.top_right_y)),
-            bottom_left=Point(float(row.bottom_left_x), float(row.bottom_left_y)),
-            bottom_right=Point(float(row.bottom_right_x), float(row.bottom_right_y)),
-            cut_count=row.cut_count,
-            on_fold=row.on_fold,
-            top_bound=row.top_bound,
-            bottom_bound=row.bottom_bound,
-            grainline_x=None if row.grainline_x is None else float(row.grainline_x),
-            curves=curves_from_dict(row.curves) if row.curves else None,
-        ))
+        panels.append(
+            Panel(
+                name=row.name,
+                side=row.side,
+                left={line.level: float(line.left_x) for line in lines},
+                right={line.level: float(line.right_x) for line in lines},
+                top_left=Point(float(row.top_left_x), float(row.top_left_y)),
+                top_right=Point(float(row.top_right_x), float(row.top_right_y)),
+                bottom_left=Point(float(row.bottom_left_x), float(row.bottom_left_y)),
+                bottom_right=Point(float(row.bottom_right_x), float(row.bottom_right_y)),
+                cut_count=row.cut_count,
+                on_fold=row.on_fold,
+                top_bound=row.top_bound,
+                bottom_bound=row.bottom_bound,
+                grainline_x=None if row.grainline_x is None else float(row.grainline_x),
+                curves=curves_from_dict(row.curves) if row.curves else None,
+            )
+        )
     name_at = {row.order: row.name for row in panel_rows}
     seams = tuple(
         Seam(
@@ -114,9 +116,12 @@ def width_rows(block, unit):
     from patterns.core.units import format_length
 
     return [
-        {"level": LEVEL_LABELS.get(lv.name, lv.name), "y": format_length(lv.y, unit),
-         "widths": [format_length(p.width(lv.name), unit) for p in block.panels],
-         "girth": format_length(block.girth(lv.name), unit)}
+        {
+            "level": LEVEL_LABELS.get(lv.name, lv.name),
+            "y": format_length(lv.y, unit),
+            "widths": [format_length(p.width(lv.name), unit) for p in block.panels],
+            "girth": format_length(block.girth(lv.name), unit),
+        }
         for lv in block.levels
     ]
 
@@ -126,8 +131,12 @@ def graded_rows(block, graded, unit):
     from patterns.core.units import format_length
 
     return [
-        {"size": g.size, "steps": g.steps, "girths": [format_length(g.block.girth(lv), unit) for lv in block.level_names],
-         "findings": g.findings}
+        {
+            "size": g.size,
+            "steps": g.steps,
+            "girths": [format_length(g.block.girth(lv), unit) for lv in block.level_names],
+            "findings": g.findings,
+        }
         for g in graded
     ]
 
@@ -138,8 +147,12 @@ def seam_rows(block, unit):
     from patterns.core.units import format_with_unit
 
     return [
-        {"name": s.name, "kind": s.kind,
-         "moves": ", ".join(LEVEL_LABELS.get(lv, lv).lower() for lv in block.level_names if lv in s.alterable_at)
-         or "nowhere", "cap": format_with_unit(s.cap_mm, unit)}
+        {
+            "name": s.name,
+            "kind": s.kind,
+            "moves": ", ".join(LEVEL_LABELS.get(lv, lv).lower() for lv in block.level_names if lv in s.alterable_at)
+            or "nowhere",
+            "cap": format_with_unit(s.cap_mm, unit),
+        }
         for s in block.seams
     ]

@@ -6,10 +6,16 @@ from patterns.core.block import Block, block_errors
 from patterns.core.fitting import block_to_dict, channels_to_list, curves_to_dict
 from patterns.core.measures import LEVEL_CODES
 from patterns.core.units import quantize_mm
-from patterns.selectors import block_for
 from patterns.models import (
-    BasePattern, GarmentKind, PanelLine, PatternLevel, PatternPanel, PatternSeam, SizeRun,
+    BasePattern,
+    GarmentKind,
+    PanelLine,
+    PatternLevel,
+    PatternPanel,
+    PatternSeam,
+    SizeRun,
 )
+from patterns.selectors import block_for
 
 
 class BlockInvalid(ValueError):
@@ -23,9 +29,7 @@ class BlockInvalid(ValueError):
 def _problems(block: Block, size_run: SizeRun | None) -> list[str]:
     errors = block_errors(block)
     if block.garment not in GarmentKind.values:
-        errors.append(
-            f"Unknown garment {block.garment!r}; use one of: {', '.join(GarmentKind.values)}."
-        )
+        errors.append(f"Unknown garment {block.garment!r}; use one of: {', '.join(GarmentKind.values)}.")
     unknown = [name for name in block.level_names if name not in LEVEL_CODES]
     if unknown:
         errors.append(f"Unknown level {', '.join(unknown)}; use one of: {', '.join(LEVEL_CODES)}.")
@@ -40,7 +44,9 @@ def _taken(block: Block, size_run: SizeRun | None, but=None) -> list[str]:
     if but is not None:
         same = same.exclude(pk=but.pk)
     if same.exists():
-        errors.append(f"There is already a base pattern “{block.name}”, size {block.size}. Give this one another name or size.")
+        errors.append(
+            f"There is already a base pattern “{block.name}”, size {block.size}. Give this one another name or size."
+        )
     if size_run is not None:
         in_run = BasePattern.objects.filter(is_active=True, size_run=size_run, size_label=block.size)
         if but is not None:
@@ -133,6 +139,7 @@ def _store_parts(pattern: BasePattern, block: Block) -> None:
 
 def _rounded(block: Block):
     """The block as it would be stored (lengths to 1/10 000 mm), for telling an edit from no change."""
+
     def walk(value):
         if isinstance(value, float):
             return quantize_mm(value)
@@ -141,6 +148,7 @@ def _rounded(block: Block):
         if isinstance(value, (list, tuple)):
             return [walk(v) for v in value]
         return value
+
     return walk(block_to_dict(block))
 
 
@@ -171,9 +179,13 @@ def edit_block(pattern: BasePattern, block: Block) -> BasePattern:
         if errors:
             raise BlockInvalid(errors)
         for field, value in (
-            ("name", block.name), ("garment", block.garment), ("size_label", block.size),
-            ("size_order", block.size_order), ("centre_front", block.centre_front),
-            ("centre_back", block.centre_back), ("seam_allowance_mm", quantize_mm(block.seam_allowance_mm)),
+            ("name", block.name),
+            ("garment", block.garment),
+            ("size_label", block.size),
+            ("size_order", block.size_order),
+            ("centre_front", block.centre_front),
+            ("centre_back", block.centre_back),
+            ("seam_allowance_mm", quantize_mm(block.seam_allowance_mm)),
         ):
             setattr(pattern, field, value)
         pattern.save()

@@ -15,8 +15,8 @@ from django.views.decorators.http import require_GET, require_POST
 from atelier.roles import EDITORS, ROLES, role_of, role_required
 from patterns import selectors, services
 from patterns.core.drafting import build_block, draft_from_block, draft_from_tape
-from patterns.core.fitting import block_to_dict
 from patterns.core.findings import ERROR
+from patterns.core.fitting import block_to_dict
 from patterns.core.grading import grade_run
 from patterns.core.preview import block_svg, markers_from_findings
 from patterns.forms import BlockForm, GradeForm, Shape, ShapeFields, TapeForm, TapeSetupForm
@@ -41,8 +41,9 @@ def _pattern(pk):
 def pattern_list(request):
     """Base patterns in use, by size run, with the runs' sizes smallest first."""
     runs, singles = selectors.patterns_by_run()
-    return render(request, "patterns/pattern_list.html",
-                  {"runs": runs, "singles": singles, "can_edit": _can_edit(request.user)})
+    return render(
+        request, "patterns/pattern_list.html", {"runs": runs, "singles": singles, "can_edit": _can_edit(request.user)}
+    )
 
 
 @role_required(*ROLES)
@@ -50,8 +51,12 @@ def pattern_detail(request, pk):
     pattern = _pattern(pk)
     block = selectors.block_for(pattern)
     context = {
-        "pattern": pattern, "base_block": block, "can_edit": _can_edit(request.user) and pattern.is_active,
-        "rows": selectors.width_rows(block, "cm"), "seams": selectors.seam_rows(block, "cm"), "versions": selectors.versions_of(pattern),
+        "pattern": pattern,
+        "base_block": block,
+        "can_edit": _can_edit(request.user) and pattern.is_active,
+        "rows": selectors.width_rows(block, "cm"),
+        "seams": selectors.seam_rows(block, "cm"),
+        "versions": selectors.versions_of(pattern),
         "plans": pattern.plans.count(),
     }
     return render(request, "patterns/pattern_detail.html", context)
@@ -101,9 +106,15 @@ def block_drawing(request, key):
 
 
 def _block_page(request, form, *, pattern=None, drafted=None, status=200, problems=()):
-    context = {"form": form, "shape_form": ShapeFields(initial={"unit": form.shape.unit, "panel_count": form.shape.panels,
-                                                                "levels": list(form.shape.levels)}),
-               "pattern": pattern, "problems": problems, **_drawing_context(drafted)}
+    context = {
+        "form": form,
+        "shape_form": ShapeFields(
+            initial={"unit": form.shape.unit, "panel_count": form.shape.panels, "levels": list(form.shape.levels)}
+        ),
+        "pattern": pattern,
+        "problems": problems,
+        **_drawing_context(drafted),
+    }
     return render(request, "patterns/block_form.html", context, status=status)
 
 
@@ -142,8 +153,11 @@ def block_new(request):
 
 
 def _typed(data):
-    return {k: (data.getlist(k) if k in ("levels",) or k.endswith("_moves") else data.get(k)) for k in data
-            if k not in ("csrfmiddlewaretoken", "layout")}
+    return {
+        k: (data.getlist(k) if k in ("levels",) or k.endswith("_moves") else data.get(k))
+        for k in data
+        if k not in ("csrfmiddlewaretoken", "layout")
+    }
 
 
 @role_required(*EDITORS)
@@ -185,8 +199,11 @@ def _save(request, form, pattern):
     except services.BlockInvalid as exc:
         return _block_page(request, form, pattern=pattern, drafted=drafted, status=400, problems=exc.errors)
     if pattern is not None and saved.pk != pattern.pk:
-        messages.success(request, f"Saved as version {saved.version}. The plans made on version {pattern.version} "
-                                  "keep it, so their shapes do not change.")
+        messages.success(
+            request,
+            f"Saved as version {saved.version}. The plans made on version {pattern.version} "
+            "keep it, so their shapes do not change.",
+        )
     else:
         messages.success(request, "The block is saved.")
     return redirect("patterns:pattern_detail", saved.pk)
@@ -201,8 +218,11 @@ def block_draw(request):
     drafted = build_block(form.draft()) if form.is_valid() else None
     if request.htmx:
         missing = sum(1 for e in form.errors.as_data().values() if any(x.code == "required" for x in e))
-        typed = [(form.fields[name].label, errors[0]) for name, errors in form.errors.items()
-                 if name in form.fields and not any(x.code == "required" for x in form.errors.as_data()[name])]
+        typed = [
+            (form.fields[name].label, errors[0])
+            for name, errors in form.errors.items()
+            if name in form.fields and not any(x.code == "required" for x in form.errors.as_data()[name])
+        ]
         context = {"form": form, "missing": missing, "typed_errors": typed, **_drawing_context(drafted)}
         return render(request, "patterns/block_form.html#block-drawing", context)
     status = 200 if drafted is not None and drafted.ok else 400
@@ -246,13 +266,22 @@ def block_measure(request):
         return render(request, "patterns/tape_form.html", {**context, **_step(tape, steps, wrong)}, status=400)
     if step < len(steps):
         # The step to answer, with what was typed so far and no complaints about what is not asked yet.
-        shown = TapeForm(initial={**_tape_initial(levels, panels), **_typed(request.POST)}, levels=levels,
-                         panels=panels, unit=data["unit"])
+        shown = TapeForm(
+            initial={**_tape_initial(levels, panels), **_typed(request.POST)},
+            levels=levels,
+            panels=panels,
+            unit=data["unit"],
+        )
         return render(request, "patterns/tape_form.html", {**context, "tape": shown, **_step(shown, steps, step)})
     # Every step answered: the block, the same way the block form makes one.
     draft, tape_findings = draft_from_tape(
-        tape.readings(), name=data["name"], size=data["size_label"], garment=data["garment"], seams=tape.seams(),
-        centre_front=data["centre_front"], centre_back=data["centre_back"],
+        tape.readings(),
+        name=data["name"],
+        size=data["size_label"],
+        garment=data["garment"],
+        seams=tape.seams(),
+        centre_front=data["centre_front"],
+        centre_back=data["centre_back"],
         seam_allowance_mm=float(data["seam_allowance"]),
     )
     drafted = build_block(draft)
@@ -266,7 +295,9 @@ def block_measure(request):
     try:
         saved = services.save_block(drafted.block)
     except services.BlockInvalid as exc:
-        return render(request, "patterns/tape_form.html", {**context, "review": True, "problems": exc.errors}, status=400)
+        return render(
+            request, "patterns/tape_form.html", {**context, "review": True, "problems": exc.errors}, status=400
+        )
     messages.success(request, "The block read off the card is saved.")
     return redirect("patterns:pattern_detail", saved.pk)
 
@@ -286,7 +317,9 @@ def _step(tape, steps, index):
     """What the page shows at step ``index``: its fields, and every other answer kept hidden."""
     shown = set(steps[index][1]) if index < len(steps) else set()
     return {
-        "step": index, "step_count": len(steps), "step_title": steps[index][0] if index < len(steps) else "Check and save",
+        "step": index,
+        "step_count": len(steps),
+        "step_title": steps[index][0] if index < len(steps) else "Check and save",
         "shown": [tape[name] for name in steps[index][1]] if index < len(steps) else [],
         "kept": [tape[name] for _, names in steps for name in names if name not in shown],
         "next_step": index + 1,
@@ -308,8 +341,9 @@ def pattern_grade(request, pk):
             graded = grade_run(block, form.table(), form.cleaned_data["sizes"], block.size)
             if "save" in request.POST:
                 try:
-                    run = services.save_graded_run(pattern=pattern, run_name=form.cleaned_data["run_name"].strip(),
-                                                   graded=graded)
+                    run = services.save_graded_run(
+                        pattern=pattern, run_name=form.cleaned_data["run_name"].strip(), graded=graded
+                    )
                 except services.BlockInvalid as exc:
                     problems, status = exc.errors, 400
                 else:
@@ -320,8 +354,17 @@ def pattern_grade(request, pk):
         else:
             status = 400
     else:
-        form = GradeForm(initial={**GradeForm.initial_for(block), "run_name": f"{pattern.name} run",
-                                  "sizes": pattern.size_label}, block=block)
+        form = GradeForm(
+            initial={**GradeForm.initial_for(block), "run_name": f"{pattern.name} run", "sizes": pattern.size_label},
+            block=block,
+        )
     rows = selectors.graded_rows(block, graded, form.unit) if graded else None
-    context = {"pattern": pattern, "base_block": block, "form": form, "graded": graded, "rows": rows, "problems": problems}
+    context = {
+        "pattern": pattern,
+        "base_block": block,
+        "form": form,
+        "graded": graded,
+        "rows": rows,
+        "problems": problems,
+    }
     return render(request, "patterns/grade_form.html", context, status=status)

@@ -38,8 +38,10 @@ def pattern_files(request, pk):
     template language inside ``{% block %}``, hence ``pattern_block``)."""
     pattern = get_object_or_404(BasePattern, pk=pk)
     block = block_for(pattern)
-    rows = [(LEVEL_LABELS.get(lv.name, lv.name), lv.y, [round(p.width(lv.name), 1) for p in block.panels])
-            for lv in block.levels]
+    rows = [
+        (LEVEL_LABELS.get(lv.name, lv.name), lv.y, [round(p.width(lv.name), 1) for p in block.panels])
+        for lv in block.levels
+    ]
     return render(request, "patterns/pattern_files.html", {"pattern": pattern, "pattern_block": block, "rows": rows})
 
 

@@ -4,6 +4,9 @@ import pytest
 from django.contrib.auth.models import Group
 
 from atelier.roles import FITTER, OWNER, WORKROOM
+from fittings.models import Client
+from fittings.services import plans as plan_services
+from patterns.models import BasePattern
 
 DEMO_PASSWORD = "tape-and-pins-42"
 
@@ -29,7 +32,9 @@ def make_user(django_user_model):
 
     def make(role=None, username=None, password="a-long-test-password", **fields):
         user = django_user_model.objects.create_user(
-            username or f"{role or 'nobody'}{next(counter)}", password=password, **fields,
+            username or f"{role or 'nobody'}{next(counter)}",
+            password=password,
+            **fields,
         )
         if role:
             user.groups.add(Group.objects.get_or_create(name=role)[0])
@@ -89,3 +94,25 @@ def bodice_pattern(db):
     from patterns.services import save_block
 
     return save_block(demo.bodice_block())
+
+
+# --- the demo's plan to work on (fittings and security tests) ---------------------------------
+
+
+@pytest.fixture
+def reducing_client(demo_atelier):
+    """The demo client who asks for a strong reduction (two sessions, read in inches)."""
+    return Client.objects.get(reference="WF-0102")
+
+
+@pytest.fixture
+def corset_12(demo_atelier):
+    return BasePattern.objects.get(garment="overbust corset", size_label="12")
+
+
+@pytest.fixture
+def plan(reducing_client, corset_12, fitter_user):
+    session = reducing_client.sessions.order_by("-taken_on").first()
+    return plan_services.start_plan(
+        client=reducing_client, session=session, pattern=corset_12, garment="Daily corset", user=fitter_user
+    )

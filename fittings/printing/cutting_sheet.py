@@ -32,13 +32,27 @@ def cutting_sheet_html(data: DocumentData, paper: str, pattern: AlteredPattern |
     pattern = pattern or altered_pattern(data)
     sheet, grid = sheet_grid(pattern, paper)
     tag = f"{data.client_label.split()[0]} rev. {data.revision_number}" if data.client_label else ""
-    tiles = [{"label": t.label, "row": row_label(t.row), "column": t.column + 1,
-              "neighbours": neighbours(grid, t.row, t.column),
-              "src": svg_data_uri(tile_svg(sheet, grid, t.row, t.column)),
-              "labels": [{"text": label.text, "bold": label.bold, "rule": f"l{i}-{j}", "left": _n(label.left_mm),
-                          "top": _n(label.top_mm), "size": _n(label.size_mm)}
-                         for j, label in enumerate(piece_labels(sheet, grid, t, tag))]}
-             for i, t in enumerate(grid.tiles())]
+    tiles = [
+        {
+            "label": t.label,
+            "row": row_label(t.row),
+            "column": t.column + 1,
+            "neighbours": neighbours(grid, t.row, t.column),
+            "src": svg_data_uri(tile_svg(sheet, grid, t.row, t.column)),
+            "labels": [
+                {
+                    "text": label.text,
+                    "bold": label.bold,
+                    "rule": f"l{i}-{j}",
+                    "left": _n(label.left_mm),
+                    "top": _n(label.top_mm),
+                    "size": _n(label.size_mm),
+                }
+                for j, label in enumerate(piece_labels(sheet, grid, t, tag))
+            ],
+        }
+        for i, t in enumerate(grid.tiles())
+    ]
     map_text = map_svg(sheet, grid)
     map_size = re.search(r'width="([0-9.]+)mm" height="([0-9.]+)mm"', map_text)
     context = {
@@ -48,8 +62,10 @@ def cutting_sheet_html(data: DocumentData, paper: str, pattern: AlteredPattern |
         "orientation": grid.orientation,
         "margin_mm": _n(grid.margin_mm),
         "title": f"Cutting sheet, {data.garment}, revision {data.revision_number}",
-        "squares": [{"name": name, "src": svg_data_uri(square_svg(side, name, divisions)),
-                     "size": _n(side + 2 * SQUARE_PAD_MM)} for _, side, name, divisions in TEST_SQUARES],
+        "squares": [
+            {"name": name, "src": svg_data_uri(square_svg(side, name, divisions)), "size": _n(side + 2 * SQUARE_PAD_MM)}
+            for _, side, name, divisions in TEST_SQUARES
+        ],
         "map": svg_data_uri(map_text),
         "map_width": map_size[1],
         "map_height": map_size[2],

@@ -147,7 +147,7 @@ def altered_pattern(data: DocumentData) -> AlteredPattern:
 
 def _paper_css(paper: str) -> str:
     """The CSS name of the page size (CSS Paged Media: A4, letter)."""
-    return {"a4": "A4", "letter": "letter"}[paper_size(paper).code]
+    return paper_size(paper).css_name
 
 
 def _header(data: DocumentData) -> dict:

@@ -34,10 +34,13 @@ class Document:
         return getattr(importlib.import_module(self.module), self.function)(data, paper, pattern)
 
 
-DOCUMENTS: dict[str, Document] = {d.slug: d for d in (
-    Document("work-order", "Work order", "fittings.printing.work_order", "render_work_order"),
-    Document("cutting-sheet", "Cutting sheet", "fittings.printing.cutting_sheet", "render_cutting_sheet"),
-)}
+DOCUMENTS: dict[str, Document] = {
+    d.slug: d
+    for d in (
+        Document("work-order", "Work order", "fittings.printing.work_order", "render_work_order"),
+        Document("cutting-sheet", "Cutting sheet", "fittings.printing.cutting_sheet", "render_cutting_sheet"),
+    )
+}
 
 
 def draw(data: DocumentData, paper: str, slugs) -> dict[str, bytes]:
@@ -71,8 +74,9 @@ def draw(data: DocumentData, paper: str, slugs) -> dict[str, bytes]:
     return {doc.slug: files[doc.slug] for doc in wanted}
 
 
-def render_documents(data: DocumentData, paper: str, *, work_order: bool = True,
-                     cutting_sheet: bool = True) -> dict[str, bytes]:
+def render_documents(
+    data: DocumentData, paper: str, *, work_order: bool = True, cutting_sheet: bool = True
+) -> dict[str, bytes]:
     """The work order and the cutting sheet of one print, by name (``work_order``, ``cutting_sheet``)."""
     slugs = [slug for slug, wanted in (("work-order", work_order), ("cutting-sheet", cutting_sheet)) if wanted]
     return {slug.replace("-", "_"): pdf for slug, pdf in draw(data, paper, slugs).items()}

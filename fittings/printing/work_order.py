@@ -47,30 +47,33 @@ def measurement_rows(data: DocumentData) -> list[dict]:
     unit = data.unit
     return [
         {"label": m.label, "value": format_length(data.measurements[m.code], unit)}
-        for m in MEASURES if data.measurements.get(m.code) is not None
+        for m in MEASURES
+        if data.measurements.get(m.code) is not None
     ]
 
 
 def _pairs(rows: list) -> list[list]:
-    return [rows[i:i + 2] for i in range(0, len(rows), 2)]
+    return [rows[i : i + 2] for i in range(0, len(rows), 2)]
 
 
 def level_rows(data: DocumentData) -> list[dict]:
     unit = data.unit
     rows = []
     for lv in data.result.levels:
-        rows.append({
-            "label": LEVEL_LABELS.get(lv.level, lv.level),
-            "body": _fmt(lv.body, unit),
-            "ease": _fmt(lv.ease, unit, signed=True),
-            "gap": _fmt(lv.lacing_gap, unit) if lv.lacing_gap else "–",
-            "target": _fmt(lv.target, unit),
-            "pattern": _fmt(lv.pattern, unit),
-            "difference": _fmt(lv.difference, unit, signed=True),
-            "seams": _fmt(lv.allotted + lv.centre_front, unit, signed=True),
-            "pinned": _fmt(lv.pinned, unit, signed=True) if lv.pinned else "–",
-            "residual": _fmt(lv.residual, unit, signed=True),
-        })
+        rows.append(
+            {
+                "label": LEVEL_LABELS.get(lv.level, lv.level),
+                "body": _fmt(lv.body, unit),
+                "ease": _fmt(lv.ease, unit, signed=True),
+                "gap": _fmt(lv.lacing_gap, unit) if lv.lacing_gap else "–",
+                "target": _fmt(lv.target, unit),
+                "pattern": _fmt(lv.pattern, unit),
+                "difference": _fmt(lv.difference, unit, signed=True),
+                "seams": _fmt(lv.allotted + lv.centre_front, unit, signed=True),
+                "pinned": _fmt(lv.pinned, unit, signed=True) if lv.pinned else "–",
+                "residual": _fmt(lv.residual, unit, signed=True),
+            }
+        )
     return rows
 
 
@@ -88,8 +91,13 @@ def shift_rows(data: DocumentData) -> list[dict]:
                     cells.append({"text": "–", "note": ""})
                     continue
                 note = "set by hand" if edge.fixed else ("with pins" if edge.pin_mm else "")
-                cells.append({"text": shift_words(edge.shift_mm, unit), "note": note,
-                              "kind": "out" if edge.shift_mm > 0 else ("in" if edge.shift_mm < 0 else "")})
+                cells.append(
+                    {
+                        "text": shift_words(edge.shift_mm, unit),
+                        "note": note,
+                        "kind": "out" if edge.shift_mm > 0 else ("in" if edge.shift_mm < 0 else ""),
+                    }
+                )
             rows.append({"seam": seam.name, "panel": panel, "cells": cells})
     return rows
 
@@ -99,12 +107,14 @@ def pin_rows(data: DocumentData) -> list[dict]:
     rows = []
     for pin in data.options.pins:
         edges = [s for s in data.result.shifts if s.seam == pin.seam and s.level == pin.level and s.pin_mm]
-        rows.append({
-            "seam": pin.seam,
-            "level": LEVEL_LABELS.get(pin.level, pin.level),
-            "amount": shift_words(pin.amount_mm, unit),
-            "edges": "; ".join(f"{s.panel}: {shift_words(s.pin_mm, unit)}" for s in edges),
-        })
+        rows.append(
+            {
+                "seam": pin.seam,
+                "level": LEVEL_LABELS.get(pin.level, pin.level),
+                "amount": shift_words(pin.amount_mm, unit),
+                "edges": "; ".join(f"{s.panel}: {shift_words(s.pin_mm, unit)}" for s in edges),
+            }
+        )
     return rows
 
 
@@ -115,16 +125,23 @@ def band_rows(data: DocumentData) -> list[str]:
         if format_length(abs(b.change_mm), unit) in ("0.0", "0"):
             continue
         word = "lengthen" if b.change_mm > 0 else "shorten"
-        rows.append(f"{LEVEL_LABELS.get(b.upper, b.upper)} to {LEVEL_LABELS.get(b.lower, b.lower)}: "
-                    f"{word} by {format_with_unit(abs(b.change_mm), unit)}")
+        rows.append(
+            f"{LEVEL_LABELS.get(b.upper, b.upper)} to {LEVEL_LABELS.get(b.lower, b.lower)}: "
+            f"{word} by {format_with_unit(abs(b.change_mm), unit)}"
+        )
     return rows
 
 
 def finding_rows(data: DocumentData, pattern: AlteredPattern) -> list[dict]:
-    rows = [{"severity": SEVERITY_WORDS.get(f.severity, f.severity), "message": in_unit(f.message, data.unit)}
-            for f in data.result.findings if f.severity != CAUTION]
-    rows += [{"severity": SEVERITY_WORDS.get(f.severity, f.severity), "message": in_unit(f.message, data.unit)}
-             for f in pattern.findings]
+    rows = [
+        {"severity": SEVERITY_WORDS.get(f.severity, f.severity), "message": in_unit(f.message, data.unit)}
+        for f in data.result.findings
+        if f.severity != CAUTION
+    ]
+    rows += [
+        {"severity": SEVERITY_WORDS.get(f.severity, f.severity), "message": in_unit(f.message, data.unit)}
+        for f in pattern.findings
+    ]
     return rows
 
 
@@ -132,8 +149,11 @@ def cut_rows(data: DocumentData) -> tuple[tuple[str, ...], list[dict]]:
     layers = CORSET_LAYERS if is_corset(data.block.garment) else BODICE_LAYERS
     rows = []
     for panel in data.block.panels:
-        count = f"{panel.cut_count} on the fold" if panel.on_fold else (
-            f"{panel.cut_count} (a mirrored pair)" if panel.cut_count == 2 else str(panel.cut_count))
+        count = (
+            f"{panel.cut_count} on the fold"
+            if panel.on_fold
+            else (f"{panel.cut_count} (a mirrored pair)" if panel.cut_count == 2 else str(panel.cut_count))
+        )
         rows.append({"panel": panel.name, "count": count, "layers": [count for _ in layers]})
     return layers, rows
 
@@ -142,8 +162,16 @@ def _preview_data_uri(data: DocumentData, pattern: AlteredPattern) -> str:
     """The plan page's picture in vectors, less its amounts: the tables list them, and each label
     on the picture would cost WeasyPrint as much as a table cell."""
     markers = preview_markers(data.block, data.result) + markers_from_findings(pattern.findings)
-    return svg_data_uri(preview_svg(data.block, data.result.alteration(data.block), markers=markers,
-                                    unit=data.unit, pattern=pattern, amounts=False))
+    return svg_data_uri(
+        preview_svg(
+            data.block,
+            data.result.alteration(data.block),
+            markers=markers,
+            unit=data.unit,
+            pattern=pattern,
+            amounts=False,
+        )
+    )
 
 
 def work_order_html(data: DocumentData, paper: str, pattern: AlteredPattern | None = None) -> str:
@@ -161,8 +189,9 @@ def work_order_html(data: DocumentData, paper: str, pattern: AlteredPattern | No
         "levels": level_rows(data),
         "level_names": [LEVEL_LABELS.get(lv, lv) for lv in data.block.level_names],
         "shifts": shift_rows(data),
-        "centre_front": (shift_words(data.result.centre_front_shift_mm, data.unit)
-                         if data.result.centre_front_shift_mm else ""),
+        "centre_front": (
+            shift_words(data.result.centre_front_shift_mm, data.unit) if data.result.centre_front_shift_mm else ""
+        ),
         "bands": band_rows(data),
         "pins": pin_rows(data),
         "findings": finding_rows(data, pattern),

@@ -27,8 +27,8 @@ from datetime import datetime, time
 from pathlib import Path, PurePosixPath
 
 from django.apps import apps
-from django.core import serializers
 from django.contrib.contenttypes.models import ContentType
+from django.core import serializers
 from django.core.management import call_command
 from django.core.serializers.json import DjangoJSONEncoder
 from django.db import connection, router, transaction
@@ -38,10 +38,12 @@ from django.utils import timezone
 
 from atelier.storage import private_storage
 from fittings.models import (
-    Client, MeasurementSession, Plan, PlanRevision,
+    Client,
+    MeasurementSession,
+    Plan,
+    PlanRevision,
 )
 from fittings.services.files import FORMAT_VERSION, SafetyError, finish, new_file
-
 
 BACKUP_FORMAT = "atelier-backup"
 SQLITE_MEMBER = "database.sqlite3"
@@ -107,7 +109,8 @@ def _dumped_models():
     """The models ``dumpdata`` would write, in an order ``loaddata`` can read back."""
     app_list = [(config, None) for config in apps.get_app_configs()]
     return [
-        model for model in serializers.sort_dependencies(app_list, allow_cycles=True)
+        model
+        for model in serializers.sort_dependencies(app_list, allow_cycles=True)
         if not model._meta.proxy and model._meta.managed and router.allow_migrate_model(connection.alias, model)
     ]
 
@@ -153,8 +156,12 @@ def backup(out, portable: bool = False) -> BackupReceipt:
             root = _private_root()
             private = [(PRIVATE_PREFIX + p.relative_to(root).as_posix(), p) for p in _private_files()]
             manifest = {
-                "format": BACKUP_FORMAT, "version": FORMAT_VERSION, "created_at": timezone.now().isoformat(),
-                "engine": connection.vendor, "database": db_member, "migrations": applied_migrations(),
+                "format": BACKUP_FORMAT,
+                "version": FORMAT_VERSION,
+                "created_at": timezone.now().isoformat(),
+                "engine": connection.vendor,
+                "database": db_member,
+                "migrations": applied_migrations(),
                 "files": {db_member: _sha256(db_path), **{name: _sha256(path) for name, path in private}},
             }
             with tarfile.open(tmp, "w:gz") as archive:
@@ -194,8 +201,9 @@ def read_manifest(archive_path) -> dict:
 
 def _check_migrations(manifest) -> None:
     known = MigrationLoader(None, ignore_no_migrations=True).disk_migrations
-    unknown = [f"{app}.{name}" for app, names in manifest["migrations"].items() for name in names
-               if (app, name) not in known]
+    unknown = [
+        f"{app}.{name}" for app, names in manifest["migrations"].items() for name in names if (app, name) not in known
+    ]
     if unknown:
         raise SafetyError(
             "The backup was made by a newer version of the app (it has migrations this one does not know: "
@@ -290,9 +298,9 @@ def restore(archive_path) -> RestoreReceipt:
 def database_summary() -> dict[str, int]:
     """Row counts of the main tables, to say what a restore would replace."""
     return {
-        "clients": Client.all_objects.count(), "sessions": MeasurementSession.objects.count(),
-        "plans": Plan.objects.count(), "revisions": PlanRevision.objects.count(),
+        "clients": Client.all_objects.count(),
+        "sessions": MeasurementSession.objects.count(),
+        "plans": Plan.objects.count(),
+        "revisions": PlanRevision.objects.count(),
         "private files": len(_private_files()),
     }
-
-

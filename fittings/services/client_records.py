@@ -18,13 +18,21 @@ from django.utils import timezone
 from atelier.storage import private_storage
 from fittings import audit
 from fittings.models import (
-    AuditEntry, Client, FabricLayout, Measurement, MeasurementSession, Photo, PinAdjustment, Plan, PlanRevision, PrintFile,
+    AuditEntry,
+    Client,
+    FabricLayout,
+    Measurement,
+    MeasurementSession,
+    Photo,
+    PinAdjustment,
+    Plan,
+    PlanRevision,
+    PrintFile,
     PrintJob,
 )
+from fittings.services.files import FORMAT_VERSION, SafetyError, finish, new_file
 from patterns.core.measures import MEASURE_BY_CODE
 from patterns.core.units import format_length
-from fittings.services.files import FORMAT_VERSION, SafetyError, finish, new_file
-
 
 EXPORT_FORMAT = "atelier-client-export"
 
@@ -53,10 +61,15 @@ class ClientRecords:
 
     def counts(self) -> dict[str, int]:
         return {
-            "sessions": self.sessions.count(), "measurements": self.measurements.count(),
-            "photos": self.photos.count(), "plans": self.plans.count(), "revisions": len(self.revision_ids),
-            "pins": self.pins.count(), "print jobs": self.print_jobs.count(),
-            "audit entries": self.audit_entries.count(), "files": len(self.files),
+            "sessions": self.sessions.count(),
+            "measurements": self.measurements.count(),
+            "photos": self.photos.count(),
+            "plans": self.plans.count(),
+            "revisions": len(self.revision_ids),
+            "pins": self.pins.count(),
+            "print jobs": self.print_jobs.count(),
+            "audit entries": self.audit_entries.count(),
+            "files": len(self.files),
         }
 
 
@@ -70,10 +83,16 @@ def client_records(reference: str) -> ClientRecords:
     files = [name for name in photos.values_list("image", flat=True) if name]
     files += [name for name in PrintFile.objects.filter(job__in=jobs).values_list("file", flat=True) if name]
     return ClientRecords(
-        client=client, sessions=sessions, measurements=Measurement.objects.filter(session__client=client),
-        photos=photos, plans=plans, revision_ids=revision_ids,
-        pins=PinAdjustment.objects.filter(revision_id__in=revision_ids), print_jobs=jobs,
-        audit_entries=AuditEntry.objects.filter(client_reference=client.reference), files=files,
+        client=client,
+        sessions=sessions,
+        measurements=Measurement.objects.filter(session__client=client),
+        photos=photos,
+        plans=plans,
+        revision_ids=revision_ids,
+        pins=PinAdjustment.objects.filter(revision_id__in=revision_ids),
+        print_jobs=jobs,
+        audit_entries=AuditEntry.objects.filter(client_reference=client.reference),
+        files=files,
     )
 
 
@@ -91,10 +110,14 @@ def _admin_log_entries(records: ClientRecords) -> models.QuerySet:
     """The admin's history lines naming this client's rows (they copy the row's text, e.g. the name)."""
     wanted = models.Q(pk__in=[])
     for model, ids in (
-        (Client, [records.client.pk]), (MeasurementSession, records.sessions.values_list("pk", flat=True)),
-        (Measurement, records.measurements.values_list("pk", flat=True)), (Photo, records.photos.values_list("pk", flat=True)),
-        (Plan, records.plans.values_list("pk", flat=True)), (PlanRevision, records.revision_ids),
-        (PinAdjustment, records.pins.values_list("pk", flat=True)), (PrintJob, records.print_jobs.values_list("pk", flat=True)),
+        (Client, [records.client.pk]),
+        (MeasurementSession, records.sessions.values_list("pk", flat=True)),
+        (Measurement, records.measurements.values_list("pk", flat=True)),
+        (Photo, records.photos.values_list("pk", flat=True)),
+        (Plan, records.plans.values_list("pk", flat=True)),
+        (PlanRevision, records.revision_ids),
+        (PinAdjustment, records.pins.values_list("pk", flat=True)),
+        (PrintJob, records.print_jobs.values_list("pk", flat=True)),
     ):
         ids = [str(pk) for pk in ids]
         if ids:
@@ -130,11 +153,20 @@ def erase_client(*, reference: str, actor: str) -> Erasure:
         records.client.delete()
         # The audit trail is append-only too; the same deliberate exception blanks the personal parts.
         models.QuerySet(AuditEntry).filter(client_reference=reference).update(
-            client_reference="", summary=ERASED_SUMMARY, before=None, after=None,
+            client_reference="",
+            summary=ERASED_SUMMARY,
+            before=None,
+            after=None,
         )
         summary = ", ".join(f"{count} {name}" for name, count in counts.items() if name != "audit entries")
-        audit.record(user=None, actor=actor, action=audit.ERASE, object_type="client", object_id=client_pk,
-                     summary=f"A client was erased on request: {summary}.")
+        audit.record(
+            user=None,
+            actor=actor,
+            action=audit.ERASE,
+            object_type="client",
+            object_id=client_pk,
+            summary=f"A client was erased on request: {summary}.",
+        )
     removed, missing = 0, []
     storage = private_storage()
     for name in records.files:
@@ -160,54 +192,105 @@ def client_data(records: ClientRecords, photo_names: dict[int, str]) -> dict:
     """Everything about the client as plain JSON data, lengths in millimetres as recorded."""
     client = records.client
     sessions = []
-    for session in records.sessions.select_related("measured_by").prefetch_related("measurements", "photos").order_by(
-            "taken_on", "id"):
-        sessions.append({
-            "id": session.pk, "taken_on": session.taken_on, "kind": session.kind, "unit": session.unit,
-            "measured_by": _user_name(session.measured_by), "posture_notes": session.posture_notes,
-            "notes": session.notes, "created_at": session.created_at, "updated_at": session.updated_at,
-            "measurements": [
-                {"code": m.code, "name": MEASURE_BY_CODE[m.code].label if m.code in MEASURE_BY_CODE else m.code,
-                 "mm": m.value_mm, "as_read": f"{format_length(m.value_mm, session.unit)} {session.unit}"}
-                for m in session.measurements.all()
-            ],
-            "photos": [{"view": p.view, "taken_at": p.taken_at, "file": photo_names[p.pk]} for p in session.photos.all()],
-        })
+    for session in (
+        records.sessions.select_related("measured_by")
+        .prefetch_related("measurements", "photos")
+        .order_by("taken_on", "id")
+    ):
+        sessions.append(
+            {
+                "id": session.pk,
+                "taken_on": session.taken_on,
+                "kind": session.kind,
+                "unit": session.unit,
+                "measured_by": _user_name(session.measured_by),
+                "posture_notes": session.posture_notes,
+                "notes": session.notes,
+                "created_at": session.created_at,
+                "updated_at": session.updated_at,
+                "measurements": [
+                    {
+                        "code": m.code,
+                        "name": MEASURE_BY_CODE[m.code].label if m.code in MEASURE_BY_CODE else m.code,
+                        "mm": m.value_mm,
+                        "as_read": f"{format_length(m.value_mm, session.unit)} {session.unit}",
+                    }
+                    for m in session.measurements.all()
+                ],
+                "photos": [
+                    {"view": p.view, "taken_at": p.taken_at, "file": photo_names[p.pk]} for p in session.photos.all()
+                ],
+            }
+        )
     plans = []
     revisions = PlanRevision.objects.filter(pk__in=records.revision_ids).select_related("author", "issued_by")
     pins_by_revision: dict[int, list] = {}
     for pin in records.pins.select_related("created_by").order_by("revision_id", "created_at", "id"):
-        pins_by_revision.setdefault(pin.revision_id, []).append({
-            "seam": pin.seam, "level": pin.level, "mm": pin.amount_mm, "note": pin.note,
-            "by": _user_name(pin.created_by), "at": pin.created_at,
-        })
+        pins_by_revision.setdefault(pin.revision_id, []).append(
+            {
+                "seam": pin.seam,
+                "level": pin.level,
+                "mm": pin.amount_mm,
+                "note": pin.note,
+                "by": _user_name(pin.created_by),
+                "at": pin.created_at,
+            }
+        )
     by_plan: dict[int, list] = {}
     for r in revisions.order_by("plan_id", "number"):
-        by_plan.setdefault(r.plan_id, []).append({
-            "number": r.number, "status": r.status, "based_on": r.based_on_id, "author": _user_name(r.author),
-            "created_at": r.created_at, "issued_at": r.issued_at, "issued_by": _user_name(r.issued_by),
-            "inputs": r.inputs, "result": r.result, "pins": pins_by_revision.get(r.pk, []),
-        })
+        by_plan.setdefault(r.plan_id, []).append(
+            {
+                "number": r.number,
+                "status": r.status,
+                "based_on": r.based_on_id,
+                "author": _user_name(r.author),
+                "created_at": r.created_at,
+                "issued_at": r.issued_at,
+                "issued_by": _user_name(r.issued_by),
+                "inputs": r.inputs,
+                "result": r.result,
+                "pins": pins_by_revision.get(r.pk, []),
+            }
+        )
     for plan in records.plans.select_related("base_pattern", "created_by").order_by("created_at", "id"):
-        plans.append({
-            "id": plan.pk, "garment": plan.garment, "session": plan.session_id,
-            "base_pattern": {"name": plan.base_pattern.name, "size": plan.base_pattern.size_label},
-            "created_by": _user_name(plan.created_by), "created_at": plan.created_at,
-            "revisions": by_plan.get(plan.pk, []),
-        })
+        plans.append(
+            {
+                "id": plan.pk,
+                "garment": plan.garment,
+                "session": plan.session_id,
+                "base_pattern": {"name": plan.base_pattern.name, "size": plan.base_pattern.size_label},
+                "created_by": _user_name(plan.created_by),
+                "created_at": plan.created_at,
+                "revisions": by_plan.get(plan.pk, []),
+            }
+        )
     history = [
-        {"at": e.at, "by": e.username, "action": e.action, "object": e.object_type, "object_id": e.object_id,
-         "summary": e.summary}
+        {
+            "at": e.at,
+            "by": e.username,
+            "action": e.action,
+            "object": e.object_type,
+            "object_id": e.object_id,
+            "summary": e.summary,
+        }
         for e in records.audit_entries.order_by("at", "id")
     ]
     return {
-        "format": EXPORT_FORMAT, "version": FORMAT_VERSION, "exported_at": timezone.now(),
+        "format": EXPORT_FORMAT,
+        "version": FORMAT_VERSION,
+        "exported_at": timezone.now(),
         "client": {
-            "reference": client.reference, "name": client.name, "contact": client.contact, "notes": client.notes,
-            "consent_given_on": client.consent_given_on, "created_at": client.created_at,
+            "reference": client.reference,
+            "name": client.name,
+            "contact": client.contact,
+            "notes": client.notes,
+            "consent_given_on": client.consent_given_on,
+            "created_at": client.created_at,
             "removed_from_lists": client.is_deleted,
         },
-        "sessions": sessions, "plans": plans, "history": history,
+        "sessions": sessions,
+        "plans": plans,
+        "history": history,
     }
 
 
@@ -236,8 +319,12 @@ def export_client(*, reference: str, out, actor: str) -> ExportReceipt:
     tmp = new_file(out)
     try:
         with zipfile.ZipFile(tmp, "w", compression=zipfile.ZIP_DEFLATED) as archive:
-            archive.writestr("README.txt", EXPORT_README.format(
-                atelier=settings.ATELIER_NAME, reference=records.client.reference, date=timezone.localdate()))
+            archive.writestr(
+                "README.txt",
+                EXPORT_README.format(
+                    atelier=settings.ATELIER_NAME, reference=records.client.reference, date=timezone.localdate()
+                ),
+            )
             archive.writestr("client.json", json.dumps(data, indent=2, ensure_ascii=False, cls=DjangoJSONEncoder))
             for photo in photos:
                 with storage.open(photo.image.name, "rb") as f:
@@ -246,9 +333,21 @@ def export_client(*, reference: str, out, actor: str) -> ExportReceipt:
     except BaseException:
         tmp.unlink(missing_ok=True)
         raise
-    counts = {"sessions": len(data["sessions"]), "plans": len(data["plans"]), "photos": len(photos),
-              "revisions": sum(len(p["revisions"]) for p in data["plans"])}
+    counts = {
+        "sessions": len(data["sessions"]),
+        "plans": len(data["plans"]),
+        "photos": len(photos),
+        "revisions": sum(len(p["revisions"]) for p in data["plans"]),
+    }
     with transaction.atomic():
-        audit.record(user=None, actor=actor, action=audit.EXPORT, object_type="client", object_id=records.client.pk,
-                     client=records.client, summary=f"Records exported for the client ({out.name}).", after=counts)
+        audit.record(
+            user=None,
+            actor=actor,
+            action=audit.EXPORT,
+            object_type="client",
+            object_id=records.client.pk,
+            client=records.client,
+            summary=f"Records exported for the client ({out.name}).",
+            after=counts,
+        )
     return ExportReceipt(path=out, counts=counts)

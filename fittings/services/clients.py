@@ -26,11 +26,22 @@ def today():
 @transaction.atomic
 def create_client(*, user, reference, name, contact="", notes="", consent_given_on=None) -> Client:
     client = Client.objects.create(
-        reference=reference, name=name, contact=contact, notes=notes, consent_given_on=consent_given_on,
+        reference=reference,
+        name=name,
+        contact=contact,
+        notes=notes,
+        consent_given_on=consent_given_on,
         created_by=user,
     )
-    audit.record(user=user, action=audit.CREATE, object_type="client", object_id=client.pk, client=client,
-                 summary=f"Client {client.reference} added.", after=audit.client_snapshot(client))
+    audit.record(
+        user=user,
+        action=audit.CREATE,
+        object_type="client",
+        object_id=client.pk,
+        client=client,
+        summary=f"Client {client.reference} added.",
+        after=audit.client_snapshot(client),
+    )
     return client
 
 
@@ -41,9 +52,16 @@ def update_client(*, client: Client, user, reference, name, contact="", notes=""
     client.reference, client.name, client.contact = reference, name, contact
     client.notes, client.consent_given_on = notes, consent_given_on
     client.save()
-    audit.record(user=user, action=audit.CHANGE, object_type="client", object_id=client.pk, client=client,
-                 summary=f"Details of client {client.reference} changed.", before=before,
-                 after=audit.client_snapshot(client))
+    audit.record(
+        user=user,
+        action=audit.CHANGE,
+        object_type="client",
+        object_id=client.pk,
+        client=client,
+        summary=f"Details of client {client.reference} changed.",
+        before=before,
+        after=audit.client_snapshot(client),
+    )
     return client
 
 
@@ -52,8 +70,14 @@ def soft_delete_client(*, client: Client, user) -> None:
     client.is_deleted = True
     client.deleted_at = timezone.now()
     client.save(update_fields=["is_deleted", "deleted_at", "updated_at"])
-    audit.record(user=user, action=audit.DELETE, object_type="client", object_id=client.pk, client=client,
-                 summary=f"Client {client.reference} removed from the lists (records kept).")
+    audit.record(
+        user=user,
+        action=audit.DELETE,
+        object_type="client",
+        object_id=client.pk,
+        client=client,
+        summary=f"Client {client.reference} removed from the lists (records kept).",
+    )
 
 
 @transaction.atomic
@@ -61,8 +85,14 @@ def restore_client(*, client: Client, user) -> None:
     client.is_deleted = False
     client.deleted_at = None
     client.save(update_fields=["is_deleted", "deleted_at", "updated_at"])
-    audit.record(user=user, action=audit.CHANGE, object_type="client", object_id=client.pk, client=client,
-                 summary=f"Client {client.reference} restored to the lists.")
+    audit.record(
+        user=user,
+        action=audit.CHANGE,
+        object_type="client",
+        object_id=client.pk,
+        client=client,
+        summary=f"Client {client.reference} restored to the lists.",
+    )
 
 
 def clean_photo(upload) -> ContentFile:
@@ -86,19 +116,30 @@ def _save_photos(session, form_data):
 
 def _session_fields(form_data):
     return {
-        "taken_on": form_data["taken_on"], "kind": form_data["kind"], "unit": form_data["unit"],
-        "posture_notes": form_data.get("posture_notes", ""), "notes": form_data.get("notes", ""),
+        "taken_on": form_data["taken_on"],
+        "kind": form_data["kind"],
+        "unit": form_data["unit"],
+        "posture_notes": form_data.get("posture_notes", ""),
+        "notes": form_data.get("notes", ""),
     }
 
 
 @transaction.atomic
 def record_session(*, client: Client, user, form_data: dict, values: dict) -> MeasurementSession:
     session = MeasurementSession.objects.create(client=client, measured_by=user, **_session_fields(form_data))
-    Measurement.objects.bulk_create([Measurement(session=session, code=code, value_mm=mm) for code, mm in values.items()])
+    Measurement.objects.bulk_create(
+        [Measurement(session=session, code=code, value_mm=mm) for code, mm in values.items()]
+    )
     _save_photos(session, form_data)
-    audit.record(user=user, action=audit.CREATE, object_type="session", object_id=session.pk, client=client,
-                 summary=f"Measurements of {session.taken_on} recorded ({len(values)} readings).",
-                 after=audit.session_snapshot(session))
+    audit.record(
+        user=user,
+        action=audit.CREATE,
+        object_type="session",
+        object_id=session.pk,
+        client=client,
+        summary=f"Measurements of {session.taken_on} recorded ({len(values)} readings).",
+        after=audit.session_snapshot(session),
+    )
     return session
 
 
@@ -112,7 +153,9 @@ def update_session(*, session: MeasurementSession, user, form_data: dict, values
     stored = MeasurementSession.objects.select_for_update().filter(pk=session.pk, version=expected_version).first()
     before = audit.session_snapshot(stored) if stored is not None else None
     updated = MeasurementSession.objects.filter(pk=session.pk, version=expected_version).update(
-        version=F("version") + 1, updated_at=timezone.now(), **_session_fields(form_data),
+        version=F("version") + 1,
+        updated_at=timezone.now(),
+        **_session_fields(form_data),
     )
     if not updated:
         raise ConcurrentEdit(
@@ -125,10 +168,16 @@ def update_session(*, session: MeasurementSession, user, form_data: dict, values
     for code, mm in values.items():
         Measurement.objects.update_or_create(session=session, code=code, defaults={"value_mm": mm})
     _save_photos(session, form_data)
-    audit.record(user=user, action=audit.CHANGE, object_type="session", object_id=session.pk,
-                 client_reference=session.client.reference,
-                 summary=f"Measurements of {session.taken_on} changed (version {expected_version} to {session.version}).",
-                 before=before, after=audit.session_snapshot(session))
+    audit.record(
+        user=user,
+        action=audit.CHANGE,
+        object_type="session",
+        object_id=session.pk,
+        client_reference=session.client.reference,
+        summary=f"Measurements of {session.taken_on} changed (version {expected_version} to {session.version}).",
+        before=before,
+        after=audit.session_snapshot(session),
+    )
     return session
 
 
@@ -136,9 +185,14 @@ def update_session(*, session: MeasurementSession, user, form_data: dict, values
 def delete_photo(*, photo: Photo, user) -> None:
     """Remove one photo of a session (the file too); the audit trail says which and when."""
     session = photo.session
-    audit.record(user=user, action=audit.DELETE, object_type="photo", object_id=photo.pk,
-                 client_reference=session.client.reference,
-                 summary=f"{photo.get_view_display()} photo of the readings of {session.taken_on} deleted.")
+    audit.record(
+        user=user,
+        action=audit.DELETE,
+        object_type="photo",
+        object_id=photo.pk,
+        client_reference=session.client.reference,
+        summary=f"{photo.get_view_display()} photo of the readings of {session.taken_on} deleted.",
+    )
     name = photo.image.name
     storage = photo.image.storage
     photo.delete()
@@ -150,12 +204,17 @@ def replace_photo(*, photo: Photo, upload, user) -> Photo:
     """A new picture for the same view of the same session, in place of ``photo``."""
     session = photo.session
     new = Photo.objects.create(session=session, view=photo.view, image=clean_photo(upload))
-    audit.record(user=user, action=audit.CHANGE, object_type="photo", object_id=new.pk,
-                 client_reference=session.client.reference,
-                 summary=f"{photo.get_view_display()} photo of the readings of {session.taken_on} replaced.",
-                 before={"photo": photo.pk}, after={"photo": new.pk})
+    audit.record(
+        user=user,
+        action=audit.CHANGE,
+        object_type="photo",
+        object_id=new.pk,
+        client_reference=session.client.reference,
+        summary=f"{photo.get_view_display()} photo of the readings of {session.taken_on} replaced.",
+        before={"photo": photo.pk},
+        after={"photo": new.pk},
+    )
     name, storage = photo.image.name, photo.image.storage
     photo.delete()
     transaction.on_commit(lambda: storage.delete(name))
     return new
-

@@ -122,21 +122,30 @@ def add_demo_plans(loaded: DemoAtelier) -> None:
     corset = {p.size_label: p for p in loaded.patterns if p.garment == "overbust corset"}
 
     hester = clients["WF-0101"]
-    plan = plan_services.start_plan(client=hester, session=hester.sessions.get(), pattern=corset["10"],
-                                    garment="Summer wedding corset", user=fitter)
+    plan = plan_services.start_plan(
+        client=hester, session=hester.sessions.get(), pattern=corset["10"], garment="Summer wedding corset", user=fitter
+    )
     plan_services.issue_revision(revision=plan.revisions.get(), user=fitter)
 
     odalys = clients["WF-0102"]
     first = odalys.sessions.order_by("taken_on").first()
     options = PlanOptions(
         ease={"bust": -25.0, "underbust": -40.0, "waist": -150.0, "abdomen": -50.0, "hip": 0.0},
-        lacing_gap_mm=50.0, step_mm=DEFAULT_STEP_MM["in"], unit="in", policy="sides_first",
+        lacing_gap_mm=50.0,
+        step_mm=DEFAULT_STEP_MM["in"],
+        unit="in",
+        policy="sides_first",
         overrides=(Override("Side seam", "waist", "Side front", -12.7),),
     )
-    plan = plan_services.start_plan(client=odalys, session=first, pattern=corset["12"], garment="Daily-wear corset",
-                                    user=fitter, options=options)
+    plan = plan_services.start_plan(
+        client=odalys, session=first, pattern=corset["12"], garment="Daily-wear corset", user=fitter, options=options
+    )
     tried = plan_services.issue_revision(revision=plan.revisions.get(), user=fitter)
-    plan_services.record_pins(revision=tried, pins=[("Back princess seam", "waist", -6.35)],
-                              note="Toile gaped at the back waist; pinned out 1/4 in.", user=fitter)
+    plan_services.record_pins(
+        revision=tried,
+        pins=[("Back princess seam", "waist", -6.35)],
+        note="Toile gaped at the back waist; pinned out 1/4 in.",
+        user=fitter,
+    )
     plan.refresh_from_db()
     plan_services.revision_with_pins(revision=tried, user=fitter, expected_version=plan.version)

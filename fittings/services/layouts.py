@@ -20,8 +20,16 @@ from fittings import selectors
 from fittings.models import FabricLayout, LayoutStatus
 from fittings.previews import altered_for
 from patterns.core.layout import (
-    DEFAULT_BUDGET_S, MAX_BUDGET_S, LayerRequest, LayoutError, Piece, Progress, check_layers, cut_pieces,
-    shelf_layers, solve_layers_apart,
+    DEFAULT_BUDGET_S,
+    MAX_BUDGET_S,
+    LayerRequest,
+    LayoutError,
+    Piece,
+    Progress,
+    check_layers,
+    cut_pieces,
+    shelf_layers,
+    solve_layers_apart,
 )
 from patterns.core.units import quantize_mm
 
@@ -40,8 +48,9 @@ def revision_pieces(revision) -> tuple[Piece, ...]:
     return cut_pieces(altered_for(block, result).altered)
 
 
-def request_layout(*, revision, user, layers: list[LayerRequest], gap_mm: float,
-                   budget_s: int = DEFAULT_BUDGET_S) -> FabricLayout:
+def request_layout(
+    *, revision, user, layers: list[LayerRequest], gap_mm: float, budget_s: int = DEFAULT_BUDGET_S
+) -> FabricLayout:
     """Store a layout request with its shelf layout and queue the solver; LayoutError says what is wrong
     (lengths in the plan's unit)."""
     if not isinstance(budget_s, int) or not 1 <= budget_s <= MAX_BUDGET_S:
@@ -51,7 +60,10 @@ def request_layout(*, revision, user, layers: list[LayerRequest], gap_mm: float,
     shelf = shelf_layers(pieces, layers, gap_mm)
     with transaction.atomic():
         job = FabricLayout.objects.create(
-            revision=revision, created_by=user, budget_s=budget_s, gap_mm=quantize_mm(gap_mm),
+            revision=revision,
+            created_by=user,
+            budget_s=budget_s,
+            gap_mm=quantize_mm(gap_mm),
             layers=[{"layer": r.layer, "width_mm": float(r.width_mm)} for r in layers],
             shelf=[{"layer": r.layer, "layout": r.shelf.to_dict()} for r in shelf],
         )
@@ -74,16 +86,17 @@ def _queue(job_id: int) -> None:
 
 
 def _fail(job_id: int, message: str) -> None:
-    FabricLayout.objects.filter(pk=job_id).update(status=LayoutStatus.FAILED, error=message,
-                                                  finished_at=timezone.now())
+    FabricLayout.objects.filter(pk=job_id).update(status=LayoutStatus.FAILED, error=message, finished_at=timezone.now())
 
 
 def settle_abandoned(job: FabricLayout) -> FabricLayout:
     """Fail a layout its worker left running, so the page stops waiting (the shelf layout stays)."""
     if job.status == LayoutStatus.RUNNING and job.started_at and timezone.now() - job.started_at > WORKER_GONE_AFTER:
         FabricLayout.objects.filter(pk=job.pk, status=LayoutStatus.RUNNING).update(
-            status=LayoutStatus.FAILED, finished_at=timezone.now(),
-            error="The worker stopped while searching (the app was probably restarted). Ask again.")
+            status=LayoutStatus.FAILED,
+            finished_at=timezone.now(),
+            error="The worker stopped while searching (the app was probably restarted). Ask again.",
+        )
         job.refresh_from_db()
     return job
 
@@ -91,7 +104,8 @@ def settle_abandoned(job: FabricLayout) -> FabricLayout:
 def run_layout_job(job_id: int, *, workers: int | None = None) -> str:
     """Run the solver for one request and store its layouts; the row says how it went."""
     claimed = FabricLayout.objects.filter(pk=job_id, status=LayoutStatus.QUEUED).update(
-        status=LayoutStatus.RUNNING, started_at=timezone.now(), progress=0)
+        status=LayoutStatus.RUNNING, started_at=timezone.now(), progress=0
+    )
     if not claimed:
         return "skipped"
     job = FabricLayout.objects.select_related("revision").get(pk=job_id)
@@ -102,18 +116,22 @@ def run_layout_job(job_id: int, *, workers: int | None = None) -> str:
         if now - last[0] < PROGRESS_EVERY_S and p.fraction < 1:
             return
         last[0] = now
-        FabricLayout.objects.filter(pk=job_id).update(progress=min(99, int(100 * p.fraction)),
-                                                      best_length_mm=p.best_length_mm)
+        FabricLayout.objects.filter(pk=job_id).update(
+            progress=min(99, int(100 * p.fraction)), best_length_mm=p.best_length_mm
+        )
 
     try:
         pieces = revision_pieces(job.revision)
         layers = [LayerRequest(d["layer"], float(d["width_mm"])) for d in job.layers]
         started = time.perf_counter()
-        results = solve_layers_apart(pieces, layers, float(job.gap_mm), budget_s=job.budget_s, progress=progress,
-                                     workers=workers)
+        results = solve_layers_apart(
+            pieces, layers, float(job.gap_mm), budget_s=job.budget_s, progress=progress, workers=workers
+        )
         logger.info("Fabric layout %s: %d layers in %.1f s", job_id, len(results), time.perf_counter() - started)
         FabricLayout.objects.filter(pk=job_id).update(
-            status=LayoutStatus.DONE, progress=100, finished_at=timezone.now(),
+            status=LayoutStatus.DONE,
+            progress=100,
+            finished_at=timezone.now(),
             best_length_mm=min(r.best.length_mm for r in results),
             solved=[{"layer": r.layer, "layout": r.solver.to_dict()} for r in results],
         )
@@ -122,5 +140,3 @@ def run_layout_job(job_id: int, *, workers: int | None = None) -> str:
         _fail(job_id, f"The search stopped ({type(exc).__name__}: {exc})"[:400] + "; the rows layout is shown.")
         raise
     return "done"
-
-

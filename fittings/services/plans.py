@@ -29,15 +29,26 @@ def _append(plan: Plan, block: Block, values: dict, options: PlanOptions, user, 
     meta = {"client": plan.client.reference, "garment": plan.garment}
     number = (plan.revisions.order_by("-number").values_list("number", flat=True).first() or 0) + 1
     return PlanRevision.objects.create(
-        plan=plan, number=number, based_on=based_on,
+        plan=plan,
+        number=number,
+        based_on=based_on,
         inputs=fitting_to_dict(values, block, options, meta=meta),
-        result=result_to_json(result), author=user,
+        result=result_to_json(result),
+        author=user,
     )
 
 
 @transaction.atomic
-def start_plan(*, client, session, pattern, garment: str, user, options: PlanOptions | None = None,
-               based_on: PlanRevision | None = None) -> Plan:
+def start_plan(
+    *,
+    client,
+    session,
+    pattern,
+    garment: str,
+    user,
+    options: PlanOptions | None = None,
+    based_on: PlanRevision | None = None,
+) -> Plan:
     """A new plan with its first draft revision.
 
     Starting from an earlier revision carries its options into the new
@@ -52,16 +63,29 @@ def start_plan(*, client, session, pattern, garment: str, user, options: PlanOpt
     block = block_for_unit(block, options.unit)
     plan = Plan.objects.create(client=client, session=session, base_pattern=pattern, garment=garment, created_by=user)
     first = _append(plan, block, session_values(session), options, user)
-    audit.record(user=user, action=audit.CREATE, object_type="plan", object_id=plan.pk, client=client,
-                 summary=f"Plan “{garment}” started on {pattern.name}, size {pattern.size_label}, with revision 1.",
-                 after={"garment": garment, "base_pattern": pattern.pk, "session": session.pk, "revision": first.pk,
-                        "based_on": based_on.pk if based_on else None})
+    audit.record(
+        user=user,
+        action=audit.CREATE,
+        object_type="plan",
+        object_id=plan.pk,
+        client=client,
+        summary=f"Plan “{garment}” started on {pattern.name}, size {pattern.size_label}, with revision 1.",
+        after={
+            "garment": garment,
+            "base_pattern": pattern.pk,
+            "session": session.pk,
+            "revision": first.pk,
+            "based_on": based_on.pk if based_on else None,
+        },
+    )
     return plan
 
 
 def _has_edge(block: Block, override) -> bool:
     return any(
-        s.name == override.seam and override.panel in (s.front_panel, s.back_panel) and override.level in block.level_names
+        s.name == override.seam
+        and override.panel in (s.front_panel, s.back_panel)
+        and override.level in block.level_names
         for s in block.seams
     )
 
@@ -84,12 +108,16 @@ def save_revision(*, plan: Plan, options: PlanOptions, user, expected_version: i
 
 def _audit_revision(revision: PlanRevision, user, expected_version: int, how: str) -> None:
     plan = revision.plan
-    audit.record(user=user, action=audit.CREATE, object_type="revision", object_id=revision.pk,
-                 client_reference=plan.client.reference,
-                 summary=f"Plan {plan.pk} revision {revision.number} {how}.",
-                 before={"plan_version": expected_version},
-                 after={"plan_version": expected_version + 1, "revision": revision.number,
-                        "based_on": revision.based_on_id})
+    audit.record(
+        user=user,
+        action=audit.CREATE,
+        object_type="revision",
+        object_id=revision.pk,
+        client_reference=plan.client.reference,
+        summary=f"Plan {plan.pk} revision {revision.number} {how}.",
+        before={"plan_version": expected_version},
+        after={"plan_version": expected_version + 1, "revision": revision.number, "based_on": revision.based_on_id},
+    )
 
 
 @transaction.atomic
@@ -102,10 +130,16 @@ def issue_revision(*, revision: PlanRevision, user) -> PlanRevision:
     revision.issued_at = timezone.now()
     revision.issued_by = user
     revision.save()
-    audit.record(user=user, action=audit.ISSUE, object_type="revision", object_id=revision.pk,
-                 client_reference=revision.plan.client.reference,
-                 summary=f"Plan {revision.plan_id} revision {revision.number} issued to the workroom.",
-                 before={"status": RevisionStatus.DRAFT}, after={"status": RevisionStatus.ISSUED})
+    audit.record(
+        user=user,
+        action=audit.ISSUE,
+        object_type="revision",
+        object_id=revision.pk,
+        client_reference=revision.plan.client.reference,
+        summary=f"Plan {revision.plan_id} revision {revision.number} issued to the workroom.",
+        before={"status": RevisionStatus.DRAFT},
+        after={"status": RevisionStatus.ISSUED},
+    )
     return revision
 
 
@@ -126,15 +160,21 @@ def revision_with_pins(*, revision: PlanRevision, user, expected_version: int) -
 @transaction.atomic
 def record_pins(*, revision: PlanRevision, pins, note: str, user) -> list[PinAdjustment]:
     """Keep what was pinned at a toile fitting of ``revision``: (seam, level, amount in mm) each."""
-    made = PinAdjustment.objects.bulk_create([
-        PinAdjustment(revision=revision, seam=seam, level=level, amount_mm=amount, note=note, created_by=user)
-        for seam, level, amount in pins
-    ])
-    audit.record(user=user, action=audit.CREATE, object_type="pins", object_id=revision.pk,
-                 client_reference=revision.plan.client.reference,
-                 summary=f"{len(made)} pin adjustment(s) recorded on plan {revision.plan_id} revision {revision.number}.",
-                 after={"pins": [{"seam": p.seam, "level": p.level, "amount_mm": str(p.amount_mm)} for p in made],
-                        "note": note})
+    made = PinAdjustment.objects.bulk_create(
+        [
+            PinAdjustment(revision=revision, seam=seam, level=level, amount_mm=amount, note=note, created_by=user)
+            for seam, level, amount in pins
+        ]
+    )
+    audit.record(
+        user=user,
+        action=audit.CREATE,
+        object_type="pins",
+        object_id=revision.pk,
+        client_reference=revision.plan.client.reference,
+        summary=f"{len(made)} pin adjustment(s) recorded on plan {revision.plan_id} revision {revision.number}.",
+        after={"pins": [{"seam": p.seam, "level": p.level, "amount_mm": str(p.amount_mm)} for p in made], "note": note},
+    )
     return made
 
 
@@ -165,20 +205,40 @@ def import_fitting(*, client, text: str, user, garment: str = "") -> Plan:
         raise ImportRefused(exc.field, exc.message) from exc
     # Every version of the block with this name and size, the one offered for new plans first: a file
     # made on an older version is taken against that version, as its plans are.
-    candidates = list(BasePattern.objects.filter(name=block.name, size_label=block.size).order_by("-is_active", "-version"))
+    candidates = list(
+        BasePattern.objects.filter(name=block.name, size_label=block.size).order_by("-is_active", "-version")
+    )
     if not candidates:
         raise ImportRefused("pattern", f"This atelier has no base pattern “{block.name}”, size {block.size}.")
-    pattern = next((c for c in candidates
-                    if (stored := block_for(c)) == block or block_for_unit(stored, options.unit) == block), None)
+    pattern = next(
+        (c for c in candidates if (stored := block_for(c)) == block or block_for_unit(stored, options.unit) == block),
+        None,
+    )
     if pattern is None:
-        raise ImportRefused("pattern", f"The file's “{block.name}”, size {block.size}, differs from the atelier's; "
-                                       "import refused so that no plan is made against the wrong shapes.")
-    session = MeasurementSession.objects.create(client=client, measured_by=user, taken_on=tz.localdate(), kind="check",
-                                                unit=options.unit, notes="Imported from a fitting file.")
+        raise ImportRefused(
+            "pattern",
+            f"The file's “{block.name}”, size {block.size}, differs from the atelier's; "
+            "import refused so that no plan is made against the wrong shapes.",
+        )
+    session = MeasurementSession.objects.create(
+        client=client,
+        measured_by=user,
+        taken_on=tz.localdate(),
+        kind="check",
+        unit=options.unit,
+        notes="Imported from a fitting file.",
+    )
     Measurement.objects.bulk_create([Measurement(session=session, code=c, value_mm=v) for c, v in values.items()])
-    plan = start_plan(client=client, session=session, pattern=pattern, garment=garment or "Imported plan",
-                      user=user, options=options)
-    audit.record(user=user, action=audit.IMPORT, object_type="plan", object_id=plan.pk, client=client,
-                 summary=f"Fitting file imported as session {session.pk} and plan {plan.pk}.",
-                 after={"session": session.pk, "plan": plan.pk, "measurements_mm": {c: str(v) for c, v in values.items()}})
+    plan = start_plan(
+        client=client, session=session, pattern=pattern, garment=garment or "Imported plan", user=user, options=options
+    )
+    audit.record(
+        user=user,
+        action=audit.IMPORT,
+        object_type="plan",
+        object_id=plan.pk,
+        client=client,
+        summary=f"Fitting file imported as session {session.pk} and plan {plan.pk}.",
+        after={"session": session.pk, "plan": plan.pk, "measurements_mm": {c: str(v) for c, v in values.items()}},
+    )
     return plan

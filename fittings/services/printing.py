@@ -17,10 +17,11 @@ from django.db import transaction
 from django.utils import timezone
 
 from atelier.roles import EDITORS, role_of
-from fittings.models import PrintFile, PrintJob, PrintKind, PrintPaper, PrintStatus, RevisionStatus
+from fittings.models import PrintFile, PrintJob, PrintKind, PrintStatus, RevisionStatus
 from fittings.printing.data import DocumentError, check_printable, document_data
 from fittings.printing.registry import DOCUMENTS, draw
 from fittings.services.plans import issue_revision
+from patterns.core.tiling import PAPER_CHOICES, PAPER_SIZES
 
 logger = logging.getLogger(__name__)
 
@@ -38,8 +39,8 @@ class PrintRefused(Exception):
 
 def start_print(*, revision, user, paper: str, kind: str = PrintKind.BOTH, site_url: str = "") -> PrintJob:
     """Issue the revision if it is still a draft, record a print job and queue its drawing."""
-    if paper not in PrintPaper.values:
-        raise PrintRefused(f"Choose a paper size: {' or '.join(PrintPaper.labels)}.")
+    if paper not in PAPER_SIZES:
+        raise PrintRefused(f"Choose a paper size: {' or '.join(label for _, label in PAPER_CHOICES)}.")
     if kind not in PrintKind.values:
         raise PrintRefused("Choose what to print: the work order, the cutting sheet or both.")
     with transaction.atomic():
@@ -52,7 +53,11 @@ def start_print(*, revision, user, paper: str, kind: str = PrintKind.BOTH, site_
                 raise PrintRefused(str(exc)) from None
             revision = issue_revision(revision=revision, user=user)
         job = PrintJob.objects.create(
-            revision=revision, paper=paper, kind=kind, site_url=site_url[:200], created_by=user,
+            revision=revision,
+            paper=paper,
+            kind=kind,
+            site_url=site_url[:200],
+            created_by=user,
         )
     # Queued after the commit above, so a worker in another process sees the job.
     from fittings.tasks import render_print_job  # the task calls back into this module
@@ -70,7 +75,10 @@ def start_print(*, revision, user, paper: str, kind: str = PrintKind.BOTH, site_
 
 def _fail(job_id: int, message: str) -> None:
     PrintJob.objects.filter(pk=job_id).update(
-        status=PrintStatus.FAILED, step="", error=message, finished_at=timezone.now(),
+        status=PrintStatus.FAILED,
+        step="",
+        error=message,
+        finished_at=timezone.now(),
     )
 
 
@@ -78,7 +86,9 @@ def settle_abandoned(job: PrintJob) -> PrintJob:
     """Fail a job its worker left half-drawn, so the page stops waiting and offers to print again."""
     if job.status == PrintStatus.RUNNING and job.started_at and timezone.now() - job.started_at > WORKER_GONE_AFTER:
         PrintJob.objects.filter(pk=job.pk, status=PrintStatus.RUNNING, started_at=job.started_at).update(
-            status=PrintStatus.FAILED, step="", finished_at=timezone.now(),
+            status=PrintStatus.FAILED,
+            step="",
+            finished_at=timezone.now(),
             error="The worker stopped while drawing (the app was probably restarted). Print again.",
         )
         job.refresh_from_db()
@@ -115,13 +125,17 @@ def _step(job_id: int, text: str) -> None:
 def run_print_job(job_id: int) -> str:
     """Draw the documents of one job and keep them privately; the job row says how it went."""
     claimed = PrintJob.objects.filter(pk=job_id, status=PrintStatus.QUEUED).update(
-        status=PrintStatus.RUNNING, started_at=timezone.now(), step="Reading the revision",
+        status=PrintStatus.RUNNING,
+        started_at=timezone.now(),
+        step="Reading the revision",
     )
     if not claimed:
         # Unknown, or already taken by another worker: nothing to do.
         return "skipped"
     job = PrintJob.objects.select_related(
-        "revision__plan__client", "revision__plan__session__measured_by", "revision__issued_by",
+        "revision__plan__client",
+        "revision__plan__session__measured_by",
+        "revision__issued_by",
         "revision__based_on",
     ).get(pk=job_id)
     try:

@@ -22,7 +22,6 @@ from patterns.core.policies import EVEN, distribute
 from patterns.core.rounding import EPS, round_to_step, steps_of
 
 
-
 @dataclass(frozen=True)
 class Body:
     """The client's measurements the engine uses, in mm, keyed by level or measurement code."""
@@ -217,21 +216,34 @@ def allot(block: Block, body: Body, options: PlanOptions) -> Allotment:
         for level in block.level_names:
             for panel in (seam.front_panel, seam.back_panel):
                 key = (seam.name, level, panel)
-                if key not in shifts and key not in pins and not (level in seam.alterable_at):
+                if key not in shifts and key not in pins and level not in seam.alterable_at:
                     continue
                 spread = shifts.get(key, 0.0)
                 pinned = pins.get(key, 0.0)
-                edge_shifts.append(EdgeShift(
-                    seam=seam.name, level=level, panel=panel, shift_mm=_clean(spread + pinned),
-                    fixed=key in fixed, pin_mm=_clean(pinned),
-                ))
+                edge_shifts.append(
+                    EdgeShift(
+                        seam=seam.name,
+                        level=level,
+                        panel=panel,
+                        shift_mm=_clean(spread + pinned),
+                        fixed=key in fixed,
+                        pin_mm=_clean(pinned),
+                    )
+                )
 
     findings += shape_findings(block, edge_shifts, cf_shift)
     bands = _bands(block, body, step) if options.apply_lengths else ()
     return Allotment(
-        block=block.name, size=block.size, unit=options.unit, step_mm=step, policy=options.policy,
-        levels=tuple(level_results), shifts=tuple(edge_shifts), centre_front_shift_mm=_clean(cf_shift),
-        bands=bands, findings=tuple(findings),
+        block=block.name,
+        size=block.size,
+        unit=options.unit,
+        step_mm=step,
+        policy=options.policy,
+        levels=tuple(level_results),
+        shifts=tuple(edge_shifts),
+        centre_front_shift_mm=_clean(cf_shift),
+        bands=bands,
+        findings=tuple(findings),
         inputs={"body": body, "options": options},
     )
 
@@ -255,9 +267,18 @@ def _allot_level(block, body, options, level, gap, cf_shift, fixed, panels):
     out: dict[tuple[str, str, str], float] = dict(fixed_here)
 
     if girth is None or girth <= 0 or not math.isfinite(girth):
-        result = LevelResult(level=level, body=girth, ease=ease, lacing_gap=gap, target=None, pattern=pattern,
-                             difference=None, centre_front=2 * cf_shift, allotted=2 * sum(fixed_here.values()),
-                             residual=None)
+        result = LevelResult(
+            level=level,
+            body=girth,
+            ease=ease,
+            lacing_gap=gap,
+            target=None,
+            pattern=pattern,
+            difference=None,
+            centre_front=2 * cf_shift,
+            allotted=2 * sum(fixed_here.values()),
+            residual=None,
+        )
         return result, out, findings
 
     target = girth + ease - gap
@@ -288,16 +309,40 @@ def _allot_level(block, body, options, level, gap, cf_shift, fixed, panels):
         if overshoots(fixed_change, need, step):
             findings.append(overshoot_finding(where, level, fixed_change, need, options.unit))
         exact = distribute(level, to_spread / 2, free, options.policy, panels) if free and abs(to_spread) > EPS else {}
-        work.append((side, part_target, part_pattern, cf_change, part_edges, free, part_difference, fixed_change,
-                     to_spread, where, exact))
+        work.append(
+            (
+                side,
+                part_target,
+                part_pattern,
+                cf_change,
+                part_edges,
+                free,
+                part_difference,
+                fixed_change,
+                to_spread,
+                where,
+                exact,
+            )
+        )
 
     # The level is rounded once, then shared between front and back, so the level's residual is at
     # most one step however the girth is split.
     steps = _part_steps([sum(w[10].values()) if w[10] else None for w in work], step)
 
     parts = {}
-    for (side, part_target, part_pattern, cf_change, part_edges, free, part_difference, fixed_change,
-         to_spread, where, exact), part_steps in zip(work, steps):
+    for (
+        side,
+        part_target,
+        part_pattern,
+        cf_change,
+        part_edges,
+        free,
+        part_difference,
+        fixed_change,
+        to_spread,
+        where,
+        exact,
+    ), part_steps in zip(work, steps):
         spread: dict[tuple[str, str, str], float] = {}
         if exact:
             caps = {(seam.name, level, p): seam.cap_mm for seam, p in free}
@@ -307,42 +352,65 @@ def _allot_level(block, body, options, level, gap, cf_shift, fixed, panels):
             for key in keys:
                 seam_name, _, panel = key
                 if abs(spread[key]) > caps[key] + EPS:
-                    findings.append(Finding(
-                        "edge_over_cap", WARNING,
-                        f"{label}: the {panel} edge of the {seam_name} moves {spread[key]:+.1f} mm, beyond its "
-                        f"{caps[key]:.0f} mm limit. Another base size may suit this client better.",
-                        level=level, seam=seam_name, panel=panel,
-                    ))
+                    findings.append(
+                        Finding(
+                            "edge_over_cap",
+                            WARNING,
+                            f"{label}: the {panel} edge of the {seam_name} moves {spread[key]:+.1f} mm, beyond its "
+                            f"{caps[key]:.0f} mm limit. Another base size may suit this client better.",
+                            level=level,
+                            seam=seam_name,
+                            panel=panel,
+                        )
+                    )
         elif not free and abs(to_spread) >= step and not part_edges:
-            findings.append(Finding(
-                "level_locked", ERROR,
-                f"{where}: the pattern is {part_difference - cf_change:+.1f} mm off the target here, but no seam "
-                f"may be altered at this level. Allow a seam here or choose another base size.",
-                level=level,
-            ))
+            findings.append(
+                Finding(
+                    "level_locked",
+                    ERROR,
+                    f"{where}: the pattern is {part_difference - cf_change:+.1f} mm off the target here, but no seam "
+                    f"may be altered at this level. Allow a seam here or choose another base size.",
+                    level=level,
+                )
+            )
         out.update(spread)
         allotted = fixed_change + 2 * sum(spread.values())
         residual = part_difference - cf_change - allotted
         parts[side] = PartResult(
-            target=part_target, pattern=part_pattern, difference=part_difference,
-            allotted=allotted + cf_change, residual=residual,
+            target=part_target,
+            pattern=part_pattern,
+            difference=part_difference,
+            allotted=allotted + cf_change,
+            residual=residual,
         )
     level_residual = sum(p.residual for p in parts.values())
     if abs(level_residual) > step + EPS and edges:
-        findings.append(Finding(
-            "residual_over_step", WARNING,
-            f"{label}: {level_residual:+.1f} mm of girth is left over after the seams, more than one step "
-            f"({step:g} mm).",
-            level=level,
-        ))
+        findings.append(
+            Finding(
+                "residual_over_step",
+                WARNING,
+                f"{label}: {level_residual:+.1f} mm of girth is left over after the seams, more than one step "
+                f"({step:g} mm).",
+                level=level,
+            )
+        )
 
     if FRONT in parts:
         front, back = parts[FRONT], parts[BACK]
     seam_change = sum(p.allotted for p in parts.values()) - 2 * cf_shift
     result = LevelResult(
-        level=level, body=girth, ease=ease, lacing_gap=gap, target=target, pattern=pattern,
-        difference=difference, centre_front=_clean(2 * cf_shift), allotted=_clean(seam_change),
-        residual=_clean(level_residual), front=front, back=back,
+        level=level,
+        body=girth,
+        ease=ease,
+        lacing_gap=gap,
+        target=target,
+        pattern=pattern,
+        difference=difference,
+        centre_front=_clean(2 * cf_shift),
+        allotted=_clean(seam_change),
+        residual=_clean(level_residual),
+        front=front,
+        back=back,
     )
     return result, out, findings
 
@@ -359,8 +427,10 @@ def _part_steps(halves: list[float | None], step: float) -> list[int]:
     front_half, back_half = [h for h in halves if h is not None]
     total = steps_of(front_half + back_half, step)
     front = front_half / step
-    choices = sorted({math.floor(front), math.ceil(front)}, key=lambda f: (
-        max(abs(front - f), abs(back_half / step - (total - f))), f != steps_of(front_half, step)))
+    choices = sorted(
+        {math.floor(front), math.ceil(front)},
+        key=lambda f: (max(abs(front - f), abs(back_half / step - (total - f))), f != steps_of(front_half, step)),
+    )
     return [choices[0], total - choices[0]]
 
 
@@ -394,5 +464,3 @@ def _bands(block, body, step) -> tuple[BandChange, ...]:
             change = round_to_step([body_mm - pattern_mm], step)[0]
             bands.append(BandChange(upper.name, lower.name, pattern_mm, body_mm, _clean(change)))
     return tuple(bands)
-
-

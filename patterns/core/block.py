@@ -202,8 +202,10 @@ def block_errors(block: Block) -> list[str]:
             errors.append(f"Panel {p.name} must be front or back of the side seam.")
         for edge, top, bottom in ((LEFT, p.top_left, p.bottom_left), (RIGHT, p.top_right, p.bottom_right)):
             if bottom.y <= top.y:
-                errors.append(f"Panel {p.name}: the bottom of its {edge} stitch line lies above its top "
-                              "(y grows downwards from the top of the block).")
+                errors.append(
+                    f"Panel {p.name}: the bottom of its {edge} stitch line lies above its top "
+                    "(y grows downwards from the top of the block)."
+                )
         if p.curves is not None:
             errors += curve_errors(p, {lv.name: lv.y for lv in block.levels})
     if len(block.seams) != max(len(block.panels) - 1, 0):

@@ -66,7 +66,8 @@ class BoningRules:
         if not (math.isfinite(self.clearance_mm) and self.clearance_mm >= 0):
             raise ValueError("The clearance from the bound edges must be 0 mm or more.")
         if self.busk_clearance_mm is not None and not (
-                math.isfinite(self.busk_clearance_mm) and self.busk_clearance_mm >= 0):
+            math.isfinite(self.busk_clearance_mm) and self.busk_clearance_mm >= 0
+        ):
             raise ValueError("The busk's clearance must be 0 mm or more.")
         if not (math.isfinite(self.cut_step_mm) and self.cut_step_mm > 0):
             raise ValueError("The step bones are cut to must be more than 0 mm.")
@@ -244,10 +245,15 @@ def boning_list(block: Block, altered: tuple[PanelOutline, ...], rules: BoningRu
             channels.append(_seam_channel(block, seam, outlines, rules))
     for c in channels:
         if c.cut_mm <= 0:
-            findings.append(Finding(
-                "channel_too_short", WARNING,
-                f"The channel {c.name} ({c.channel_mm:.0f} mm) is no longer than the clearance from the bound "
-                f"edges ({rules.clearance_mm:.0f} mm): it can carry no bone.", panel=c.panel))
+            findings.append(
+                Finding(
+                    "channel_too_short",
+                    WARNING,
+                    f"The channel {c.name} ({c.channel_mm:.0f} mm) is no longer than the clearance from the bound "
+                    f"edges ({rules.clearance_mm:.0f} mm): it can carry no bone.",
+                    panel=c.panel,
+                )
+            )
 
     busk = None
     if block.centre_front == CF_BUSK:
@@ -255,21 +261,40 @@ def boning_list(block: Block, altered: tuple[PanelOutline, ...], rules: BoningRu
         if busk.length_mm is None:
             shortest = min(rules.busk_stock_mm, default=None)
             stock = f"the shortest in stock is {shortest:.0f} mm" if shortest else "no busk lengths are in stock"
-            findings.append(Finding(
-                "no_busk_fits", WARNING,
-                f"No stocked busk fits a centre front of {busk.centre_front_mm:.0f} mm "
-                f"(room {busk.room_mm:.0f} mm after the clearance; {stock}). Order one to length.",
-                panel=block.panels[0].name))
+            findings.append(
+                Finding(
+                    "no_busk_fits",
+                    WARNING,
+                    f"No stocked busk fits a centre front of {busk.centre_front_mm:.0f} mm "
+                    f"(room {busk.room_mm:.0f} mm after the clearance; {stock}). Order one to length.",
+                    panel=block.panels[0].name,
+                )
+            )
         elif busk.short_by_mm is not None and busk.short_by_mm > BUSK_SHORT_BY_MM:
-            findings.append(Finding(
-                "busk_short", WARNING,
-                f"The longest stocked busk that fits ({busk.length_mm:.0f} mm) is {busk.short_by_mm:.0f} mm "
-                f"shorter than the room on the centre front ({busk.room_mm:.0f} mm); consider a busk to length.",
-                panel=block.panels[0].name))
+            findings.append(
+                Finding(
+                    "busk_short",
+                    WARNING,
+                    f"The longest stocked busk that fits ({busk.length_mm:.0f} mm) is {busk.short_by_mm:.0f} mm "
+                    f"shorter than the room on the centre front ({busk.room_mm:.0f} mm); consider a busk to length.",
+                    panel=block.panels[0].name,
+                )
+            )
     return BoningList(tuple(channels), busk, rules, tuple(findings))
 
 
 __all__ = [
-    "BONE_CLEARANCE_MM", "DEFAULT_BUSK_STOCK_MM", "BoningList", "BoningRules", "Busk", "Channel", "MARKED", "SEAM",
-    "boning_list", "choose_busk", "floor_to", "fraction_line", "offset_line",
+    "BONE_CLEARANCE_MM",
+    "DEFAULT_BUSK_STOCK_MM",
+    "BoningList",
+    "BoningRules",
+    "Busk",
+    "Channel",
+    "MARKED",
+    "SEAM",
+    "boning_list",
+    "choose_busk",
+    "floor_to",
+    "fraction_line",
+    "offset_line",
 ]

@@ -23,7 +23,19 @@ import math
 from dataclasses import dataclass, field
 
 from patterns.core.block import (
-    BACK, CB_LACED, CB_SEAMED, CF_BUSK, CF_FOLD, FRONT, SEAM_KINDS, Block, Level, Panel, Point, Seam, block_errors,
+    BACK,
+    CB_LACED,
+    CB_SEAMED,
+    CF_BUSK,
+    CF_FOLD,
+    FRONT,
+    SEAM_KINDS,
+    Block,
+    Level,
+    Panel,
+    Point,
+    Seam,
+    block_errors,
 )
 from patterns.core.findings import ERROR, WARNING, Finding
 from patterns.core.measures import LEVEL_CODES, LEVEL_LABELS
@@ -108,11 +120,15 @@ def _input_findings(draft: BlockDraft) -> list[Finding]:
     ordered = sorted(draft.levels, key=lambda lv: LEVEL_CODES.index(lv.name) if lv.name in LEVEL_CODES else 99)
     for upper, lower in zip(ordered, ordered[1:]):
         if lower.y <= upper.y:
-            found.append(Finding(
-                "levels_out_of_order", ERROR,
-                f"The {_label(lower.name)} ({_mm(lower.y)} from the top) must lie below the {_label(upper.name)} "
-                f"({_mm(upper.y)}).", level=lower.name,
-            ))
+            found.append(
+                Finding(
+                    "levels_out_of_order",
+                    ERROR,
+                    f"The {_label(lower.name)} ({_mm(lower.y)} from the top) must lie below the {_label(upper.name)} "
+                    f"({_mm(upper.y)}).",
+                    level=lower.name,
+                )
+            )
     if not draft.panels:
         found.append(Finding("no_panels", ERROR, "A block needs at least one panel."))
     seen = set()
@@ -120,54 +136,90 @@ def _input_findings(draft: BlockDraft) -> list[Finding]:
         if not p.name.strip():
             found.append(Finding("panel_unnamed", ERROR, f"Panel {i + 1} needs a name."))
         elif p.name in seen:
-            found.append(Finding("panel_name_twice", ERROR, f"Two panels are called {p.name!r}; name each one apart.",
-                                 panel=p.name))
+            found.append(
+                Finding(
+                    "panel_name_twice", ERROR, f"Two panels are called {p.name!r}; name each one apart.", panel=p.name
+                )
+            )
         seen.add(p.name)
         if p.side not in (FRONT, BACK):
-            found.append(Finding("panel_side", ERROR, f"Say whether {p.name} is in front of or behind the side seam.",
-                                 panel=p.name))
+            found.append(
+                Finding(
+                    "panel_side", ERROR, f"Say whether {p.name} is in front of or behind the side seam.", panel=p.name
+                )
+            )
         if p.on_fold and i != 0:
-            found.append(Finding("fold_not_centre_front", ERROR,
-                                 f"Only the centre-front panel can be cut on the fold, not {p.name}.", panel=p.name))
+            found.append(
+                Finding(
+                    "fold_not_centre_front",
+                    ERROR,
+                    f"Only the centre-front panel can be cut on the fold, not {p.name}.",
+                    panel=p.name,
+                )
+            )
         if p.cut_count < 1:
             found.append(Finding("cut_count", ERROR, f"{p.name} must be cut at least once.", panel=p.name))
         for name in names:
             w = p.widths.get(name)
             if w is None:
-                found.append(Finding("width_missing", ERROR, f"Give the width of {p.name} at the {_label(name)}.",
-                                     panel=p.name, level=name))
+                found.append(
+                    Finding(
+                        "width_missing",
+                        ERROR,
+                        f"Give the width of {p.name} at the {_label(name)}.",
+                        panel=p.name,
+                        level=name,
+                    )
+                )
             elif not math.isfinite(w) or w <= 0:
-                found.append(Finding(
-                    "width_not_positive", ERROR,
-                    f"{p.name} is {_mm(w)} wide at the {_label(name)}: a width between stitch lines must be more "
-                    "than nothing.", panel=p.name, level=name,
-                ))
+                found.append(
+                    Finding(
+                        "width_not_positive",
+                        ERROR,
+                        f"{p.name} is {_mm(w)} wide at the {_label(name)}: a width between stitch lines must be more "
+                        "than nothing.",
+                        panel=p.name,
+                        level=name,
+                    )
+                )
         for edge, (top, bottom) in (("left", (p.top[0], p.bottom[0])), ("right", (p.top[1], p.bottom[1]))):
             if bottom <= top:
-                found.append(Finding(
-                    "edges_cross", ERROR,
-                    f"The top and bottom edges of {p.name} cross at its {edge} stitch line: the top is "
-                    f"{_mm(top)} and the bottom {_mm(bottom)} from the top of the block.", panel=p.name,
-                ))
+                found.append(
+                    Finding(
+                        "edges_cross",
+                        ERROR,
+                        f"The top and bottom edges of {p.name} cross at its {edge} stitch line: the top is "
+                        f"{_mm(top)} and the bottom {_mm(bottom)} from the top of the block.",
+                        panel=p.name,
+                    )
+                )
                 continue
             for level in draft.levels:
                 if not top <= level.y <= bottom:
                     where = "above the top" if level.y < top else "below the bottom"
-                    found.append(Finding(
-                        "level_outside_panel", WARNING,
-                        f"The {_label(level.name)} ({_mm(level.y)} from the top) lies {where} of {p.name} at its "
-                        f"{edge} stitch line ({_mm(top)} to {_mm(bottom)}). The width typed there is used for the "
-                        "girth, but that stitch line gets no notch at this level: check the heights.",
-                        panel=p.name, level=level.name,
-                    ))
+                    found.append(
+                        Finding(
+                            "level_outside_panel",
+                            WARNING,
+                            f"The {_label(level.name)} ({_mm(level.y)} from the top) lies {where} of {p.name} at its "
+                            f"{edge} stitch line ({_mm(top)} to {_mm(bottom)}). The width typed there is used for the "
+                            "girth, but that stitch line gets no notch at this level: check the heights.",
+                            panel=p.name,
+                            level=level.name,
+                        )
+                    )
     for level in draft.levels:
         crossed = [p for p in draft.panels if min(p.top) <= level.y <= max(p.bottom)]
         if draft.panels and not crossed:
-            found.append(Finding(
-                "level_outside_block", ERROR,
-                f"The {_label(level.name)} ({_mm(level.y)} from the top) crosses none of the panels: it lies outside "
-                "the block. Check its height, or leave the level out.", level=level.name,
-            ))
+            found.append(
+                Finding(
+                    "level_outside_block",
+                    ERROR,
+                    f"The {_label(level.name)} ({_mm(level.y)} from the top) crosses none of the panels: it lies outside "
+                    "the block. Check its height, or leave the level out.",
+                    level=level.name,
+                )
+            )
     if len(draft.seams) != max(len(draft.panels) - 1, 0):
         found.append(Finding("seam_count", ERROR, "There must be one seam between each pair of neighbouring panels."))
     seam_names = set()
@@ -183,11 +235,15 @@ def _input_findings(draft: BlockDraft) -> list[Finding]:
             found.append(Finding("seam_cap", ERROR, f"The most {s.name} may move cannot be negative.", seam=s.name))
         unknown = s.moves_at - set(names)
         if unknown:
-            found.append(Finding(
-                "seam_level_unknown", ERROR,
-                f"{s.name} may move at the {', '.join(sorted(_label(u) for u in unknown))}, which the block does not "
-                "have.", seam=s.name,
-            ))
+            found.append(
+                Finding(
+                    "seam_level_unknown",
+                    ERROR,
+                    f"{s.name} may move at the {', '.join(sorted(_label(u) for u in unknown))}, which the block does not "
+                    "have.",
+                    seam=s.name,
+                )
+            )
     if draft.seam_allowance_mm < 0 or not math.isfinite(draft.seam_allowance_mm):
         found.append(Finding("seam_allowance", ERROR, "The seam allowance cannot be negative."))
     if draft.centre_front not in (CF_BUSK, CF_FOLD):
@@ -195,9 +251,14 @@ def _input_findings(draft: BlockDraft) -> list[Finding]:
     if draft.centre_back not in (CB_LACED, CB_SEAMED):
         found.append(Finding("centre_back", ERROR, "Choose how the centre back is closed."))
     if draft.panels and draft.centre_front == CF_FOLD and not draft.panels[0].on_fold:
-        found.append(Finding("fold_mismatch", WARNING,
-                             f"The centre front is cut on the fold, but {draft.panels[0].name} is not marked "
-                             "“on the fold”.", panel=draft.panels[0].name))
+        found.append(
+            Finding(
+                "fold_mismatch",
+                WARNING,
+                f"The centre front is cut on the fold, but {draft.panels[0].name} is not marked “on the fold”.",
+                panel=draft.panels[0].name,
+            )
+        )
     return found
 
 
@@ -239,13 +300,17 @@ def _overlaps(draft: BlockDraft, placed, levels) -> list[Finding]:
         for level in levels:
             over = right[level.name] - left[level.name]
             if over > 0.05:
-                found.append(Finding(
-                    "panels_overlap", WARNING,
-                    f"At the {_label(level.name)} the centre-back stitch line of {a.name} lies {_mm(over)} beyond the "
-                    f"centre-front stitch line of {b.name}: the two cross in the drawing. If that is how the block is "
-                    "drafted, trace the panels apart; otherwise check the positions.",
-                    panel=b.name, level=level.name,
-                ))
+                found.append(
+                    Finding(
+                        "panels_overlap",
+                        WARNING,
+                        f"At the {_label(level.name)} the centre-back stitch line of {a.name} lies {_mm(over)} beyond the "
+                        f"centre-front stitch line of {b.name}: the two cross in the drawing. If that is how the block is "
+                        "drafted, trace the panels apart; otherwise check the positions.",
+                        panel=b.name,
+                        level=level.name,
+                    )
+                )
     return found
 
 
@@ -267,28 +332,55 @@ def build_block(draft: BlockDraft) -> Drafted:
     for p, (left, right) in zip(draft.panels, placed):
         mid = levels[len(levels) // 2].name
         grain = None if p.grainline_mm is None else left[mid] + p.grainline_mm
-        panels.append(Panel(
-            name=p.name.strip(), side=p.side, left=left, right=right,
-            top_left=Point(left[first], p.top[0]), top_right=Point(right[first], p.top[1]),
-            bottom_left=Point(left[last], p.bottom[0]), bottom_right=Point(right[last], p.bottom[1]),
-            cut_count=p.cut_count, on_fold=p.on_fold, top_bound=p.top_bound, bottom_bound=p.bottom_bound,
-            grainline_x=grain,
-        ))
+        panels.append(
+            Panel(
+                name=p.name.strip(),
+                side=p.side,
+                left=left,
+                right=right,
+                top_left=Point(left[first], p.top[0]),
+                top_right=Point(right[first], p.top[1]),
+                bottom_left=Point(left[last], p.bottom[0]),
+                bottom_right=Point(right[last], p.bottom[1]),
+                cut_count=p.cut_count,
+                on_fold=p.on_fold,
+                top_bound=p.top_bound,
+                bottom_bound=p.bottom_bound,
+                grainline_x=grain,
+            )
+        )
         if p.grainline_mm is not None and not 0 < p.grainline_mm < p.widths[mid]:
-            findings.append(Finding(
-                "grainline_outside", ERROR,
-                f"The grainline of {p.name} ({_mm(p.grainline_mm)} from its centre-front stitch line) lies outside "
-                f"the panel, which is {_mm(p.widths[mid])} wide at the {_label(mid)}.", panel=p.name,
-            ))
+            findings.append(
+                Finding(
+                    "grainline_outside",
+                    ERROR,
+                    f"The grainline of {p.name} ({_mm(p.grainline_mm)} from its centre-front stitch line) lies outside "
+                    f"the panel, which is {_mm(p.widths[mid])} wide at the {_label(mid)}.",
+                    panel=p.name,
+                )
+            )
     seams = tuple(
-        Seam(name=s.name.strip(), kind=s.kind, front_panel=a.name, back_panel=b.name,
-             alterable_at=frozenset(s.moves_at), cap_mm=s.cap_mm)
+        Seam(
+            name=s.name.strip(),
+            kind=s.kind,
+            front_panel=a.name,
+            back_panel=b.name,
+            alterable_at=frozenset(s.moves_at),
+            cap_mm=s.cap_mm,
+        )
         for s, a, b in zip(draft.seams, panels, panels[1:])
     )
     block = Block(
-        name=draft.name.strip(), size=draft.size.strip(), garment=draft.garment, levels=levels,
-        panels=tuple(panels), seams=seams, centre_front=draft.centre_front, centre_back=draft.centre_back,
-        seam_allowance_mm=draft.seam_allowance_mm, size_order=draft.size_order,
+        name=draft.name.strip(),
+        size=draft.size.strip(),
+        garment=draft.garment,
+        levels=levels,
+        panels=tuple(panels),
+        seams=seams,
+        centre_front=draft.centre_front,
+        centre_back=draft.centre_back,
+        seam_allowance_mm=draft.seam_allowance_mm,
+        size_order=draft.size_order,
     )
     findings += [Finding("block", ERROR, text) for text in block_errors(block)]
     if not any(f.severity == ERROR for f in findings):
@@ -315,20 +407,32 @@ def draft_from_block(block: Block) -> BlockDraft:
     mid = levels[len(levels) // 2].name if levels else None
     panels = tuple(
         PanelDraft(
-            name=p.name, side=p.side,
+            name=p.name,
+            side=p.side,
             widths={lv.name: p.width(lv.name) for lv in levels},
             lefts={lv.name: p.left[lv.name] for lv in levels},
-            top=(p.top_left.y, p.top_right.y), bottom=(p.bottom_left.y, p.bottom_right.y),
-            cut_count=p.cut_count, on_fold=p.on_fold, top_bound=p.top_bound, bottom_bound=p.bottom_bound,
+            top=(p.top_left.y, p.top_right.y),
+            bottom=(p.bottom_left.y, p.bottom_right.y),
+            cut_count=p.cut_count,
+            on_fold=p.on_fold,
+            top_bound=p.top_bound,
+            bottom_bound=p.bottom_bound,
             grainline_mm=None if p.grainline_x is None or mid is None else p.grainline_x - p.left[mid],
         )
         for p in block.panels
     )
     seams = tuple(SeamDraft(s.name, s.kind, frozenset(s.alterable_at), s.cap_mm) for s in block.seams)
     return BlockDraft(
-        name=block.name, size=block.size, garment=block.garment, levels=levels, panels=panels, seams=seams,
-        centre_front=block.centre_front, centre_back=block.centre_back,
-        seam_allowance_mm=block.seam_allowance_mm, size_order=block.size_order,
+        name=block.name,
+        size=block.size,
+        garment=block.garment,
+        levels=levels,
+        panels=panels,
+        seams=seams,
+        centre_front=block.centre_front,
+        centre_back=block.centre_back,
+        seam_allowance_mm=block.seam_allowance_mm,
+        size_order=block.size_order,
     )
 
 
@@ -369,9 +473,18 @@ def line_names(panels, seams) -> list[str]:
     return ["Centre front", *[s.name for s in seams], "Centre back"]
 
 
-def draft_from_tape(readings: TapeReadings, *, name: str, size: str, garment: str, seams: tuple[SeamDraft, ...],
-                    centre_front: str = CF_BUSK, centre_back: str = CB_LACED, seam_allowance_mm: float = 15.0,
-                    size_order: int = 0) -> tuple[BlockDraft, tuple[Finding, ...]]:
+def draft_from_tape(
+    readings: TapeReadings,
+    *,
+    name: str,
+    size: str,
+    garment: str,
+    seams: tuple[SeamDraft, ...],
+    centre_front: str = CF_BUSK,
+    centre_back: str = CB_LACED,
+    seam_allowance_mm: float = 15.0,
+    size_order: int = 0,
+) -> tuple[BlockDraft, tuple[Finding, ...]]:
     """The block draft the tape readings describe, and what looks wrong in them.
 
     The levels are straight across the block, so the distance between two
@@ -397,38 +510,59 @@ def draft_from_tape(readings: TapeReadings, *, name: str, size: str, garment: st
         ys.append(ys[-1] + cf[k])
     for k in range(1, levels_n):
         if cf[k] <= 0:
-            found.append(Finding(
-                "levels_together", ERROR,
-                f"The centre front measures nothing between the {_label(readings.levels[k - 1])} and the "
-                f"{_label(readings.levels[k])}.", level=readings.levels[k],
-            ))
+            found.append(
+                Finding(
+                    "levels_together",
+                    ERROR,
+                    f"The centre front measures nothing between the {_label(readings.levels[k - 1])} and the "
+                    f"{_label(readings.levels[k])}.",
+                    level=readings.levels[k],
+                )
+            )
     names = line_names(readings.panels, seams)
     for j, line in enumerate(readings.down[1:], start=1):
         for k in range(1, levels_n):
             if line[k] < cf[k] - TAPE_TOLERANCE_MM:
-                found.append(Finding(
-                    "line_shorter_than_centre_front", WARNING,
-                    f"Along the {names[j]} the {_label(readings.levels[k - 1])} to {_label(readings.levels[k])} "
-                    f"measures {_mm(line[k])}, less than the {_mm(cf[k])} along the centre front. The levels run "
-                    "straight across, so no line can be shorter between them: measure both again.",
-                    level=readings.levels[k],
-                ))
+                found.append(
+                    Finding(
+                        "line_shorter_than_centre_front",
+                        WARNING,
+                        f"Along the {names[j]} the {_label(readings.levels[k - 1])} to {_label(readings.levels[k])} "
+                        f"measures {_mm(line[k])}, less than the {_mm(cf[k])} along the centre front. The levels run "
+                        "straight across, so no line can be shorter between them: measure both again.",
+                        level=readings.levels[k],
+                    )
+                )
     tops = [first_y - d[0] for d in readings.down]
     bottoms = [ys[-1] + d[-1] for d in readings.down]
     levels = tuple(Level(lv, y) for lv, y in zip(readings.levels, ys))
     panels = tuple(
         PanelDraft(
-            name=p.name, side=p.side,
-            widths={lv: readings.widths.get(lv, ())[i] if i < len(readings.widths.get(lv, ())) else float("nan")
-                    for lv in readings.levels},
-            top=(tops[i], tops[i + 1]), bottom=(bottoms[i], bottoms[i + 1]),
-            cut_count=p.cut_count, on_fold=p.on_fold, top_bound=p.top_bound, bottom_bound=p.bottom_bound,
+            name=p.name,
+            side=p.side,
+            widths={
+                lv: readings.widths.get(lv, ())[i] if i < len(readings.widths.get(lv, ())) else float("nan")
+                for lv in readings.levels
+            },
+            top=(tops[i], tops[i + 1]),
+            bottom=(bottoms[i], bottoms[i + 1]),
+            cut_count=p.cut_count,
+            on_fold=p.on_fold,
+            top_bound=p.top_bound,
+            bottom_bound=p.bottom_bound,
         )
         for i, p in enumerate(readings.panels)
     )
     draft = BlockDraft(
-        name=name, size=size, garment=garment, levels=levels, panels=panels, seams=seams,
-        centre_front=centre_front, centre_back=centre_back, seam_allowance_mm=seam_allowance_mm,
+        name=name,
+        size=size,
+        garment=garment,
+        levels=levels,
+        panels=panels,
+        seams=seams,
+        centre_front=centre_front,
+        centre_back=centre_back,
+        seam_allowance_mm=seam_allowance_mm,
         size_order=size_order,
     )
     return draft, tuple(found)

@@ -16,6 +16,7 @@ from xml.etree import ElementTree as ET
 import ezdxf
 import numpy as np
 from ezdxf import units as dxf_units
+from ezdxf.entities import LWPolyline
 
 from patterns.core.outline import PanelOutline, Pt
 
@@ -30,8 +31,13 @@ TEST_SQUARE_TEXT = {"cm": "10 cm test square", "in": "4 in test square"}
 
 LAYER_CUT, LAYER_STITCH, LAYER_NOTCH, LAYER_GRAIN, LAYER_LABEL = "CUT", "STITCH", "NOTCH", "GRAIN", "LABEL"
 # AutoCAD colour index: 7 black/white, 5 blue, 1 red, 3 green, 8 grey.
-_LAYERS = ((LAYER_CUT, 7, "CONTINUOUS"), (LAYER_STITCH, 5, "DASHED"), (LAYER_NOTCH, 1, "CONTINUOUS"),
-           (LAYER_GRAIN, 3, "CONTINUOUS"), (LAYER_LABEL, 8, "CONTINUOUS"))
+_LAYERS = (
+    (LAYER_CUT, 7, "CONTINUOUS"),
+    (LAYER_STITCH, 5, "DASHED"),
+    (LAYER_NOTCH, 1, "CONTINUOUS"),
+    (LAYER_GRAIN, 3, "CONTINUOUS"),
+    (LAYER_LABEL, 8, "CONTINUOUS"),
+)
 INSUNITS_MILLIMETRES = 4
 # Level lines (when asked for) sit on a layer per level, LEVEL_BUST, LEVEL_WAIST ..., and reach this
 # far into the seam allowance on each side, so a drawing read back finds its levels (patterns.core.importing).
@@ -67,8 +73,13 @@ class SheetLayout:
     test_square_mm: float
 
 
-def sheet_layout(outlines: tuple[PanelOutline, ...], *, gap_mm: float = PANEL_GAP_MM,
-                 margin_mm: float = SHEET_MARGIN_MM, test_square: str | None = None) -> SheetLayout:
+def sheet_layout(
+    outlines: tuple[PanelOutline, ...],
+    *,
+    gap_mm: float = PANEL_GAP_MM,
+    margin_mm: float = SHEET_MARGIN_MM,
+    test_square: str | None = None,
+) -> SheetLayout:
     """Panels side by side in order, cutting lines ``gap_mm`` apart, tops level."""
     top = min(y for o in outlines for _, y in o.cutting)
     bottom = max(y for o in outlines for _, y in o.cutting)
@@ -156,55 +167,117 @@ def _grain_path(grain: tuple[Pt, Pt]) -> str:
     return "".join(parts)
 
 
-def svg_text(outlines: tuple[PanelOutline, ...], *, title: str = "", gap_mm: float = PANEL_GAP_MM,
-             margin_mm: float = SHEET_MARGIN_MM, test_square: str | None = "cm", level_lines: bool = False) -> str:
+def svg_text(
+    outlines: tuple[PanelOutline, ...],
+    *,
+    title: str = "",
+    gap_mm: float = PANEL_GAP_MM,
+    margin_mm: float = SHEET_MARGIN_MM,
+    test_square: str | None = "cm",
+    level_lines: bool = False,
+) -> str:
     """The panels at true size: width and height in mm, one user unit = 1 mm.
 
     With ``level_lines`` each panel also carries its levels as thin grey lines of class
     ``level level-<name>``, which the importer reads back as the block's levels."""
     layout = sheet_layout(outlines, gap_mm=gap_mm, margin_mm=margin_mm, test_square=test_square)
-    root = ET.Element("svg", {
-        "xmlns": "http://www.w3.org/2000/svg",
-        "width": f"{_n(layout.width_mm)}mm",
-        "height": f"{_n(layout.height_mm)}mm",
-        "viewBox": f"0 0 {_n(layout.width_mm)} {_n(layout.height_mm)}",
-    })
+    root = ET.Element(
+        "svg",
+        {
+            "xmlns": "http://www.w3.org/2000/svg",
+            "width": f"{_n(layout.width_mm)}mm",
+            "height": f"{_n(layout.height_mm)}mm",
+            "viewBox": f"0 0 {_n(layout.width_mm)} {_n(layout.height_mm)}",
+        },
+    )
     ET.SubElement(root, "title").text = title or "Pattern pieces at true size"
     line = {"fill": "none", "stroke-linejoin": "round", "stroke-linecap": "round"}
     for i, (o, (dx, dy)) in enumerate(zip(outlines, layout.offsets), start=1):
-        g = ET.SubElement(root, "g", {"id": f"panel-{i}", "data-panel": o.name,
-                                      "transform": f"translate({_n(dx)} {_n(dy)})"})
-        ET.SubElement(g, "path", {"class": "cut", "d": _path(o.cutting, True),
-                                  "stroke": "#000000", "stroke-width": "0.4", **line})
-        ET.SubElement(g, "path", {"class": "stitch", "d": _path(o.stitch, True), "stroke": "#0072B2",
-                                  "stroke-width": "0.25", "stroke-dasharray": "3 1.5", **line})
+        g = ET.SubElement(
+            root, "g", {"id": f"panel-{i}", "data-panel": o.name, "transform": f"translate({_n(dx)} {_n(dy)})"}
+        )
+        ET.SubElement(
+            g, "path", {"class": "cut", "d": _path(o.cutting, True), "stroke": "#000000", "stroke-width": "0.4", **line}
+        )
+        ET.SubElement(
+            g,
+            "path",
+            {
+                "class": "stitch",
+                "d": _path(o.stitch, True),
+                "stroke": "#0072B2",
+                "stroke-width": "0.25",
+                "stroke-dasharray": "3 1.5",
+                **line,
+            },
+        )
         notches = "".join(_path(seg, False) for seg in notch_segments(o))
         if notches:
-            ET.SubElement(g, "path", {"class": "notch", "d": notches, "stroke": "#000000",
-                                      "stroke-width": "0.4", **line})
-        ET.SubElement(g, "path", {"class": "grain", "d": _grain_path(o.grainline), "stroke": "#000000",
-                                  "stroke-width": "0.3", **line})
+            ET.SubElement(
+                g, "path", {"class": "notch", "d": notches, "stroke": "#000000", "stroke-width": "0.4", **line}
+            )
+        ET.SubElement(
+            g,
+            "path",
+            {"class": "grain", "d": _grain_path(o.grainline), "stroke": "#000000", "stroke-width": "0.3", **line},
+        )
         if level_lines:
             for level, a, b in level_segments(o):
-                ET.SubElement(g, "path", {"class": f"level level-{level}", "d": _path([a, b], False),
-                                          "stroke": "#777777", "stroke-width": "0.2", **line})
+                ET.SubElement(
+                    g,
+                    "path",
+                    {
+                        "class": f"level level-{level}",
+                        "d": _path([a, b], False),
+                        "stroke": "#777777",
+                        "stroke-width": "0.2",
+                        **line,
+                    },
+                )
         for text, (x, y), angle in _label_lines(o):
-            el = ET.SubElement(g, "text", {
-                "class": "label", "x": _n(x), "y": _n(y), "font-size": _n(LABEL_HEIGHT_MM),
-                "font-family": "DejaVu Sans, Arial, sans-serif", "text-anchor": "middle",
-                "transform": f"rotate({_n(-angle)} {_n(x)} {_n(y)})",
-            })
+            el = ET.SubElement(
+                g,
+                "text",
+                {
+                    "class": "label",
+                    "x": _n(x),
+                    "y": _n(y),
+                    "font-size": _n(LABEL_HEIGHT_MM),
+                    "font-family": "DejaVu Sans, Arial, sans-serif",
+                    "text-anchor": "middle",
+                    "transform": f"rotate({_n(-angle)} {_n(x)} {_n(y)})",
+                },
+            )
             el.text = text
-    if layout.test_square_at is not None:
+    if layout.test_square_at is not None and test_square is not None:
         x, y = layout.test_square_at
         side = layout.test_square_mm
-        ET.SubElement(root, "rect", {"class": "test-square", "x": _n(x), "y": _n(y), "width": _n(side),
-                                     "height": _n(side), "fill": "none", "stroke": "#000000", "stroke-width": "0.3"})
+        ET.SubElement(
+            root,
+            "rect",
+            {
+                "class": "test-square",
+                "x": _n(x),
+                "y": _n(y),
+                "width": _n(side),
+                "height": _n(side),
+                "fill": "none",
+                "stroke": "#000000",
+                "stroke-width": "0.3",
+            },
+        )
         for i, text in enumerate(_test_square_lines(test_square), start=1):
-            el = ET.SubElement(root, "text", {
-                "class": "label", "x": _n(x), "y": _n(y + side + i * 1.4 * LABEL_HEIGHT_MM),
-                "font-size": _n(LABEL_HEIGHT_MM), "font-family": "DejaVu Sans, Arial, sans-serif",
-            })
+            el = ET.SubElement(
+                root,
+                "text",
+                {
+                    "class": "label",
+                    "x": _n(x),
+                    "y": _n(y + side + i * 1.4 * LABEL_HEIGHT_MM),
+                    "font-size": _n(LABEL_HEIGHT_MM),
+                    "font-family": "DejaVu Sans, Arial, sans-serif",
+                },
+            )
             el.text = text
     ET.indent(root, space=" ")
     return '<?xml version="1.0" encoding="UTF-8"?>\n' + ET.tostring(root, encoding="unicode") + "\n"
@@ -249,8 +322,9 @@ def dxf_bytes(outlines: tuple[PanelOutline, ...], *, gap_mm: float = PANEL_GAP_M
             for level, a, b in level_segments(o):
                 blk.add_line(_flip(a), _flip(b), dxfattribs={"layer": level_layer(level)})
         for text, at, angle in _label_lines(o):
-            blk.add_text(text, height=LABEL_HEIGHT_MM, rotation=angle,
-                         dxfattribs={"layer": LAYER_LABEL, "insert": _flip(at)})
+            blk.add_text(
+                text, height=LABEL_HEIGHT_MM, rotation=angle, dxfattribs={"layer": LAYER_LABEL, "insert": _flip(at)}
+            )
         msp.add_blockref(_block_name(i), _flip((dx, dy)))
     stream = io.StringIO()
     doc.write(stream)
@@ -284,7 +358,7 @@ def read_dxf(data: bytes) -> tuple[DxfPanel, ...]:
         notches, labels = [], []
         for e in blk:
             layer = e.dxf.layer
-            if e.dxftype() == "LWPOLYLINE":
+            if isinstance(e, LWPolyline):
                 points = tuple(_unflip(x, y) for x, y in e.get_points("xy"))
                 if layer == LAYER_CUT:
                     cutting = points
@@ -298,6 +372,15 @@ def read_dxf(data: bytes) -> tuple[DxfPanel, ...]:
                     grain = segment
             elif e.dxftype() == "TEXT" and layer == LAYER_LABEL:
                 labels.append(e.dxf.text)
-        panels.append(DxfPanel(ref.dxf.name, tuple(labels), cutting or (), stitch or (), tuple(notches), grain,
-                               _unflip(ref.dxf.insert.x, ref.dxf.insert.y)))
+        panels.append(
+            DxfPanel(
+                ref.dxf.name,
+                tuple(labels),
+                cutting or (),
+                stitch or (),
+                tuple(notches),
+                grain,
+                _unflip(ref.dxf.insert.x, ref.dxf.insert.y),
+            )
+        )
     return tuple(panels)

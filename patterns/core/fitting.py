@@ -78,8 +78,11 @@ def channels_to_list(channels) -> list[dict]:
 def channels_from_list(data: list[dict]) -> tuple[ChannelMark, ...]:
     return tuple(
         ChannelMark(
-            panel=c["panel"], fraction=float(c["fraction"]) if c.get("fraction") is not None else None,
-            edge=c.get("edge", "left"), offset_mm=float(c.get("offset_mm", 0.0)), name=c.get("name", ""),
+            panel=c["panel"],
+            fraction=float(c["fraction"]) if c.get("fraction") is not None else None,
+            edge=c.get("edge", "left"),
+            offset_mm=float(c.get("offset_mm", 0.0)),
+            name=c.get("name", ""),
         )
         for c in data
     )
@@ -90,31 +93,44 @@ def block_from_dict(data: dict) -> Block:
         return Point(float(p["x"]), float(p["y"]))
 
     return Block(
-        name=data["name"], size=str(data["size"]), garment=data.get("garment", ""),
+        name=data["name"],
+        size=str(data["size"]),
+        garment=data.get("garment", ""),
         levels=tuple(Level(lv["name"], float(lv["y"])) for lv in data["levels"]),
         panels=tuple(
             Panel(
-                name=p["name"], side=p["side"],
+                name=p["name"],
+                side=p["side"],
                 left={k: float(v) for k, v in p["left"].items()},
                 right={k: float(v) for k, v in p["right"].items()},
-                top_left=point(p["top_left"]), top_right=point(p["top_right"]),
-                bottom_left=point(p["bottom_left"]), bottom_right=point(p["bottom_right"]),
-                cut_count=int(p.get("cut_count", 2)), on_fold=bool(p.get("on_fold", False)),
+                top_left=point(p["top_left"]),
+                top_right=point(p["top_right"]),
+                bottom_left=point(p["bottom_left"]),
+                bottom_right=point(p["bottom_right"]),
+                cut_count=int(p.get("cut_count", 2)),
+                on_fold=bool(p.get("on_fold", False)),
                 curves=curves_from_dict(p["curves"]) if p.get("curves") else None,
-                top_bound=bool(p.get("top_bound", False)), bottom_bound=bool(p.get("bottom_bound", False)),
+                top_bound=bool(p.get("top_bound", False)),
+                bottom_bound=bool(p.get("bottom_bound", False)),
                 grainline_x=None if p.get("grainline_x") is None else float(p["grainline_x"]),
             )
             for p in data["panels"]
         ),
         seams=tuple(
             Seam(
-                name=s["name"], kind=s["kind"], front_panel=s["front_panel"], back_panel=s["back_panel"],
-                alterable_at=frozenset(s["alterable_at"]), cap_mm=float(s.get("cap_mm", 15.0)),
+                name=s["name"],
+                kind=s["kind"],
+                front_panel=s["front_panel"],
+                back_panel=s["back_panel"],
+                alterable_at=frozenset(s["alterable_at"]),
+                cap_mm=float(s.get("cap_mm", 15.0)),
             )
             for s in data["seams"]
         ),
-        centre_front=data.get("centre_front", "busk"), centre_back=data.get("centre_back", "laced"),
-        seam_allowance_mm=float(data.get("seam_allowance_mm", 15.0)), size_order=int(data.get("size_order", 0)),
+        centre_front=data.get("centre_front", "busk"),
+        centre_back=data.get("centre_back", "laced"),
+        seam_allowance_mm=float(data.get("seam_allowance_mm", 15.0)),
+        size_order=int(data.get("size_order", 0)),
         channels=channels_from_list(data.get("channels", [])),
     )
 
@@ -132,8 +148,7 @@ def curves_from_dict(data: dict) -> PanelCurves:
         return tuple((float(x), float(y)) for x, y in points)
 
     grain = data.get("grainline")
-    return PanelCurves(**{side: line(data[side]) for side in CURVE_SIDES},
-                       grainline=line(grain) if grain else None)
+    return PanelCurves(**{side: line(data[side]) for side in CURVE_SIDES}, grainline=line(grain) if grain else None)
 
 
 def body_from_measurements(values: dict[str, float]) -> Body:
@@ -158,17 +173,23 @@ def options_from_dict(data: dict, unit: str = "cm") -> PlanOptions:
     return PlanOptions(
         ease={k: float(v) for k, v in data.get("ease", {}).items()},
         lacing_gap_mm=float(data.get("lacing_gap_mm", 50.0)),
-        centre_front_width_mm=(None if data.get("centre_front_width_mm") is None else float(data["centre_front_width_mm"])),
+        centre_front_width_mm=(
+            None if data.get("centre_front_width_mm") is None else float(data["centre_front_width_mm"])
+        ),
         step_mm=float(data.get("step_mm") or DEFAULT_STEP_MM[unit]),
         unit=unit,
         policy=data.get("policy", "even"),
-        overrides=tuple(Override(o["seam"], o["level"], o["panel"], float(o["shift_mm"])) for o in data.get("overrides", [])),
+        overrides=tuple(
+            Override(o["seam"], o["level"], o["panel"], float(o["shift_mm"])) for o in data.get("overrides", [])
+        ),
         pins=tuple(PinAdjustment(p["seam"], p["level"], float(p["amount_mm"])) for p in data.get("pins", [])),
         apply_lengths=bool(data.get("apply_lengths", True)),
     )
 
 
-def fitting_to_dict(measurements: dict[str, float], block: Block, options: PlanOptions, meta: dict | None = None) -> dict:
+def fitting_to_dict(
+    measurements: dict[str, float], block: Block, options: PlanOptions, meta: dict | None = None
+) -> dict:
     plan = options_to_dict(options)
     unit = plan.pop("unit")
     return {
@@ -202,7 +223,9 @@ def read_fitting(data) -> tuple[dict[str, float], Block, PlanOptions]:
     for code, value in measurements.items():
         lo, hi = MEASURE_BY_CODE[code].limits
         if not (lo <= value <= hi):
-            raise FittingFileError(f"measurements/{code}", f"{value} mm is outside what a body measures ({lo}-{hi} mm).")
+            raise FittingFileError(
+                f"measurements/{code}", f"{value} mm is outside what a body measures ({lo}-{hi} mm)."
+            )
     block = block_from_dict(data["pattern"])
     problems = block_errors(block)
     if problems:
@@ -215,8 +238,11 @@ def read_fitting(data) -> tuple[dict[str, float], Block, PlanOptions]:
         where = f"plan/overrides/{i}"
         cell = (o.seam, o.level, o.panel)
         if cell in first_fixed:
-            raise FittingFileError(where, f"The {o.panel} edge of the {o.seam} at {o.level} is already fixed by "
-                                          f"plan/overrides/{first_fixed[cell]}; a cell is fixed once.")
+            raise FittingFileError(
+                where,
+                f"The {o.panel} edge of the {o.seam} at {o.level} is already fixed by "
+                f"plan/overrides/{first_fixed[cell]}; a cell is fixed once.",
+            )
         first_fixed[cell] = i
         if o.seam not in seams:
             raise FittingFileError(f"{where}/seam", f"There is no seam called {o.seam!r} in the pattern.")
@@ -238,8 +264,9 @@ def read_fitting(data) -> tuple[dict[str, float], Block, PlanOptions]:
 
 def load_fitting_text(text: str) -> tuple[dict[str, float], Block, PlanOptions]:
     try:
-        data = json.loads(text, parse_constant=_refuse_constant, parse_int=_integer, parse_float=_finite,
-                          object_pairs_hook=_object)
+        data = json.loads(
+            text, parse_constant=_refuse_constant, parse_int=_integer, parse_float=_finite, object_pairs_hook=_object
+        )
     except FittingFileError:
         raise
     except (json.JSONDecodeError, RecursionError) as exc:
@@ -261,7 +288,9 @@ def _integer(text: str) -> int:
 def _finite(text: str) -> float:
     value = float(text)
     if not math.isfinite(value):
-        raise FittingFileError("(file)", f"The number {shorten(text, 40)} is far too large to be a length in millimetres.")
+        raise FittingFileError(
+            "(file)", f"The number {shorten(text, 40)} is far too large to be a length in millimetres."
+        )
     return value
 
 
@@ -301,8 +330,14 @@ def allotment_from_dict(data: dict) -> Allotment:
 
     inputs = data.get("inputs", {})
     return Allotment(
-        block=data["block"], size=data["size"], unit=data["unit"], step_mm=data["step_mm"], policy=data["policy"],
-        levels=tuple(LevelResult(**{**lv, "front": part(lv.get("front")), "back": part(lv.get("back"))}) for lv in data["levels"]),
+        block=data["block"],
+        size=data["size"],
+        unit=data["unit"],
+        step_mm=data["step_mm"],
+        policy=data["policy"],
+        levels=tuple(
+            LevelResult(**{**lv, "front": part(lv.get("front")), "back": part(lv.get("back"))}) for lv in data["levels"]
+        ),
         shifts=tuple(EdgeShift(**s) for s in data["shifts"]),
         centre_front_shift_mm=data["centre_front_shift_mm"],
         bands=tuple(BandChange(**b) for b in data["bands"]),

@@ -55,13 +55,17 @@ def table_findings(block: Block, table: GradingTable) -> list[Finding]:
     found = []
     for level, value in table.girth_mm.items():
         if level not in block.level_names:
-            found.append(Finding("grading_level", ERROR, f"The block has no {LEVEL_LABELS.get(level, level).lower()} level."))
+            found.append(
+                Finding("grading_level", ERROR, f"The block has no {LEVEL_LABELS.get(level, level).lower()} level.")
+            )
         elif not math.isfinite(value):
             found.append(Finding("grading_number", ERROR, "A girth step must be a number.", level=level))
     pairs = set(zip(block.level_names, block.level_names[1:]))
     for band, value in table.band_mm.items():
         if band not in pairs:
-            found.append(Finding("grading_band", ERROR, f"{band[0]} to {band[1]} is not a band between neighbouring levels."))
+            found.append(
+                Finding("grading_band", ERROR, f"{band[0]} to {band[1]} is not a band between neighbouring levels.")
+            )
         elif not math.isfinite(value):
             found.append(Finding("grading_number", ERROR, "A band step must be a number."))
     return found
@@ -78,17 +82,19 @@ def grade_block(block: Block, table: GradingTable, steps: int, size: str, size_o
     # The engine works out a body from its girths: the pattern's own girth plus the steps' change,
     # with no ease and no lacing gap, so the difference it spreads is exactly the grading change.
     body = Body(girths={lv: block.girth(lv) + steps * table.girth_mm.get(lv, 0.0) for lv in block.level_names})
-    options = PlanOptions(ease={}, lacing_gap_mm=0.0, step_mm=GRADING_STEP_MM, policy=table.policy,
-                          apply_lengths=False)
+    options = PlanOptions(ease={}, lacing_gap_mm=0.0, step_mm=GRADING_STEP_MM, policy=table.policy, apply_lengths=False)
     result = allot(block, body, options)
     found += [f for f in result.findings if f.severity in (ERROR, WARNING) and f.code != "edge_over_cap"]
     over = [f for f in result.findings if f.code == "edge_over_cap"]
     if over:
-        found.append(Finding(
-            "grading_over_cap", WARNING,
-            f"Size {size}: {len(over)} raw edge(s) move further than their limit for alterations; a graded size is "
-            "a new draft, so this is allowed, but check the shapes.",
-        ))
+        found.append(
+            Finding(
+                "grading_over_cap",
+                WARNING,
+                f"Size {size}: {len(over)} raw edge(s) move further than their limit for alterations; a graded size is "
+                "a new draft, so this is allowed, but check the shapes.",
+            )
+        )
     alteration = result.alteration(block)
     bands = {band: steps * change for band, change in table.band_mm.items() if change}
     alteration = replace(alteration, bands=bands)
@@ -118,12 +124,18 @@ def _moved_block(block: Block, alteration, size: str, order: int) -> Block:
         if grain is not None and block.levels:
             mid = block.level_names[len(block.levels) // 2]
             grain = left[mid] + (grain - p.left[mid]) / p.width(mid) * (right[mid] - left[mid])
-        panels.append(replace(
-            p, left=left, right=right,
-            top_left=corner(p.top_left, left_shift, -1), top_right=corner(p.top_right, right_shift, 1),
-            bottom_left=corner(p.bottom_left, left_shift, -1), bottom_right=corner(p.bottom_right, right_shift, 1),
-            grainline_x=grain,
-        ))
+        panels.append(
+            replace(
+                p,
+                left=left,
+                right=right,
+                top_left=corner(p.top_left, left_shift, -1),
+                top_right=corner(p.top_right, right_shift, 1),
+                bottom_left=corner(p.bottom_left, left_shift, -1),
+                bottom_right=corner(p.bottom_right, right_shift, 1),
+                grainline_x=grain,
+            )
+        )
     return replace(block, size=size, size_order=order, levels=levels, panels=tuple(panels))
 
 

@@ -37,10 +37,22 @@ from dataclasses import dataclass, field
 from xml.etree import ElementTree as ET
 
 import numpy as np
-from shapely.geometry import LineString, Point as ShapelyPoint, Polygon
+from shapely.geometry import LineString, Polygon
+from shapely.geometry import Point as ShapelyPoint
 
 from patterns.core.block import (
-    BACK, CB_LACED, CF_BUSK, CF_FOLD, FRONT, Block, Level, Panel, PanelCurves, Point, Seam, block_errors,
+    BACK,
+    CB_LACED,
+    CF_BUSK,
+    CF_FOLD,
+    FRONT,
+    Block,
+    Level,
+    Panel,
+    PanelCurves,
+    Point,
+    Seam,
+    block_errors,
 )
 from patterns.core.measures import LEVEL_CODES, LEVEL_LABELS
 from patterns.core.units import MM_PER_CM, MM_PER_INCH
@@ -64,11 +76,30 @@ MAX_PIECES = 20
 
 DXF_UNITS_MM = {4: ("millimetres", 1.0), 5: ("centimetres", float(MM_PER_CM)), 1: ("inches", float(MM_PER_INCH))}
 # The other $INSUNITS codes of the DXF reference, named for the message.
-DXF_UNIT_NAMES = {0: "no unit (unitless)", 2: "feet", 3: "miles", 6: "metres", 7: "kilometres",
-                  8: "microinches", 9: "mils", 10: "yards", 11: "ångströms", 12: "nanometres", 13: "microns",
-                  14: "decimetres", 15: "decametres", 16: "hectometres", 17: "gigametres",
-                  18: "astronomical units", 19: "light years", 20: "parsecs", 21: "US survey feet",
-                  22: "US survey inches", 23: "US survey yards", 24: "US survey miles"}
+DXF_UNIT_NAMES = {
+    0: "no unit (unitless)",
+    2: "feet",
+    3: "miles",
+    6: "metres",
+    7: "kilometres",
+    8: "microinches",
+    9: "mils",
+    10: "yards",
+    11: "ångströms",
+    12: "nanometres",
+    13: "microns",
+    14: "decimetres",
+    15: "decametres",
+    16: "hectometres",
+    17: "gigametres",
+    18: "astronomical units",
+    19: "light years",
+    20: "parsecs",
+    21: "US survey feet",
+    22: "US survey inches",
+    23: "US survey yards",
+    24: "US survey miles",
+}
 SVG_UNITS_MM = {"mm": 1.0, "cm": float(MM_PER_CM), "in": float(MM_PER_INCH)}
 
 _IGNORED_NAMES = {"notch", "notches", "label", "labels", "defpoints", "test-square"}
@@ -227,8 +258,12 @@ def read_dxf_drawing(data: bytes) -> Drawing:
         points = np.array([to_mm(v.x, v.y) for v in p.flattening(FLATTEN_TOLERANCE_MM / scale, segments=4)])
         if len(points) == 0:
             return
-        closed = bool(getattr(entity, "closed", False) or getattr(entity, "is_closed", False)
-                      or kind in ("CIRCLE",) or (kind == "ELLIPSE" and _full_ellipse(entity)))
+        closed = bool(
+            getattr(entity, "closed", False)
+            or getattr(entity, "is_closed", False)
+            or kind in ("CIRCLE",)
+            or (kind == "ELLIPSE" and _full_ellipse(entity))
+        )
         if kind == "SPLINE":
             closed = closed or bool(entity.closed)
         drawing.paths.append(_Path(_dedupe(points), closed, (layer.lower(),), f"a {kind} on layer {layer}"))
@@ -258,7 +293,7 @@ def _svg_length(text: str | None, what: str) -> tuple[float, str]:
     if text is None:
         raise UnknownUnitError(
             f"The SVG file has no {what}, so its true size is unknown. Give the drawing a width and height "
-            "in mm, cm or in (for example width=\"400mm\") and a viewBox."
+            'in mm, cm or in (for example width="400mm") and a viewBox.'
         )
     match = _LENGTH.match(text)
     if not match:
@@ -294,8 +329,12 @@ def read_svg_drawing(data: bytes) -> Drawing:
 
     # Mark each shape and text with the names of its own and its groups' ids, classes and labels.
     def walk(element, names):
-        own = [element.get("id"), element.get(_INKSCAPE_LABEL), element.get("data-layer"),
-               *(element.get("class") or "").split()]
+        own = [
+            element.get("id"),
+            element.get(_INKSCAPE_LABEL),
+            element.get("data-layer"),
+            *(element.get("class") or "").split(),
+        ]
         here = names + tuple(n.strip().lower() for n in own if n)
         tag = element.tag.replace(_SVG_NS, "")
         if tag in _SHAPES or tag == "text":
@@ -440,8 +479,10 @@ def _join(paths: list[_Path]) -> tuple[list[_Path], list[_Path]]:
 def _ring_polygon(ring: _Path) -> Polygon:
     poly = Polygon(ring.points)
     if not poly.is_valid or poly.area <= 0:
-        raise BlockImportError(f"The outline drawn as {ring.where} crosses itself; each piece must be one "
-                               "closed line that does not cross itself.")
+        raise BlockImportError(
+            f"The outline drawn as {ring.where} crosses itself; each piece must be one "
+            "closed line that does not cross itself."
+        )
     return poly
 
 
@@ -480,8 +521,9 @@ def block_from_drawing(drawing: Drawing, options: ImportOptions = ImportOptions(
         level = _level_named(p.names)
         if level is not None:
             if not _straight_horizontal(p.points):
-                raise LevelsError(f"The {LEVEL_LABELS[level].lower()} line ({p.where}) is not a straight "
-                                  "horizontal line.")
+                raise LevelsError(
+                    f"The {LEVEL_LABELS[level].lower()} line ({p.where}) is not a straight horizontal line."
+                )
             xs = p.points[:, 0]
             level_lines.append(_LevelLine(level, float(np.mean(p.points[:, 1])), float(xs.min()), float(xs.max())))
             continue
@@ -496,8 +538,11 @@ def block_from_drawing(drawing: Drawing, options: ImportOptions = ImportOptions(
         if _straight_horizontal(p.points):
             y = float(np.mean(p.points[:, 1]))
             x0, x1 = float(p.points[:, 0].min()), float(p.points[:, 0].max())
-            near = [(abs(y - ty), lv) for lv, tx, ty in level_texts
-                    if -1.0 <= y - ty <= LEVEL_TEXT_DISTANCE_MM and x0 - LEVEL_TEXT_DISTANCE_MM <= tx <= x1]
+            near = [
+                (abs(y - ty), lv)
+                for lv, tx, ty in level_texts
+                if -1.0 <= y - ty <= LEVEL_TEXT_DISTANCE_MM and x0 - LEVEL_TEXT_DISTANCE_MM <= tx <= x1
+            ]
             if near:
                 named = min(near)[1]
                 level_lines.append(_LevelLine(named, y, x0, x1))
@@ -510,7 +555,11 @@ def block_from_drawing(drawing: Drawing, options: ImportOptions = ImportOptions(
             f"An outline is open: {p.where} ends at {drawing.where(ax, ay)} and at {drawing.where(bx, by)}, "
             f"{math.hypot(bx - ax, by - ay):.1f} mm apart, and nothing joins the ends. Close it in the drawing "
             "program (each piece must be one closed stitch line)."
-            + (f" ({len(still_open) - 1} more open line{'s' if len(still_open) > 2 else ''}.)" if len(still_open) > 1 else "")
+            + (
+                f" ({len(still_open) - 1} more open line{'s' if len(still_open) > 2 else ''}.)"
+                if len(still_open) > 1
+                else ""
+            )
         )
     if not rings:
         raise BlockImportError("The drawing has no closed outline: draw each piece's stitch line as one closed line.")
@@ -520,26 +569,36 @@ def block_from_drawing(drawing: Drawing, options: ImportOptions = ImportOptions(
     # bound edge the cutting line is the stitch line itself, so "holding" allows the two to touch
     # (within a hundredth of a millimetre, what a drawing file's numbers keep).
     holders = [poly.buffer(0.01) for poly in polygons]
-    inner = [i for i, poly in enumerate(polygons)
-             if not any(j != i and holders[i].contains(polygons[j]) and poly.area > polygons[j].area
-                        for j in range(len(polygons)))]
+    inner = [
+        i
+        for i, poly in enumerate(polygons)
+        if not any(
+            j != i and holders[i].contains(polygons[j]) and poly.area > polygons[j].area for j in range(len(polygons))
+        )
+    ]
     pieces = [_Piece(rings[i].points, polygons[i], rings[i].where) for i in inner]
     for pc in pieces:
         # Texts between a stitch line and the cutting line round it belong to the piece too.
-        around = [poly for poly, holder in zip(polygons, holders)
-                  if poly is not pc.polygon and holder.contains(pc.polygon) and poly.area > pc.polygon.area]
+        around = [
+            poly
+            for poly, holder in zip(polygons, holders)
+            if poly is not pc.polygon and holder.contains(pc.polygon) and poly.area > pc.polygon.area
+        ]
         pc.label_area = min(around, key=lambda poly: poly.area) if around else pc.polygon
     for a in range(len(pieces)):
         for b in range(a + 1, len(pieces)):
             if pieces[a].polygon.intersection(pieces[b].polygon).area > 1.0:
-                raise BlockImportError(f"Two outlines overlap ({pieces[a].where} and {pieces[b].where}); draw the "
-                                       "pieces side by side.")
+                raise BlockImportError(
+                    f"Two outlines overlap ({pieces[a].where} and {pieces[b].where}); draw the pieces side by side."
+                )
     if len(pieces) > MAX_PIECES:
         raise BlockImportError(f"The drawing has {len(pieces)} pieces; a block has at most {MAX_PIECES}.")
     pieces.sort(key=lambda pc: (pc.polygon.bounds[0] + pc.polygon.bounds[2]) / 2)
     if options.front_panels is not None and not 0 <= options.front_panels <= len(pieces):
-        raise BlockImportError(f"{options.front_panels} pieces were said to lie in front of the side seam, "
-                               f"but the drawing has {len(pieces)}.")
+        raise BlockImportError(
+            f"{options.front_panels} pieces were said to lie in front of the side seam, "
+            f"but the drawing has {len(pieces)}."
+        )
 
     # Pattern coordinates: the top of the highest piece at y 0, the leftmost point at x 0.
     x_origin = min(pc.polygon.bounds[0] for pc in pieces)
@@ -621,8 +680,10 @@ def _levels(lines: list[_LevelLine], pieces: list[_Piece]) -> tuple[Level, ...]:
         for pc in pieces:
             minx, miny, maxx, maxy = pc.polygon.bounds
             if not any(ll.x0 <= maxx and ll.x1 >= minx for ll in found):
-                raise LevelsError(f"No {LEVEL_LABELS[code].lower()} line crosses the piece drawn as {pc.where}"
-                                  f"{' (' + pc.name + ')' if pc.name else ''}; every piece needs every level.")
+                raise LevelsError(
+                    f"No {LEVEL_LABELS[code].lower()} line crosses the piece drawn as {pc.where}"
+                    f"{' (' + pc.name + ')' if pc.name else ''}; every piece needs every level."
+                )
             if not (miny < y < maxy):
                 raise LevelsError(
                     f"The piece {pc.name or pc.where} does not reach the {LEVEL_LABELS[code].lower()} line "
@@ -715,8 +776,9 @@ def _panel(piece: _Piece, levels: tuple[Level, ...], index: int, count: int, opt
     top_cross = [int(i) for i in np.flatnonzero(ring[:, 1] == top_y)]
     bottom_cross = [int(i) for i in np.flatnonzero(ring[:, 1] == bottom_y)]
     if len(top_cross) != 2 or len(bottom_cross) != 2:
-        raise BlockImportError(f"The outline of {piece.name} runs along a level line; move the level line "
-                               "or the outline a little.")
+        raise BlockImportError(
+            f"The outline of {piece.name} runs along a level line; move the level line or the outline a little."
+        )
     lt, rt = sorted(top_cross, key=lambda i: ring[i][0])
     lb, rb = sorted(bottom_cross, key=lambda i: ring[i][0])
 
@@ -754,8 +816,7 @@ def _panel(piece: _Piece, levels: tuple[Level, ...], index: int, count: int, opt
         points = np.asarray(thin.coords) if thin is not None and len(thin.coords) >= 2 else ring[indices]
         return tuple((float(x), float(y)) for x, y in points)
 
-    curves = PanelCurves(left=line(left), right=line(right), top=line(top), bottom=line(bottom),
-                         grainline=piece.grain)
+    curves = PanelCurves(left=line(left), right=line(right), top=line(top), bottom=line(bottom), grainline=piece.grain)
     left_line, right_line = ring[left], ring[right]
     at_left = {lv.name: float(np.interp(lv.y, left_line[:, 1], left_line[:, 0])) for lv in levels}
     at_right = {lv.name: float(np.interp(lv.y, right_line[:, 1], right_line[:, 0])) for lv in levels}
@@ -780,16 +841,28 @@ def _assemble(panels: tuple[Panel, ...], levels: tuple[Level, ...], options: Imp
     seams = []
     for a, b in zip(panels, panels[1:]):
         side = a.side == FRONT and b.side == BACK
-        seams.append(Seam(
-            name="Side seam" if side else f"{a.name} to {b.name} seam",
-            kind="side" if side else "other",
-            front_panel=a.name, back_panel=b.name, alterable_at=names, cap_mm=options.cap_mm,
-        ))
+        seams.append(
+            Seam(
+                name="Side seam" if side else f"{a.name} to {b.name} seam",
+                kind="side" if side else "other",
+                front_panel=a.name,
+                back_panel=b.name,
+                alterable_at=names,
+                cap_mm=options.cap_mm,
+            )
+        )
     centre_front = options.centre_front or (CF_FOLD if panels[0].on_fold else CF_BUSK)
     return Block(
-        name=options.name, size=options.size, garment=options.garment, levels=levels, panels=panels,
-        seams=tuple(seams), centre_front=centre_front, centre_back=options.centre_back,
-        seam_allowance_mm=options.seam_allowance_mm, size_order=options.size_order,
+        name=options.name,
+        size=options.size,
+        garment=options.garment,
+        levels=levels,
+        panels=panels,
+        seams=tuple(seams),
+        centre_front=centre_front,
+        centre_back=options.centre_back,
+        seam_allowance_mm=options.seam_allowance_mm,
+        size_order=options.size_order,
     )
 
 

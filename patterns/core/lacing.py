@@ -158,8 +158,9 @@ def _point_at(line: np.ndarray, cumulative: np.ndarray, s: float, inset: float) 
     return float(x - inset * ty), float(y + inset * tx)
 
 
-def lacing(block: Block, altered: tuple[PanelOutline, ...], lacing_gap_mm: float,
-           rules: LacingRules = LacingRules()) -> Lacing | None:
+def lacing(
+    block: Block, altered: tuple[PanelOutline, ...], lacing_gap_mm: float, rules: LacingRules = LacingRules()
+) -> Lacing | None:
     """The eyelets of a laced back; None when the centre back is a plain seam."""
     if block.centre_back != CB_LACED:
         return None
@@ -176,12 +177,19 @@ def lacing(block: Block, altered: tuple[PanelOutline, ...], lacing_gap_mm: float
         order = np.argsort(line[:, 1], kind="stable")
         waist = float(np.interp(y, line[order, 1], cumulative[order]))
     distances, pair = eyelet_positions(edge, waist, rules)
-    eyelets = tuple(Eyelet(i + 1, float(s), _point_at(line, cumulative, s, rules.inset_mm), i in pair)
-                    for i, s in enumerate(distances))
+    eyelets = tuple(
+        Eyelet(i + 1, float(s), _point_at(line, cumulative, s, rules.inset_mm), i in pair)
+        for i, s in enumerate(distances)
+    )
     findings = []
     if not eyelets:
-        findings.append(Finding(
-            "back_too_short_for_eyelets", WARNING,
-            f"The back edge ({edge:.0f} mm) is shorter than the margins from the bound edges "
-            f"({rules.top_margin_mm + rules.bottom_margin_mm:.0f} mm): no eyelets placed.", panel=last))
+        findings.append(
+            Finding(
+                "back_too_short_for_eyelets",
+                WARNING,
+                f"The back edge ({edge:.0f} mm) is shorter than the margins from the bound edges "
+                f"({rules.top_margin_mm + rules.bottom_margin_mm:.0f} mm): no eyelets placed.",
+                panel=last,
+            )
+        )
     return Lacing(last, edge, eyelets, float(lacing_gap_mm), rules, tuple(findings))

@@ -129,13 +129,25 @@ class Piece:
         return Polygon(self.outline).area
 
     def to_dict(self) -> dict:
-        return {"name": self.name, "panel": self.panel, "mirrored": self.mirrored, "unfolded": self.unfolded,
-                "copies": self.copies, "outline": [[round(x, 3), round(y, 3)] for x, y in self.outline]}
+        return {
+            "name": self.name,
+            "panel": self.panel,
+            "mirrored": self.mirrored,
+            "unfolded": self.unfolded,
+            "copies": self.copies,
+            "outline": [[round(x, 3), round(y, 3)] for x, y in self.outline],
+        }
 
     @classmethod
     def from_dict(cls, d: dict) -> "Piece":
-        return cls(d["name"], d["panel"], bool(d["mirrored"]), bool(d["unfolded"]),
-                   tuple((float(x), float(y)) for x, y in d["outline"]), int(d["copies"]))
+        return cls(
+            d["name"],
+            d["panel"],
+            bool(d["mirrored"]),
+            bool(d["unfolded"]),
+            tuple((float(x), float(y)) for x, y in d["outline"]),
+            int(d["copies"]),
+        )
 
 
 def _normalised(poly: Polygon) -> tuple[Pt, ...]:
@@ -204,8 +216,13 @@ class Placement:
     mirrored: bool
 
     def to_dict(self) -> dict:
-        return {"piece": self.piece, "x": round(self.x, 3), "y": round(self.y, 3), "rotation": self.rotation,
-                "mirrored": self.mirrored}
+        return {
+            "piece": self.piece,
+            "x": round(self.x, 3),
+            "y": round(self.y, 3),
+            "rotation": self.rotation,
+            "mirrored": self.mirrored,
+        }
 
     @classmethod
     def from_dict(cls, d: dict) -> "Placement":
@@ -251,16 +268,29 @@ class Layout:
         return [(pl, placed_outline(by_name[pl.piece], pl)) for pl in self.placements]
 
     def to_dict(self) -> dict:
-        return {"method": self.method, "width_mm": self.width_mm, "gap_mm": self.gap_mm,
-                "length_mm": round(self.length_mm, 3), "seconds": round(self.seconds, 3), "note": self.note,
-                "pieces": [p.to_dict() for p in self.pieces], "placements": [p.to_dict() for p in self.placements]}
+        return {
+            "method": self.method,
+            "width_mm": self.width_mm,
+            "gap_mm": self.gap_mm,
+            "length_mm": round(self.length_mm, 3),
+            "seconds": round(self.seconds, 3),
+            "note": self.note,
+            "pieces": [p.to_dict() for p in self.pieces],
+            "placements": [p.to_dict() for p in self.placements],
+        }
 
     @classmethod
     def from_dict(cls, d: dict) -> "Layout":
-        return cls(d["method"], float(d["width_mm"]), float(d["gap_mm"]), float(d["length_mm"]),
-                   tuple(Piece.from_dict(p) for p in d["pieces"]),
-                   tuple(Placement.from_dict(p) for p in d["placements"]),
-                   float(d.get("seconds", 0.0)), d.get("note", ""))
+        return cls(
+            d["method"],
+            float(d["width_mm"]),
+            float(d["gap_mm"]),
+            float(d["length_mm"]),
+            tuple(Piece.from_dict(p) for p in d["pieces"]),
+            tuple(Placement.from_dict(p) for p in d["placements"]),
+            float(d.get("seconds", 0.0)),
+            d.get("note", ""),
+        )
 
 
 def check_request(pieces: Sequence[Piece], width_mm: float, gap_mm: float, unit: str = "cm") -> None:
@@ -281,7 +311,8 @@ def check_request(pieces: Sequence[Piece], width_mm: float, gap_mm: float, unit:
         raise LayoutError(
             f"{widest.name} is {format_with_unit(widest.width_mm, unit)} wide across the grain, wider than the "
             f"fabric ({format_with_unit(width_mm, unit)}): choose a wider fabric, or the piece cannot keep its "
-            "grainline.")
+            "grainline."
+        )
 
 
 def _copies(pieces: Sequence[Piece]) -> list[Piece]:
@@ -302,8 +333,9 @@ def shelf_layout(pieces: Sequence[Piece], width_mm: float, gap_mm: float = DEFAU
         x += p.width_mm + gap_mm
         row_height = max(row_height, p.height_mm)
         length = max(length, y + p.height_mm)
-    return Layout(SHELF, float(width_mm), float(gap_mm), length, tuple(pieces), tuple(placements),
-                  time.perf_counter() - started)
+    return Layout(
+        SHELF, float(width_mm), float(gap_mm), length, tuple(pieces), tuple(placements), time.perf_counter() - started
+    )
 
 
 # --- checking a layout --------------------------------------------------------------------
@@ -321,7 +353,9 @@ def layout_problems(layout: Layout) -> list[str]:
     shapes = []
     for pl, outline in layout.outlines():
         if pl.rotation not in ROTATIONS:
-            problems.append(f"{pl.piece} is turned {pl.rotation} degrees: the grainline would not run along the fabric.")
+            problems.append(
+                f"{pl.piece} is turned {pl.rotation} degrees: the grainline would not run along the fabric."
+            )
         poly = Polygon(outline)
         x0, y0, x1, y1 = poly.bounds
         if x0 < -TOLERANCE_MM or x1 > layout.width_mm + TOLERANCE_MM:
@@ -330,7 +364,7 @@ def layout_problems(layout: Layout) -> list[str]:
             problems.append(f"{pl.piece} goes beyond the length of fabric given.")
         shapes.append((pl.piece, poly))
     for i, (name_a, a) in enumerate(shapes):
-        for name_b, b in shapes[i + 1:]:
+        for name_b, b in shapes[i + 1 :]:
             if a.distance(b) < layout.gap_mm - TOLERANCE_MM:
                 problems.append(f"{name_a} and {name_b} are closer than the gap ({a.distance(b):.2f} mm).")
     return problems
@@ -367,9 +401,17 @@ def _snap_rotation(angle: float) -> int:
     return int(turn)
 
 
-def solver_layout(pieces: Sequence[Piece], width_mm: float, gap_mm: float = DEFAULT_GAP_MM, *,
-                  budget_s: int = DEFAULT_BUDGET_S, progress: ProgressCallback | None = None,
-                  seed: int = 0, workers: int | None = None, tick_s: float = 0.25) -> Layout:
+def solver_layout(
+    pieces: Sequence[Piece],
+    width_mm: float,
+    gap_mm: float = DEFAULT_GAP_MM,
+    *,
+    budget_s: int = DEFAULT_BUDGET_S,
+    progress: ProgressCallback | None = None,
+    seed: int = 0,
+    workers: int | None = None,
+    tick_s: float = 0.25,
+) -> Layout:
     """The outlines nested by spyrrow within ``budget_s`` seconds, checked; the shelf layout if the
     solver's answer breaks a rule or the solver fails."""
     started = time.perf_counter()
@@ -391,8 +433,9 @@ def solver_layout(pieces: Sequence[Piece], width_mm: float, gap_mm: float = DEFA
     # The solver overruns its time (setting up, finishing its last step), by one to two seconds on a busy
     # two-core machine, so it is given four fifths of the budget (whole seconds, at least one).
     seconds = max(1, int(budget_s * SOLVER_SHARE))
-    config = spyrrow.StripPackingConfig(early_termination=True, total_computation_time=seconds,
-                                        seed=int(seed), num_workers=workers)
+    config = spyrrow.StripPackingConfig(
+        early_termination=True, total_computation_time=seconds, seed=int(seed), num_workers=workers
+    )
     queue = spyrrow.ProgressQueue()
     answer: dict = {}
 
@@ -427,8 +470,16 @@ def solver_layout(pieces: Sequence[Piece], width_mm: float, gap_mm: float = DEFA
 
 
 def _fallback(shelf: Layout, started: float, note: str) -> Layout:
-    return Layout(SHELF, shelf.width_mm, shelf.gap_mm, shelf.length_mm, shelf.pieces, shelf.placements,
-                  time.perf_counter() - started, note)
+    return Layout(
+        SHELF,
+        shelf.width_mm,
+        shelf.gap_mm,
+        shelf.length_mm,
+        shelf.pieces,
+        shelf.placements,
+        time.perf_counter() - started,
+        note,
+    )
 
 
 def _from_solution(solution, pieces: Sequence[Piece], width_mm: float, gap_mm: float, started: float) -> Layout:
@@ -449,8 +500,9 @@ def _from_solution(solution, pieces: Sequence[Piece], width_mm: float, gap_mm: f
     placements = [Placement(pl.piece, pl.x - dx, pl.y - dy, pl.rotation, pl.mirrored) for pl in placements]
     length = max(b[3] for b in boxes) - dy
     placements.sort(key=lambda pl: (pl.y, pl.x))
-    return Layout(SOLVER, float(width_mm), float(gap_mm), length, tuple(pieces), tuple(placements),
-                  time.perf_counter() - started)
+    return Layout(
+        SOLVER, float(width_mm), float(gap_mm), length, tuple(pieces), tuple(placements), time.perf_counter() - started
+    )
 
 
 def best_of(*layouts: Layout) -> Layout:
@@ -499,9 +551,16 @@ def shelf_layers(pieces: Sequence[Piece], layers: Sequence[LayerRequest], gap_mm
     return [LayerResult(req.layer, shelf_layout(pieces, req.width_mm, gap_mm)) for req in layers]
 
 
-def solve_layers(pieces: Sequence[Piece], layers: Sequence[LayerRequest], gap_mm: float, *,
-                 budget_s: int = DEFAULT_BUDGET_S, progress: ProgressCallback | None = None,
-                 seed: int = 0, workers: int | None = None) -> list[LayerResult]:
+def solve_layers(
+    pieces: Sequence[Piece],
+    layers: Sequence[LayerRequest],
+    gap_mm: float,
+    *,
+    budget_s: int = DEFAULT_BUDGET_S,
+    progress: ProgressCallback | None = None,
+    seed: int = 0,
+    workers: int | None = None,
+) -> list[LayerResult]:
     """Shelf and solver layouts for every layer.  Every layer is cut from the same pieces, so layers
     of the same width share one solve; the budget is shared between the distinct widths (at least
     1 s each, the solver counts whole seconds)."""
@@ -510,11 +569,12 @@ def solve_layers(pieces: Sequence[Piece], layers: Sequence[LayerRequest], gap_mm
     share = max(1, int(budget_s) // len(widths))
     solved: dict[float, Layout] = {}
     for i, width in enumerate(widths):
+
         def step(p: Progress, i=i):
             if progress is not None:
                 progress(Progress((i + p.fraction) / len(widths), p.best_length_mm, p.phase))
-        solved[width] = solver_layout(pieces, width, gap_mm, budget_s=share, progress=step, seed=seed,
-                                      workers=workers)
+
+        solved[width] = solver_layout(pieces, width, gap_mm, budget_s=share, progress=step, seed=seed, workers=workers)
     for result, req in zip(results, layers):
         result.solver = solved[req.width_mm]
     return results
@@ -523,8 +583,15 @@ def solve_layers(pieces: Sequence[Piece], layers: Sequence[LayerRequest], gap_mm
 def _child_main(conn, pieces, layers, gap_mm, budget_s, seed, workers) -> None:
     """In a process of its own: solve, sending progress and then the results (or the reason) up the pipe."""
     try:
-        results = solve_layers(pieces, layers, gap_mm, budget_s=budget_s, seed=seed, workers=workers,
-                               progress=lambda p: conn.send(("progress", p)))
+        results = solve_layers(
+            pieces,
+            layers,
+            gap_mm,
+            budget_s=budget_s,
+            seed=seed,
+            workers=workers,
+            progress=lambda p: conn.send(("progress", p)),
+        )
         conn.send(("done", results))
     except BaseException as exc:  # noqa: BLE001  (reported to the parent in words)
         conn.send(("error", f"{type(exc).__name__}: {exc}"))
@@ -532,9 +599,17 @@ def _child_main(conn, pieces, layers, gap_mm, budget_s, seed, workers) -> None:
         conn.close()
 
 
-def solve_layers_apart(pieces: Sequence[Piece], layers: Sequence[LayerRequest], gap_mm: float, *,
-                       budget_s: int = DEFAULT_BUDGET_S, progress: ProgressCallback | None = None,
-                       seed: int = 0, workers: int | None = None, grace_s: float = 60.0) -> list[LayerResult]:
+def solve_layers_apart(
+    pieces: Sequence[Piece],
+    layers: Sequence[LayerRequest],
+    gap_mm: float,
+    *,
+    budget_s: int = DEFAULT_BUDGET_S,
+    progress: ProgressCallback | None = None,
+    seed: int = 0,
+    workers: int | None = None,
+    grace_s: float = 60.0,
+) -> list[LayerResult]:
     """:func:`solve_layers` in a fresh process (spawned, not forked), progress relayed to ``progress`` here.
 
     The solver starts threads of its own that outlive a solve; in a separate
@@ -547,8 +622,12 @@ def solve_layers_apart(pieces: Sequence[Piece], layers: Sequence[LayerRequest], 
     check_layers(pieces, layers, gap_mm)
     context = multiprocessing.get_context("spawn")
     receive, send = context.Pipe(duplex=False)
-    child = context.Process(target=_child_main, name="fabric-layout", daemon=True,
-                            args=(send, tuple(pieces), tuple(layers), float(gap_mm), int(budget_s), seed, workers))
+    child = context.Process(
+        target=_child_main,
+        name="fabric-layout",
+        daemon=True,
+        args=(send, tuple(pieces), tuple(layers), float(gap_mm), int(budget_s), seed, workers),
+    )
     child.start()
     send.close()
     deadline = time.monotonic() + budget_s + grace_s
@@ -579,9 +658,30 @@ def solve_layers_apart(pieces: Sequence[Piece], layers: Sequence[LayerRequest], 
 
 
 __all__ = [
-    "LAYERS", "CORSET_LAYERS", "BODICE_LAYERS", "DEFAULT_WIDTH_MM", "DEFAULT_GAP_MM", "DEFAULT_BUDGET_S",
-    "LayoutError", "Piece", "Placement", "Layout", "LayerRequest", "LayerResult", "Progress",
-    "cut_pieces", "shelf_layout", "solver_layout", "layout_problems", "placed_outline", "best_of",
-    "default_layers", "layer_label", "check_request", "check_layers", "shelf_layers", "solve_layers",
+    "LAYERS",
+    "CORSET_LAYERS",
+    "BODICE_LAYERS",
+    "DEFAULT_WIDTH_MM",
+    "DEFAULT_GAP_MM",
+    "DEFAULT_BUDGET_S",
+    "LayoutError",
+    "Piece",
+    "Placement",
+    "Layout",
+    "LayerRequest",
+    "LayerResult",
+    "Progress",
+    "cut_pieces",
+    "shelf_layout",
+    "solver_layout",
+    "layout_problems",
+    "placed_outline",
+    "best_of",
+    "default_layers",
+    "layer_label",
+    "check_request",
+    "check_layers",
+    "shelf_layers",
+    "solve_layers",
     "solve_layers_apart",
 ]

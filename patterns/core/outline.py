@@ -268,8 +268,11 @@ def _edge(block: Block, panel: Panel, edge: str, alteration: Alteration, to_alte
     drawn = None
     if panel.curves is not None:
         drawn = np.asarray(panel.curves.left if edge == LEFT else panel.curves.right, dtype=float)
-        at_level = {name: float(np.interp(y, drawn[:, 1], drawn[:, 0])) for name, y in
-                    ((lv.name, lv.y) for lv in block.levels) if name in at_level}
+        at_level = {
+            name: float(np.interp(y, drawn[:, 1], drawn[:, 0]))
+            for name, y in ((lv.name, lv.y) for lv in block.levels)
+            if name in at_level
+        }
     knot_y, knot_x = [top.y], [top.x]
     knot_levels: list[str | None] = [None]
     for level in block.levels:
@@ -293,6 +296,7 @@ def _edge(block: Block, panel: Panel, edge: str, alteration: Alteration, to_alte
     if drawn is None:
         seam_x = Pchip(knot_y, knot_x)
     else:
+
         def seam_x(ys, _y=drawn[:, 1], _x=drawn[:, 0]):
             return np.interp(ys, _y, _x)
 
@@ -306,8 +310,12 @@ def _edge(block: Block, panel: Panel, edge: str, alteration: Alteration, to_alte
         # Every drawn vertex stays a sample, so the drawn line is followed exactly.
         inner = drawn[1:-1, 1]
         inner = inner[np.min(np.abs(inner[:, None] - np.asarray(knot_y)[None, :]), axis=1) > 1e-3]
-        grid = np.concatenate([grid[np.min(np.abs(grid[:, None] - drawn[None, :, 1]), axis=1) > 0.05 * step]
-                               if len(grid) else grid, inner])
+        grid = np.concatenate(
+            [
+                grid[np.min(np.abs(grid[:, None] - drawn[None, :, 1]), axis=1) > 0.05 * step] if len(grid) else grid,
+                inner,
+            ]
+        )
     ys = np.sort(np.concatenate([grid, knot_y]))
     ys, points = _refine(ys, place)
 
@@ -486,8 +494,11 @@ def _outline(block, panel, alteration, to_altered, allowance, step) -> tuple[Pan
         for level in block.level_names:
             if level in e.level_index:
                 i = e.level_index[level]
-                notches.append(Notch(level, edge, (float(e.points[i, 0]), float(e.points[i, 1])),
-                                     _outward(e.points, i, edge), seam))
+                notches.append(
+                    Notch(
+                        level, edge, (float(e.points[i, 0]), float(e.points[i, 1])), _outward(e.points, i, edge), seam
+                    )
+                )
 
     levels_here = [lv for lv in block.level_names if lv in edges[LEFT].level_index and lv in edges[RIGHT].level_index]
     if levels_here:
@@ -501,6 +512,7 @@ def _outline(block, panel, alteration, to_altered, allowance, step) -> tuple[Pan
     else:
         x_mid = 0.5 * (left[:, 0].mean() + right[:, 0].mean())
     if panel.curves is not None and panel.curves.grainline is not None:
+
         def moved(x: float, y: float) -> Pt:
             return float(x + 0.5 * (edges[LEFT].dx_at(y) + edges[RIGHT].dx_at(y))), float(to_altered(y))
 
@@ -564,14 +576,16 @@ def _base(block: Block, seam_allowance_mm: float | None, step_mm: float):
     return built
 
 
-def alter_block(block: Block, alteration: Alteration, *, seam_allowance_mm: float | None = None,
-                step_mm: float = SAMPLE_STEP_MM) -> tuple[PanelOutline, ...]:
+def alter_block(
+    block: Block, alteration: Alteration, *, seam_allowance_mm: float | None = None, step_mm: float = SAMPLE_STEP_MM
+) -> tuple[PanelOutline, ...]:
     """The altered outline of every panel, centre front to centre back."""
     return _build(block, alteration, seam_allowance_mm, step_mm)[0]
 
 
-def base_outlines(block: Block, *, seam_allowance_mm: float | None = None,
-                  step_mm: float = SAMPLE_STEP_MM) -> tuple[PanelOutline, ...]:
+def base_outlines(
+    block: Block, *, seam_allowance_mm: float | None = None, step_mm: float = SAMPLE_STEP_MM
+) -> tuple[PanelOutline, ...]:
     return alter_block(block, Alteration(shifts={}), seam_allowance_mm=seam_allowance_mm, step_mm=step_mm)
 
 
@@ -613,8 +627,11 @@ def _truing_finding(t: SeamTruing, tolerance: float) -> GeometryFinding:
     amount = abs(t.change_mm)
     far_end = "bottom" if t.end == "top" else "top"
     d = t.base_difference_mm
-    before = ("as drafted the two edges were equal" if abs(d) < 0.05
-              else f"as drafted the {t.front_panel} edge was {abs(d):.1f} mm {'longer' if d > 0 else 'shorter'}")
+    before = (
+        "as drafted the two edges were equal"
+        if abs(d) < 0.05
+        else f"as drafted the {t.front_panel} edge was {abs(d):.1f} mm {'longer' if d > 0 else 'shorter'}"
+    )
     message = (
         f"{t.seam}: after the alteration the {grew} edge is {amount:.1f} mm longer than it should be "
         f"against the {other} edge ({before}; tolerance {tolerance:.1f} mm). "
@@ -624,8 +641,9 @@ def _truing_finding(t: SeamTruing, tolerance: float) -> GeometryFinding:
     return GeometryFinding("seam_not_true", WARNING, message, panel=grew, seam=t.seam, amount_mm=amount)
 
 
-def seam_truing(block: Block, alteration: Alteration, *, tolerance_mm: float = TRUING_TOLERANCE_MM,
-                step_mm: float = SAMPLE_STEP_MM) -> tuple[SeamTruing, ...]:
+def seam_truing(
+    block: Block, alteration: Alteration, *, tolerance_mm: float = TRUING_TOLERANCE_MM, step_mm: float = SAMPLE_STEP_MM
+) -> tuple[SeamTruing, ...]:
     base_edges = _build(block, Alteration(shifts={}), None, step_mm)[1]
     after_edges = _build(block, alteration, None, step_mm)[1]
     return _truings(block, base_edges, after_edges, tolerance_mm)
@@ -668,12 +686,17 @@ def _self_intersection(outline: PanelOutline, poly: Polygon) -> list[GeometryFin
     match = _LOCATION.search(reason)
     y = float(match.group(2)) if match else None
     place = f" {_where(outline.level_y, y)}" if y is not None else ""
-    return [GeometryFinding(
-        "outline_self_intersects", ERROR,
-        f"The stitch line of {outline.name} crosses itself{place}. The shifts fold the panel over; "
-        "reduce them or spread them over other seams.",
-        panel=outline.name, level=_nearest_level(outline.level_y, y) if y is not None else None, y=y,
-    )]
+    return [
+        GeometryFinding(
+            "outline_self_intersects",
+            ERROR,
+            f"The stitch line of {outline.name} crosses itself{place}. The shifts fold the panel over; "
+            "reduce them or spread them over other seams.",
+            panel=outline.name,
+            level=_nearest_level(outline.level_y, y) if y is not None else None,
+            y=y,
+        )
+    ]
 
 
 def panel_widths(outline: PanelOutline) -> tuple[np.ndarray, np.ndarray]:
@@ -705,12 +728,18 @@ def _narrow(outline: PanelOutline, minimum: float) -> list[GeometryFinding]:
     else:
         severity = WARNING
         problem = f"{outline.name} is only {w:.0f} mm wide {where}"
-    return [GeometryFinding(
-        "panel_too_narrow", severity,
-        f"{problem} (at least {minimum:.0f} mm is needed to sew the seams and carry a bone). "
-        "Take the change from other seams or choose another base size.",
-        panel=outline.name, level=_nearest_level(outline.level_y, y), y=y, amount_mm=w,
-    )]
+    return [
+        GeometryFinding(
+            "panel_too_narrow",
+            severity,
+            f"{problem} (at least {minimum:.0f} mm is needed to sew the seams and carry a bone). "
+            "Take the change from other seams or choose another base size.",
+            panel=outline.name,
+            level=_nearest_level(outline.level_y, y),
+            y=y,
+            amount_mm=w,
+        )
+    ]
 
 
 def _turns(block: Block, panel: Panel, edges: dict[str, _Edge], limit: float) -> list[GeometryFinding]:
@@ -728,12 +757,19 @@ def _turns(block: Block, panel: Panel, edges: dict[str, _Edge], limit: float) ->
             if turn > limit:
                 seam = _seam_of(block, panel.name, edge)
                 line = f"the {seam} line" if seam else f"the {edge} edge"
-                found.append(GeometryFinding(
-                    "seam_turns_sharply", WARNING,
-                    f"On {panel.name}, {line} bends by {turn:.1f}° at the {_label(level)} (more than {limit:g}°). "
-                    "The seam will show a point there: spread the change over the neighbouring levels.",
-                    panel=panel.name, seam=seam, level=level, y=float(k[j][1]), amount_mm=None,
-                ))
+                found.append(
+                    GeometryFinding(
+                        "seam_turns_sharply",
+                        WARNING,
+                        f"On {panel.name}, {line} bends by {turn:.1f}° at the {_label(level)} (more than {limit:g}°). "
+                        "The seam will show a point there: spread the change over the neighbouring levels.",
+                        panel=panel.name,
+                        seam=seam,
+                        level=level,
+                        y=float(k[j][1]),
+                        amount_mm=None,
+                    )
+                )
     return found
 
 
@@ -742,12 +778,16 @@ def _bands(block: Block, alteration: Alteration) -> list[GeometryFinding]:
     for (upper, lower), change in alteration.bands.items():
         length = block.level_y(lower) - block.level_y(upper)
         if length + change <= 0:
-            found.append(GeometryFinding(
-                "band_too_short", ERROR,
-                f"Shortening the {_label(upper)} to {_label(lower)} band by {-change:.0f} mm leaves nothing of it "
-                f"(it is {length:.0f} mm long).",
-                level=upper, amount_mm=change,
-            ))
+            found.append(
+                GeometryFinding(
+                    "band_too_short",
+                    ERROR,
+                    f"Shortening the {_label(upper)} to {_label(lower)} band by {-change:.0f} mm leaves nothing of it "
+                    f"(it is {length:.0f} mm long).",
+                    level=upper,
+                    amount_mm=change,
+                )
+            )
     return found
 
 
@@ -757,17 +797,28 @@ def _fold(outline: PanelOutline) -> list[GeometryFinding]:
     xs = [x for x, _ in outline.left_line]
     if max(xs) - min(xs) <= 0.01:
         return []
-    return [GeometryFinding(
-        "fold_not_straight", ERROR,
-        f"{outline.name} is cut on the fold, but the alteration bends its centre front by "
-        f"{max(xs) - min(xs):.1f} mm. Shift the centre front by the same amount at every level.",
-        panel=outline.name, amount_mm=max(xs) - min(xs),
-    )]
+    return [
+        GeometryFinding(
+            "fold_not_straight",
+            ERROR,
+            f"{outline.name} is cut on the fold, but the alteration bends its centre front by "
+            f"{max(xs) - min(xs):.1f} mm. Shift the centre front by the same amount at every level.",
+            panel=outline.name,
+            amount_mm=max(xs) - min(xs),
+        )
+    ]
 
 
-def alter_pattern(block: Block, alteration: Alteration, *, seam_allowance_mm: float | None = None,
-                  tolerance_mm: float = TRUING_TOLERANCE_MM, min_width_mm: float = MIN_PANEL_WIDTH_MM,
-                  max_turn_degrees: float = MAX_TURN_DEGREES, step_mm: float = SAMPLE_STEP_MM) -> AlteredPattern:
+def alter_pattern(
+    block: Block,
+    alteration: Alteration,
+    *,
+    seam_allowance_mm: float | None = None,
+    tolerance_mm: float = TRUING_TOLERANCE_MM,
+    min_width_mm: float = MIN_PANEL_WIDTH_MM,
+    max_turn_degrees: float = MAX_TURN_DEGREES,
+    step_mm: float = SAMPLE_STEP_MM,
+) -> AlteredPattern:
     """Base and altered outlines, seam truing and every check, in one pass."""
     base, base_edges, _, _ = _base(block, seam_allowance_mm, step_mm)
     altered, after_edges, to_altered, polygons = _build(block, alteration, seam_allowance_mm, step_mm)
@@ -783,9 +834,14 @@ def alter_pattern(block: Block, alteration: Alteration, *, seam_allowance_mm: fl
         findings += [_truing_finding(t, tolerance_mm) for t in seams if not t.within_tolerance]
     level_y = dict(zip(block.level_names, (float(v) for v in to_altered([lv.y for lv in block.levels]))))
     return AlteredPattern(
-        block_name=block.name, size=block.size, base=base, altered=altered,
-        base_level_y={lv.name: lv.y for lv in block.levels}, level_y=level_y,
-        seams=seams, findings=tuple(findings),
+        block_name=block.name,
+        size=block.size,
+        base=base,
+        altered=altered,
+        base_level_y={lv.name: lv.y for lv in block.levels},
+        level_y=level_y,
+        seams=seams,
+        findings=tuple(findings),
     )
 
 

@@ -26,10 +26,14 @@ class Policy:
 
 POLICIES: dict[str, Policy] = {
     EVEN: Policy("Evenly over every free raw edge", weight=lambda seam, panel, level: 1.0),
-    SIDES_FIRST: Policy("Side seams first, then princess seams, then the rest",
-                        weight=lambda seam, panel, level: 1.0, tiers=("side", "princess", "other")),
-    BY_WIDTH: Policy("In proportion to each panel's width",
-                     weight=lambda seam, panel, level: max(panel.width(level), EPS)),
+    SIDES_FIRST: Policy(
+        "Side seams first, then princess seams, then the rest",
+        weight=lambda seam, panel, level: 1.0,
+        tiers=("side", "princess", "other"),
+    ),
+    BY_WIDTH: Policy(
+        "In proportion to each panel's width", weight=lambda seam, panel, level: max(panel.width(level), EPS)
+    ),
 }
 POLICY_CHOICES = [(name, policy.label) for name, policy in POLICIES.items()]
 

@@ -154,9 +154,15 @@ def _segments(outlines) -> list[np.ndarray]:
     return [np.asarray(o.stitch + o.stitch[:1]) for o in outlines]
 
 
-def build_figure(block: Block, alteration: Alteration, markers: Sequence[Marker] = (), unit: str = "cm",
-                 formatter: Callable[[float], str] | None = None, pattern: AlteredPattern | None = None,
-                 amounts: bool = True) -> tuple[Figure, tuple[Label, ...]]:
+def build_figure(
+    block: Block,
+    alteration: Alteration,
+    markers: Sequence[Marker] = (),
+    unit: str = "cm",
+    formatter: Callable[[float], str] | None = None,
+    pattern: AlteredPattern | None = None,
+    amounts: bool = True,
+) -> tuple[Figure, tuple[Label, ...]]:
     """The figure (lines and markers) and the labels to write over it; ``pattern`` saves
     recomputing the outlines when the caller has them.
 
@@ -186,14 +192,24 @@ def build_figure(block: Block, alteration: Alteration, markers: Sequence[Marker]
     row = y0 + 8
     legend_altered = np.array([[x0 + 3, row], [x0 + 23, row]])
     legend_base = np.array([[x0 + 3, row + 12], [x0 + 23, row + 12]])
-    ax.add_collection(LineCollection(base + [legend_base], colors=BASE_COLOUR, linewidths=1.2,
-                                     linestyles=(0, (4, 2.5))))
+    ax.add_collection(
+        LineCollection(base + [legend_base], colors=BASE_COLOUR, linewidths=1.2, linestyles=(0, (4, 2.5)))
+    )
     ax.add_collection(LineCollection(altered + [legend_altered], colors=ALTERED_COLOUR, linewidths=1.8))
     labels = [
         Label(x0 + 26, row, "altered", LABEL_FONT_PT, va="center"),
         Label(x0 + 26, row + 12, "base pattern", LABEL_FONT_PT, va="center"),
-        Label(x0 + 110, row, (f"Shifts in {unit}: + widens the panel at that edge, or lowers a level." if amounts
-                              else "The amounts are in the tables."), LABEL_FONT_PT, va="center"),
+        Label(
+            x0 + 110,
+            row,
+            (
+                f"Shifts in {unit}: + widens the panel at that edge, or lowers a level."
+                if amounts
+                else "The amounts are in the tables."
+            ),
+            LABEL_FONT_PT,
+            va="center",
+        ),
     ]
 
     level_lines = [np.array([[x0 + 2, y], [x1 - 2, y]]) for y in pattern.level_y.values()]
@@ -263,17 +279,41 @@ def _draw_markers(ax, pattern: AlteredPattern, markers: Sequence[Marker]) -> Non
         ys.append(y)
         # Below the edges' amounts, which hang from the level line on the right edge (a label is
         # SHIFT_FONT_PT tall: 9 pt at 80 mm to the figure inch is 10 mm of pattern).
-        ax.text(x, y + MARKER_DROP_MM, _typeset(text), fontsize=SHIFT_FONT_PT, ha="center", va="top", color=TEXT_COLOUR,
-                fontweight="bold", gid=f"{_MARKER_ID}label-{len(xs)}",
-                bbox={"boxstyle": "round,pad=0.2", "facecolor": "white", "edgecolor": WARNING_COLOUR, "linewidth": 1.2})
+        ax.text(
+            x,
+            y + MARKER_DROP_MM,
+            _typeset(text),
+            fontsize=SHIFT_FONT_PT,
+            ha="center",
+            va="top",
+            color=TEXT_COLOUR,
+            fontweight="bold",
+            gid=f"{_MARKER_ID}label-{len(xs)}",
+            bbox={"boxstyle": "round,pad=0.2", "facecolor": "white", "edgecolor": WARNING_COLOUR, "linewidth": 1.2},
+        )
     if xs:
-        ax.plot(xs, ys, linestyle="none", marker="^", markersize=10, color=WARNING_COLOUR,
-                markeredgecolor=TEXT_COLOUR, markeredgewidth=0.8, gid=f"{_MARKER_ID}points")
+        ax.plot(
+            xs,
+            ys,
+            linestyle="none",
+            marker="^",
+            markersize=10,
+            color=WARNING_COLOUR,
+            markeredgecolor=TEXT_COLOUR,
+            markeredgewidth=0.8,
+            gid=f"{_MARKER_ID}points",
+        )
 
 
-def preview_svg(block: Block, alteration: Alteration, markers: Sequence[Marker] = (), unit: str = "cm",
-                formatter: Callable[[float], str] | None = None, pattern: AlteredPattern | None = None,
-                amounts: bool = True) -> str:
+def preview_svg(
+    block: Block,
+    alteration: Alteration,
+    markers: Sequence[Marker] = (),
+    unit: str = "cm",
+    formatter: Callable[[float], str] | None = None,
+    pattern: AlteredPattern | None = None,
+    amounts: bool = True,
+) -> str:
     """The preview as SVG text; the same input gives the same bytes."""
     buf = io.BytesIO()
     with _RC_LOCK, matplotlib.rc_context(_RC):
@@ -309,7 +349,6 @@ def _labels_svg(fig: Figure, labels: Sequence[Label]) -> str:
     return "".join(out)
 
 
-
 CUTTING_COLOUR = OKABE_ITO["bluish_green"]
 
 
@@ -339,8 +378,9 @@ def block_svg(block: Block, markers: Sequence[Marker] = ()) -> str:
         row = y0 + 8
         legend_stitch = np.array([[x0 + 3, row], [x0 + 23, row]])
         legend_cut = np.array([[x0 + 3, row + 12], [x0 + 23, row + 12]])
-        ax.add_collection(LineCollection(cutting + [legend_cut], colors=CUTTING_COLOUR, linewidths=1.0,
-                                         linestyles=(0, (4, 2.5))))
+        ax.add_collection(
+            LineCollection(cutting + [legend_cut], colors=CUTTING_COLOUR, linewidths=1.0, linestyles=(0, (4, 2.5)))
+        )
         ax.add_collection(LineCollection(stitch + [legend_stitch], colors=ALTERED_COLOUR, linewidths=1.8))
         grains = [np.asarray(o.grainline) for o in pattern.base]
         ax.add_collection(LineCollection(grains, colors=TEXT_COLOUR, linewidths=0.8))
@@ -348,8 +388,13 @@ def block_svg(block: Block, markers: Sequence[Marker] = ()) -> str:
         ax.add_collection(LineCollection(level_lines, colors=LEVEL_COLOUR, linewidths=0.8, linestyles=(0, (1, 2))))
         labels = [
             Label(x0 + 26, row, "stitch line", LABEL_FONT_PT, va="center"),
-            Label(x0 + 26, row + 12, f"cutting line ({block.seam_allowance_mm / 10:g} cm seam allowance; none along "
-                                     "a bound edge or a fold)", LABEL_FONT_PT, va="center"),
+            Label(
+                x0 + 26,
+                row + 12,
+                f"cutting line ({block.seam_allowance_mm / 10:g} cm seam allowance; none along a bound edge or a fold)",
+                LABEL_FONT_PT,
+                va="center",
+            ),
         ]
         for name, y in pattern.level_y.items():
             labels.append(Label(x0 + 3, y - 1.5, level_names[name], LABEL_FONT_PT, va="bottom"))

@@ -21,15 +21,20 @@ def plan_table(result: Allotment, block: Block) -> str:
     head = f"{'Level':<20}{'Body':>9}{'Ease':>9}{'Target':>9}{'Pattern':>9}{'Diff':>9}{'Seams':>9}{'Left':>9}"
     lines += [head, "-" * len(head)]
     for lv in result.levels:
+
         def f(v, signed=False):
             return "-" if v is None else format_length(v, unit, signed=signed)
+
         lines.append(
             f"{LEVEL_LABELS.get(lv.level, lv.level):<20}{f(lv.body):>9}{f(lv.ease, True):>9}{f(lv.target):>9}"
             f"{f(lv.pattern):>9}{f(lv.difference, True):>9}{f(lv.allotted + lv.centre_front, True):>9}{f(lv.residual, True):>9}"
         )
     if result.centre_front_shift_mm:
-        lines += ["", f"Centre front: {direction(result.centre_front_shift_mm)} "
-                      f"{format_length(abs(result.centre_front_shift_mm), unit)} {unit} at the centre-front edge, every level."]
+        lines += [
+            "",
+            f"Centre front: {direction(result.centre_front_shift_mm)} "
+            f"{format_length(abs(result.centre_front_shift_mm), unit)} {unit} at the centre-front edge, every level.",
+        ]
     lines += ["", "Raw edges (one body half):"]
     levels = block.level_names
     head = f"{'Seam':<22}{'Edge of':<16}" + "".join(f"{LEVEL_LABELS.get(lv, lv)[:9]:>10}" for lv in levels)
@@ -49,8 +54,10 @@ def plan_table(result: Allotment, block: Block) -> str:
     if result.bands:
         lines += ["", "Lengths between levels:"]
         for b in result.bands:
-            lines.append(f"  {LEVEL_LABELS[b.upper]} to {LEVEL_LABELS[b.lower]}: {direction(b.change_mm).replace('let out', 'lengthen').replace('take in', 'shorten')} "
-                         f"{format_length(abs(b.change_mm), unit)} {unit}")
+            lines.append(
+                f"  {LEVEL_LABELS[b.upper]} to {LEVEL_LABELS[b.lower]}: {direction(b.change_mm).replace('let out', 'lengthen').replace('take in', 'shorten')} "
+                f"{format_length(abs(b.change_mm), unit)} {unit}"
+            )
     if result.findings:
         lines += ["", "Please read:"]
         for finding in result.findings:

@@ -17,8 +17,9 @@ def steps_of(value: float, step: float) -> int:
     return int(math.copysign(math.floor(scaled + 0.5 + EPS), value)) if scaled else 0
 
 
-def round_to_step(values: list[float], step: float, caps: list[float | None] | None = None,
-                  steps: int | None = None) -> list[float]:
+def round_to_step(
+    values: list[float], step: float, caps: list[float | None] | None = None, steps: int | None = None
+) -> list[float]:
     """Round ``values`` (all of one sign) to multiples of ``step``, summing to the rounded total
     (or to ``steps`` whole steps, the total's own rounding down or up, when the caller rounded it).
 
@@ -49,7 +50,7 @@ def round_to_step(values: list[float], step: float, caps: list[float | None] | N
             counts[i] += 1
         missing -= min(missing, len(preferred))
     while missing < 0:
-        for i in sorted(order, key=lambda i: -counts[i])[: -missing]:
+        for i in sorted(order, key=lambda i: -counts[i])[:-missing]:
             counts[i] -= 1
         missing = target - sum(counts)
     return [sign * c * step for c in counts]

@@ -32,7 +32,11 @@ MAP_HEIGHT_MM = 95.0
 # Colours of the drawn lines; black prints on every printer, the stitch
 # line is told apart by its dashes as well as its colour.
 CUT_COLOUR, STITCH_COLOUR, MARK_COLOUR, FRAME_COLOUR, OVERLAP_FILL = (
-    "#000000", "#0072B2", "#000000", "#808080", "#EBEBEB",
+    "#000000",
+    "#0072B2",
+    "#000000",
+    "#808080",
+    "#EBEBEB",
 )
 CUT_WIDTH_MM, STITCH_WIDTH_MM, FRAME_WIDTH_MM = 0.4, 0.3, 0.2
 STITCH_DASH = "3 1.5"
@@ -83,21 +87,34 @@ def _thin(points, tolerance_mm: float = DRAW_TOLERANCE_MM) -> tuple:
 def lay_out(pattern: AlteredPattern) -> Sheet:
     """The altered panels side by side, centre front first, tops level."""
     layout = sheet_layout(pattern.altered, gap_mm=PANEL_GAP_MM, margin_mm=SHEET_MARGIN_MM)
-    pieces = tuple(SheetPiece(o, dx, dy, _thin(o.cutting), _thin(o.stitch))
-                   for o, (dx, dy) in zip(pattern.altered, layout.offsets))
+    pieces = tuple(
+        SheetPiece(o, dx, dy, _thin(o.cutting), _thin(o.stitch)) for o, (dx, dy) in zip(pattern.altered, layout.offsets)
+    )
     return Sheet(pieces, layout.width_mm, layout.height_mm)
 
 
 def _line(parent, d: str, colour: str, width: float, **extra) -> ET.Element:
-    attrs = {"d": d, "fill": "none", "stroke": colour, "stroke-width": _n(width),
-             "stroke-linejoin": "round", "stroke-linecap": "round"}
+    attrs = {
+        "d": d,
+        "fill": "none",
+        "stroke": colour,
+        "stroke-width": _n(width),
+        "stroke-linejoin": "round",
+        "stroke-linecap": "round",
+    }
     attrs.update({k.replace("_", "-"): v for k, v in extra.items()})
     return ET.SubElement(parent, "path", attrs)
 
 
 def _text(parent, x, y, text, size, *, anchor="start", weight="normal", colour="#000000", rotate=None, cls=None):
-    attrs = {"x": _n(x), "y": _n(y), "font-size": _n(size), "font-family": FONT_FAMILY, "fill": colour,
-             "text-anchor": anchor}
+    attrs = {
+        "x": _n(x),
+        "y": _n(y),
+        "font-size": _n(size),
+        "font-family": FONT_FAMILY,
+        "fill": colour,
+        "text-anchor": anchor,
+    }
     if weight != "normal":
         attrs["font-weight"] = weight
     if rotate is not None:
@@ -113,8 +130,14 @@ def _draw_piece(parent, piece: SheetPiece) -> None:
     o = piece.outline
     g = ET.SubElement(parent, "g", {"class": "panel", "transform": f"translate({_n(piece.dx)} {_n(piece.dy)})"})
     _line(g, _path(piece.cutting, True), CUT_COLOUR, CUT_WIDTH_MM, **{"class": "cut"})
-    _line(g, _path(piece.stitch, True), STITCH_COLOUR, STITCH_WIDTH_MM, stroke_dasharray=STITCH_DASH,
-          **{"class": "stitch"})
+    _line(
+        g,
+        _path(piece.stitch, True),
+        STITCH_COLOUR,
+        STITCH_WIDTH_MM,
+        stroke_dasharray=STITCH_DASH,
+        **{"class": "stitch"},
+    )
     notches = "".join(_path(segment, False) for segment in notch_segments(o))
     if notches:
         _line(g, notches, MARK_COLOUR, NOTCH_WIDTH_MM, **{"class": "notch"})
@@ -138,8 +161,13 @@ def _label_centre(y: float, half: float, grid: TileGrid, low: float, high: float
     candidates = []
     for row in range(grid.rows):
         top = row * grid.step_y_mm + (grid.overlap_mm if row else 0.0) + half + LABEL_CLEARANCE_MM
-        bottom = row * grid.step_y_mm + grid.printable_height_mm - (
-            grid.overlap_mm if row < grid.rows - 1 else 0.0) - half - LABEL_CLEARANCE_MM
+        bottom = (
+            row * grid.step_y_mm
+            + grid.printable_height_mm
+            - (grid.overlap_mm if row < grid.rows - 1 else 0.0)
+            - half
+            - LABEL_CLEARANCE_MM
+        )
         top, bottom = max(top, low + half), min(bottom, high - half)
         if top <= bottom:
             candidates.append(min(max(y, top), bottom))
@@ -189,23 +217,41 @@ def _alignment_marks(parent, grid: TileGrid, area=None) -> None:
             marks += [(col * grid.step_x_mm + share * grid.printable_width_mm, y) for share in (0.3, 0.7)]
     if area is not None:
         x0, y0, x1, y1 = area
-        marks = [(x, y) for x, y in marks if x0 - MARK_RADIUS_MM <= x <= x1 + MARK_RADIUS_MM
-                 and y0 - MARK_RADIUS_MM <= y <= y1 + MARK_RADIUS_MM]
+        marks = [
+            (x, y)
+            for x, y in marks
+            if x0 - MARK_RADIUS_MM <= x <= x1 + MARK_RADIUS_MM and y0 - MARK_RADIUS_MM <= y <= y1 + MARK_RADIUS_MM
+        ]
     arm = MARK_RADIUS_MM + 1
-    d = "".join(f"M{_n(x - arm)} {_n(y)}L{_n(x + arm)} {_n(y)}M{_n(x)} {_n(y - arm)}L{_n(x)} {_n(y + arm)}"
-                for x, y in marks)
+    d = "".join(
+        f"M{_n(x - arm)} {_n(y)}L{_n(x + arm)} {_n(y)}M{_n(x)} {_n(y - arm)}L{_n(x)} {_n(y + arm)}" for x, y in marks
+    )
     if d:
         _line(parent, d, MARK_COLOUR, 0.25, **{"class": "align"})
     for x, y in marks:
-        ET.SubElement(parent, "circle", {"cx": _n(x), "cy": _n(y), "r": _n(MARK_RADIUS_MM), "fill": "none",
-                                         "stroke": MARK_COLOUR, "stroke-width": "0.25"})
+        ET.SubElement(
+            parent,
+            "circle",
+            {
+                "cx": _n(x),
+                "cy": _n(y),
+                "r": _n(MARK_RADIUS_MM),
+                "fill": "none",
+                "stroke": MARK_COLOUR,
+                "stroke-width": "0.25",
+            },
+        )
 
 
 def neighbours(grid: TileGrid, row: int, column: int) -> str:
     """'left A1, right A3, below B2': the tiles that share an edge with this one."""
     found = []
-    for word, r, c in (("above", row - 1, column), ("left", row, column - 1), ("right", row, column + 1),
-                       ("below", row + 1, column)):
+    for word, r, c in (
+        ("above", row - 1, column),
+        ("left", row, column - 1),
+        ("right", row, column + 1),
+        ("below", row + 1, column),
+    ):
         if 0 <= r < grid.rows and 0 <= c < grid.columns:
             found.append(f"{word} {tile_label(r, c)}")
     return ", ".join(found)
@@ -215,13 +261,33 @@ def _overlap_strips(parent, grid: TileGrid) -> None:
     height = grid.rows * grid.step_y_mm + grid.overlap_mm
     width = grid.columns * grid.step_x_mm + grid.overlap_mm
     for x in grid.column_joins():
-        ET.SubElement(parent, "rect", {"class": "overlap", "x": _n(x - grid.overlap_mm / 2), "y": "0",
-                                       "width": _n(grid.overlap_mm), "height": _n(height),
-                                       "fill": OVERLAP_FILL, "stroke": "none"})
+        ET.SubElement(
+            parent,
+            "rect",
+            {
+                "class": "overlap",
+                "x": _n(x - grid.overlap_mm / 2),
+                "y": "0",
+                "width": _n(grid.overlap_mm),
+                "height": _n(height),
+                "fill": OVERLAP_FILL,
+                "stroke": "none",
+            },
+        )
     for y in grid.row_joins():
-        ET.SubElement(parent, "rect", {"class": "overlap", "x": "0", "y": _n(y - grid.overlap_mm / 2),
-                                       "width": _n(width), "height": _n(grid.overlap_mm),
-                                       "fill": OVERLAP_FILL, "stroke": "none"})
+        ET.SubElement(
+            parent,
+            "rect",
+            {
+                "class": "overlap",
+                "x": "0",
+                "y": _n(y - grid.overlap_mm / 2),
+                "width": _n(width),
+                "height": _n(grid.overlap_mm),
+                "fill": OVERLAP_FILL,
+                "stroke": "none",
+            },
+        )
 
 
 def _overlaps(a, b) -> bool:
@@ -231,11 +297,16 @@ def _overlaps(a, b) -> bool:
 
 
 def _svg_root(width_mm: float, height_mm: float, viewbox: tuple[float, float, float, float], cls: str) -> ET.Element:
-    return ET.Element("svg", {
-        "xmlns": "http://www.w3.org/2000/svg", "class": cls,
-        "width": f"{_n(width_mm)}mm", "height": f"{_n(height_mm)}mm",
-        "viewBox": " ".join(_n(v) for v in viewbox),
-    })
+    return ET.Element(
+        "svg",
+        {
+            "xmlns": "http://www.w3.org/2000/svg",
+            "class": cls,
+            "width": f"{_n(width_mm)}mm",
+            "height": f"{_n(height_mm)}mm",
+            "viewBox": " ".join(_n(v) for v in viewbox),
+        },
+    )
 
 
 def tile_svg(sheet: Sheet, grid: TileGrid, row: int, column: int) -> str:
@@ -249,29 +320,56 @@ def tile_svg(sheet: Sheet, grid: TileGrid, row: int, column: int) -> str:
         if _overlaps(piece.bounds, area):
             _draw_piece(root, piece)
     _alignment_marks(root, grid, area)
-    ET.SubElement(root, "rect", {"class": "frame", "x": _n(tile.x_mm), "y": _n(tile.y_mm), "width": _n(w),
-                                 "height": _n(h), "fill": "none", "stroke": FRAME_COLOUR,
-                                 "stroke-width": _n(FRAME_WIDTH_MM)})
+    ET.SubElement(
+        root,
+        "rect",
+        {
+            "class": "frame",
+            "x": _n(tile.x_mm),
+            "y": _n(tile.y_mm),
+            "width": _n(w),
+            "height": _n(h),
+            "fill": "none",
+            "stroke": FRAME_COLOUR,
+            "stroke-width": _n(FRAME_WIDTH_MM),
+        },
+    )
     return ET.tostring(root, encoding="unicode")
 
 
 def square_svg(side_mm: float, name: str, divisions: int = 10) -> str:
     """A test square of ``side_mm``, labelled, with ticks along its top edge at each of ``divisions``."""
     pad = SQUARE_PAD_MM
-    root = _svg_root(side_mm + 2 * pad, side_mm + 2 * pad, (-pad, -pad, side_mm + 2 * pad, side_mm + 2 * pad),
-                     "test-square")
-    ET.SubElement(root, "rect", {"class": "square", "x": "0", "y": "0", "width": _n(side_mm), "height": _n(side_mm),
-                                 "fill": "none", "stroke": "#000000", "stroke-width": "0.3"})
-    ticks = "".join(f"M{_n(side_mm * i / divisions)} 0L{_n(side_mm * i / divisions)} {5 if 2 * i == divisions else 3}"
-                    for i in range(1, divisions))
+    root = _svg_root(
+        side_mm + 2 * pad, side_mm + 2 * pad, (-pad, -pad, side_mm + 2 * pad, side_mm + 2 * pad), "test-square"
+    )
+    ET.SubElement(
+        root,
+        "rect",
+        {
+            "class": "square",
+            "x": "0",
+            "y": "0",
+            "width": _n(side_mm),
+            "height": _n(side_mm),
+            "fill": "none",
+            "stroke": "#000000",
+            "stroke-width": "0.3",
+        },
+    )
+    ticks = "".join(
+        f"M{_n(side_mm * i / divisions)} 0L{_n(side_mm * i / divisions)} {5 if 2 * i == divisions else 3}"
+        for i in range(1, divisions)
+    )
     _line(root, ticks, "#000000", 0.2)
     _text(root, side_mm / 2, side_mm / 2 - 3, f"{name} test square", 5, anchor="middle", weight="bold")
     _text(root, side_mm / 2, side_mm / 2 + 5, f"must measure {name} each way", 3.5, anchor="middle")
     return ET.tostring(root, encoding="unicode")
 
 
-def map_svg(sheet: Sheet, grid: TileGrid, max_width_mm: float = MAP_WIDTH_MM,
-            max_height_mm: float = MAP_HEIGHT_MM) -> str:
+def map_svg(
+    sheet: Sheet, grid: TileGrid, max_width_mm: float = MAP_WIDTH_MM, max_height_mm: float = MAP_HEIGHT_MM
+) -> str:
     """The assembly map: the whole sheet small, with every tile's place and name."""
     total_w = grid.columns * grid.step_x_mm + grid.overlap_mm
     total_h = grid.rows * grid.step_y_mm + grid.overlap_mm
@@ -281,11 +379,28 @@ def map_svg(sheet: Sheet, grid: TileGrid, max_width_mm: float = MAP_WIDTH_MM,
         g = ET.SubElement(root, "g", {"transform": f"translate({_n(piece.dx)} {_n(piece.dy)})"})
         _line(g, _path(_thin(piece.cutting, 0.5), True), "#606060", 0.3 / scale)
     for tile in grid.tiles():
-        ET.SubElement(root, "rect", {"x": _n(tile.x_mm), "y": _n(tile.y_mm), "width": _n(tile.width_mm),
-                                     "height": _n(tile.height_mm), "fill": "none", "stroke": "#000000",
-                                     "stroke-width": _n(0.3 / scale)})
-        _text(root, tile.x_mm + tile.width_mm / 2, tile.y_mm + tile.height_mm / 2 + 1.5 / scale, tile.label,
-              4.5 / scale, anchor="middle", weight="bold")
+        ET.SubElement(
+            root,
+            "rect",
+            {
+                "x": _n(tile.x_mm),
+                "y": _n(tile.y_mm),
+                "width": _n(tile.width_mm),
+                "height": _n(tile.height_mm),
+                "fill": "none",
+                "stroke": "#000000",
+                "stroke-width": _n(0.3 / scale),
+            },
+        )
+        _text(
+            root,
+            tile.x_mm + tile.width_mm / 2,
+            tile.y_mm + tile.height_mm / 2 + 1.5 / scale,
+            tile.label,
+            4.5 / scale,
+            anchor="middle",
+            weight="bold",
+        )
     return ET.tostring(root, encoding="unicode")
 
 

@@ -26,15 +26,17 @@ class PaperSize:
     label: str
     width_mm: float  # portrait
     height_mm: float
+    size_text: str = ""  # as the paper is sold
+    css_name: str = ""  # CSS Paged Media's name for the page size
 
 
 # ISO 216: A4 is 210 x 297 mm.  ANSI/ASME Y14.1: US Letter is 8.5 x 11 in,
 # which is 215.9 x 279.4 mm at 25.4 mm to the inch (exact, 1959 agreement).
 PAPER_SIZES = {
-    "a4": PaperSize("a4", "A4", 210.0, 297.0),
-    "letter": PaperSize("letter", "US Letter", 215.9, 279.4),
+    "a4": PaperSize("a4", "A4", 210.0, 297.0, "210 × 297 mm", "A4"),
+    "letter": PaperSize("letter", "US Letter", 215.9, 279.4, "8.5 × 11 in", "letter"),
 }
-PAPER_CHOICES = [(paper.code, paper.label) for paper in PAPER_SIZES.values()]
+PAPER_CHOICES = [(paper.code, f"{paper.label} ({paper.size_text})") for paper in PAPER_SIZES.values()]
 
 # Most desktop printers cannot print the outer 4-6 mm of a page (common
 # practice, from memory); 10 mm keeps every mark on the paper.
@@ -137,8 +139,15 @@ class TileGrid:
     def tile(self, row: int, column: int) -> Tile:
         if not (0 <= row < self.rows and 0 <= column < self.columns):
             raise TilingError(f"There is no tile at row {row}, column {column}.")
-        return Tile(row, column, tile_label(row, column), column * self.step_x_mm, row * self.step_y_mm,
-                    self.printable_width_mm, self.printable_height_mm)
+        return Tile(
+            row,
+            column,
+            tile_label(row, column),
+            column * self.step_x_mm,
+            row * self.step_y_mm,
+            self.printable_width_mm,
+            self.printable_height_mm,
+        )
 
     def tiles(self) -> tuple[Tile, ...]:
         """Row by row from the top, each row from the left: the order the pages print in."""
@@ -153,8 +162,15 @@ class TileGrid:
         return tuple((r + 1) * self.step_y_mm + self.overlap_mm / 2 for r in range(self.rows - 1))
 
 
-def grid_for(width_mm: float, height_mm: float, paper: PaperSize, orientation: str, *,
-             margin_mm: float = PAGE_MARGIN_MM, overlap_mm: float = OVERLAP_MM) -> TileGrid:
+def grid_for(
+    width_mm: float,
+    height_mm: float,
+    paper: PaperSize,
+    orientation: str,
+    *,
+    margin_mm: float = PAGE_MARGIN_MM,
+    overlap_mm: float = OVERLAP_MM,
+) -> TileGrid:
     """The grid for one orientation of the page."""
     if not (width_mm > 0 and height_mm > 0) or not (math.isfinite(width_mm) and math.isfinite(height_mm)):
         raise TilingError("A sheet to tile must have a positive, finite width and height.")
@@ -163,27 +179,41 @@ def grid_for(width_mm: float, height_mm: float, paper: PaperSize, orientation: s
     page_w, page_h = page_size(paper, orientation)
     printable_w, printable_h = page_w - 2 * margin_mm, page_h - 2 * margin_mm
     return TileGrid(
-        paper=paper, orientation=orientation, page_width_mm=page_w, page_height_mm=page_h,
-        margin_mm=margin_mm, overlap_mm=overlap_mm, sheet_width_mm=width_mm, sheet_height_mm=height_mm,
+        paper=paper,
+        orientation=orientation,
+        page_width_mm=page_w,
+        page_height_mm=page_h,
+        margin_mm=margin_mm,
+        overlap_mm=overlap_mm,
+        sheet_width_mm=width_mm,
+        sheet_height_mm=height_mm,
         rows=tiles_needed(height_mm, printable_h, overlap_mm),
         columns=tiles_needed(width_mm, printable_w, overlap_mm),
     )
 
 
-def tile_grid(width_mm: float, height_mm: float, paper: PaperSize | str, *,
-              margin_mm: float = PAGE_MARGIN_MM, overlap_mm: float = OVERLAP_MM) -> TileGrid:
+def tile_grid(
+    width_mm: float,
+    height_mm: float,
+    paper: PaperSize | str,
+    *,
+    margin_mm: float = PAGE_MARGIN_MM,
+    overlap_mm: float = OVERLAP_MM,
+) -> TileGrid:
     """The grid that needs fewer pages: portrait or landscape (portrait when equal)."""
     if isinstance(paper, str):
         paper = paper_size(paper)
-    grids = [grid_for(width_mm, height_mm, paper, o, margin_mm=margin_mm, overlap_mm=overlap_mm)
-             for o in (PORTRAIT, LANDSCAPE)]
+    grids = [
+        grid_for(width_mm, height_mm, paper, o, margin_mm=margin_mm, overlap_mm=overlap_mm)
+        for o in (PORTRAIT, LANDSCAPE)
+    ]
     return min(grids, key=lambda g: g.count)
 
 
 # --- one sheet for large-format printing ------------------------------------------------
 
 # ISO 216: A0 is 841 x 1189 mm.
-A0 = PaperSize("a0", "A0", 841.0, 1189.0)
+A0 = PaperSize("a0", "A0", 841.0, 1189.0, "841 × 1189 mm", "A0")
 
 
 @dataclass(frozen=True)
@@ -211,7 +241,9 @@ def large_format(code: str) -> LargeFormat:
         raise TilingError(f"Unknown large format {code!r}; use {', '.join(LARGE_FORMATS)}.") from None
 
 
-def shelf_rows(sizes: list[tuple[float, float]], width_mm: float, gap_mm: float) -> tuple[list[tuple[float, float]], float, float]:
+def shelf_rows(
+    sizes: list[tuple[float, float]], width_mm: float, gap_mm: float
+) -> tuple[list[tuple[float, float]], float, float]:
     """Boxes in order, left to right in rows no wider than ``width_mm``, rows ``gap_mm`` apart.
 
     Returns the top-left corner of each box and the width and height used.
@@ -248,8 +280,14 @@ class LargeSheet:
         return self.page_height_mm - 2 * self.margin_mm
 
 
-def large_sheet(fmt: LargeFormat | str, sizes: list[tuple[float, float]], *, header_mm: float,
-                gap_mm: float = 10.0, margin_mm: float = PAGE_MARGIN_MM) -> LargeSheet:
+def large_sheet(
+    fmt: LargeFormat | str,
+    sizes: list[tuple[float, float]],
+    *,
+    header_mm: float,
+    gap_mm: float = 10.0,
+    margin_mm: float = PAGE_MARGIN_MM,
+) -> LargeSheet:
     """Where each box goes on one large sheet, below a header.
 
     A fixed sheet lies portrait when everything fits so, else landscape, else
@@ -261,8 +299,15 @@ def large_sheet(fmt: LargeFormat | str, sizes: list[tuple[float, float]], *, hea
     if fmt.height_mm is None:
         offsets, _, used_h = shelf_rows(sizes, fmt.width_mm - 2 * margin_mm, gap_mm)
         length = math.ceil(header_mm + gap_mm + used_h + 2 * margin_mm - 1e-9)
-        return LargeSheet(fmt, PORTRAIT, fmt.width_mm, float(length), margin_mm, header_mm,
-                          tuple((x, header_mm + gap_mm + y) for x, y in offsets))
+        return LargeSheet(
+            fmt,
+            PORTRAIT,
+            fmt.width_mm,
+            float(length),
+            margin_mm,
+            header_mm,
+            tuple((x, header_mm + gap_mm + y) for x, y in offsets),
+        )
     for orientation in (PORTRAIT, LANDSCAPE):
         page_w, page_h = page_size(PaperSize(fmt.code, fmt.label, fmt.width_mm, fmt.height_mm), orientation)
         try:
@@ -270,6 +315,13 @@ def large_sheet(fmt: LargeFormat | str, sizes: list[tuple[float, float]], *, hea
         except TilingError:
             continue
         if header_mm + gap_mm + used_h <= page_h - 2 * margin_mm + 1e-9:
-            return LargeSheet(fmt, orientation, page_w, page_h, margin_mm, header_mm,
-                              tuple((x, header_mm + gap_mm + y) for x, y in offsets))
+            return LargeSheet(
+                fmt,
+                orientation,
+                page_w,
+                page_h,
+                margin_mm,
+                header_mm,
+                tuple((x, header_mm + gap_mm + y) for x, y in offsets),
+            )
     raise TilingError(f"The pieces do not fit on one {fmt.label.split(',')[0]} sheet; print them on a plotter roll.")

@@ -63,7 +63,9 @@ def test_it_sends_anonymous_visitors_to_the_login(client, name, url):
     assert response.status_code == 302, f"{name} ({url}) answered {response.status_code}"
     location = urlsplit(response["Location"])
     # The admin's own pages send visitors to the admin's sign-in form.
-    assert location.path in (reverse("login"), reverse("admin:login")), f"{name} ({url}) redirects to {response['Location']}"
+    assert location.path in (reverse("login"), reverse("admin:login")), (
+        f"{name} ({url}) redirects to {response['Location']}"
+    )
 
 
 @pytest.mark.django_db

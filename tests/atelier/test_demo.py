@@ -10,10 +10,10 @@ from atelier.roles import FITTER, role_of
 from fittings.models import Client, Measurement, MeasurementSession
 from fittings.services.demo import load_demo_atelier
 from patterns import demo
-from patterns.models import BasePattern, SizeRun
-from patterns.services import save_block
 from patterns.core.allot import Body, PlanOptions, allot
 from patterns.demo import CORSET_SIZES, bodice_block, corset_run
+from patterns.models import BasePattern, SizeRun
+from patterns.services import save_block
 from tests.conftest import DEMO_PASSWORD
 
 pytestmark = pytest.mark.django_db
@@ -23,9 +23,17 @@ def test_it_loads_three_clients_and_seven_patterns(demo_atelier):
     assert Client.objects.count() == 3
     assert BasePattern.objects.count() == 7
     run = SizeRun.objects.get()
-    assert list(run.patterns.order_by("size_order").values_list("size_label", flat=True)) == ["6", "8", "10", "12", "14"]
+    assert list(run.patterns.order_by("size_order").values_list("size_label", flat=True)) == [
+        "6",
+        "8",
+        "10",
+        "12",
+        "14",
+    ]
     assert set(BasePattern.objects.filter(size_run=None).values_list("garment", flat=True)) == {
-        "bodice", "underbust corset"}
+        "bodice",
+        "underbust corset",
+    }
     assert MeasurementSession.objects.count() == 4
     assert Measurement.objects.count() == sum(len(s["values"]) for c in demo.DEMO_CLIENTS for s in c["sessions"])
 
@@ -41,7 +49,9 @@ def test_it_stores_inch_readings_exactly(demo_atelier):
 
 def test_it_keeps_the_order_of_the_sessions(demo_atelier):
     kinds = list(
-        MeasurementSession.objects.filter(client__reference="WF-0102").order_by("taken_on").values_list("kind", flat=True)
+        MeasurementSession.objects.filter(client__reference="WF-0102")
+        .order_by("taken_on")
+        .values_list("kind", flat=True)
     )
     assert kinds == ["first", "toile"]
 
@@ -106,6 +116,8 @@ def test_it_draws_every_demo_panel_down_past_every_level(block):
     for level in block.levels:
         for p in block.panels:
             assert max(p.top_left.y, p.top_right.y) <= level.y <= min(p.bottom_left.y, p.bottom_right.y), (
-                level.name, p.name)
+                level.name,
+                p.name,
+            )
     result = allot(block, Body(girths=dict(CORSET_SIZES["12"])), PlanOptions())
     assert "level_beyond_panel" not in [f.code for f in result.findings]

@@ -105,8 +105,9 @@ def test_it_keeps_one_active_pattern_per_name_and_size(bodice_pattern):
         save_block(demo.bodice_block())
     # ... and the database refuses it too.
     with pytest.raises(IntegrityError), transaction.atomic():
-        BasePattern.objects.create(name=bodice_pattern.name, size_label=bodice_pattern.size_label,
-                                   garment=bodice_pattern.garment)
+        BasePattern.objects.create(
+            name=bodice_pattern.name, size_label=bodice_pattern.size_label, garment=bodice_pattern.garment
+        )
     BasePattern.objects.filter(pk=bodice_pattern.pk).update(is_active=False)
     assert save_block(demo.bodice_block()).is_active
 
@@ -151,7 +152,12 @@ def test_it_keeps_boning_channels_marked_inside_panels():
     from patterns.core.block import ChannelMark
 
     block = demo.corset_block("10")
-    marked = replace(block, name="Marked corset", channels=(
-        ChannelMark(panel="Front", fraction=0.5, name="middle bone"),
-        ChannelMark(panel="Centre back", edge="right", offset_mm=12.0)))
+    marked = replace(
+        block,
+        name="Marked corset",
+        channels=(
+            ChannelMark(panel="Front", fraction=0.5, name="middle bone"),
+            ChannelMark(panel="Centre back", edge="right", offset_mm=12.0),
+        ),
+    )
     assert block_for(save_block(marked)).channels == marked.channels

@@ -74,6 +74,8 @@ def test_it_refuses_unknown_role_names():
 
 def test_it_puts_the_name_and_role_in_every_template(fitter_user, settings):
     assert atelier_context(request_by(fitter_user)) == {
-        "ATELIER_NAME": settings.ATELIER_NAME, "role": FITTER, "role_label": "Fitter",
+        "ATELIER_NAME": settings.ATELIER_NAME,
+        "role": FITTER,
+        "role_label": "Fitter",
     }
     assert atelier_context(request_by(AnonymousUser()))["role"] is None

@@ -20,14 +20,22 @@ print(json.dumps({expr: eval(expr) for expr in sys.argv[1:]}, default=str))
 
 
 def clean_env(**env):
-    base = {k: v for k, v in os.environ.items() if not k.startswith("ATELIER_") and k not in ("DATABASE_URL", "DJANGO_SETTINGS_MODULE")}
+    base = {
+        k: v
+        for k, v in os.environ.items()
+        if not k.startswith("ATELIER_") and k not in ("DATABASE_URL", "DJANGO_SETTINGS_MODULE")
+    }
     return {**base, **env}
 
 
 def run_python(env, *args):
     return subprocess.run(
-        [sys.executable, *args], cwd=settings.BASE_DIR, env=clean_env(**env),
-        capture_output=True, text=True, timeout=120,
+        [sys.executable, *args],
+        cwd=settings.BASE_DIR,
+        env=clean_env(**env),
+        capture_output=True,
+        text=True,
+        timeout=120,
     )
 
 
@@ -70,11 +78,15 @@ def test_it_switches_to_postgresql_with_database_url(tmp_path):
 
 def test_it_keeps_debug_off_unless_asked(tmp_path):
     assert settings_with({"ATELIER_DATA_DIR": str(tmp_path)}, "settings.DEBUG") == {"settings.DEBUG": False}
-    assert settings_with({"ATELIER_DATA_DIR": str(tmp_path), "ATELIER_DEBUG": "1"}, "settings.DEBUG") == {"settings.DEBUG": True}
+    assert settings_with({"ATELIER_DATA_DIR": str(tmp_path), "ATELIER_DEBUG": "1"}, "settings.DEBUG") == {
+        "settings.DEBUG": True
+    }
 
 
 def test_it_refuses_an_unclear_switch(tmp_path):
-    result = run_python({"ATELIER_DATA_DIR": str(tmp_path), "ATELIER_DEBUG": "maybe"}, "-c", PRINT_SETTINGS, "settings.DEBUG")
+    result = run_python(
+        {"ATELIER_DATA_DIR": str(tmp_path), "ATELIER_DEBUG": "maybe"}, "-c", PRINT_SETTINGS, "settings.DEBUG"
+    )
     assert result.returncode != 0
     assert "ATELIER_DEBUG must be 1 or 0" in result.stderr
 
@@ -112,26 +124,45 @@ def test_it_reads_hosts_time_zone_and_name(tmp_path):
             "ATELIER_TIME_ZONE": "Europe/Paris",
             "ATELIER_NAME": "Maison Exemple",
         },
-        "settings.ALLOWED_HOSTS", "settings.TIME_ZONE", "settings.USE_TZ", "settings.ATELIER_NAME",
+        "settings.ALLOWED_HOSTS",
+        "settings.TIME_ZONE",
+        "settings.USE_TZ",
+        "settings.ATELIER_NAME",
     )
     assert list(values.values()) == [
-        ["atelier.example.org", "fitting-room.local", "192.168.1.20"], "Europe/Paris", True, "Maison Exemple",
+        ["atelier.example.org", "fitting-room.local", "192.168.1.20"],
+        "Europe/Paris",
+        True,
+        "Maison Exemple",
     ]
 
 
 def test_it_has_safe_defaults_for_hosts_and_name(tmp_path):
-    values = settings_with({"ATELIER_DATA_DIR": str(tmp_path)}, "settings.ALLOWED_HOSTS", "settings.TIME_ZONE", "settings.ATELIER_NAME")
+    values = settings_with(
+        {"ATELIER_DATA_DIR": str(tmp_path)}, "settings.ALLOWED_HOSTS", "settings.TIME_ZONE", "settings.ATELIER_NAME"
+    )
     assert list(values.values()) == [["localhost", "127.0.0.1", "[::1]"], "Europe/London", "Wrenfield Stays & Bodices"]
 
 
 def test_it_runs_tasks_at_once_unless_told_to_queue_them(tmp_path):
     expr = "settings.TASKS['default']['BACKEND']"
-    assert settings_with({"ATELIER_DATA_DIR": str(tmp_path)}, expr)[expr] == "django.tasks.backends.immediate.ImmediateBackend"
-    assert settings_with({"ATELIER_DATA_DIR": str(tmp_path), "ATELIER_TASKS": "db"}, expr)[expr] == "django_tasks_db.DatabaseBackend"
+    assert (
+        settings_with({"ATELIER_DATA_DIR": str(tmp_path)}, expr)[expr]
+        == "django.tasks.backends.immediate.ImmediateBackend"
+    )
+    assert (
+        settings_with({"ATELIER_DATA_DIR": str(tmp_path), "ATELIER_TASKS": "db"}, expr)[expr]
+        == "django_tasks_db.DatabaseBackend"
+    )
 
 
 def test_it_turns_on_https_protections_when_served_over_https(tmp_path):
-    exprs = ("settings.SECURE_SSL_REDIRECT", "settings.SESSION_COOKIE_SECURE", "settings.CSRF_COOKIE_SECURE", "settings.SECURE_HSTS_SECONDS")
+    exprs = (
+        "settings.SECURE_SSL_REDIRECT",
+        "settings.SESSION_COOKIE_SECURE",
+        "settings.CSRF_COOKIE_SECURE",
+        "settings.SECURE_HSTS_SECONDS",
+    )
     plain = settings_with({"ATELIER_DATA_DIR": str(tmp_path)}, *exprs)
     https = settings_with({"ATELIER_DATA_DIR": str(tmp_path), "ATELIER_HTTPS": "1"}, *exprs)
     assert list(plain.values()) == [False, False, False, 0]

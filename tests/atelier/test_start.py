@@ -96,7 +96,10 @@ def test_it_warms_the_task_worker_up_before_it_takes_jobs(monkeypatch):
 
     done = []
     monkeypatch.setattr(task_worker, "warm_up", lambda: done.append("warm-up"))
-    monkeypatch.setattr(task_worker, "call_command",
-                        lambda name, **options: done.append((name, options["interval"], options["startup_delay"])))
+    monkeypatch.setattr(
+        task_worker,
+        "call_command",
+        lambda name, **options: done.append((name, options["interval"], options["startup_delay"])),
+    )
     call_command("task_worker")
     assert done == ["warm-up", ("db_worker", 0.25, False)]

@@ -16,9 +16,8 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
 from patterns.core.allot import Body, PlanOptions, allot  # noqa: E402
-
-from patterns.core.policies import SIDES_FIRST
 from patterns.core.block import BACK, FRONT, Block, Level, Panel, Point, Seam  # noqa: E402
+from patterns.core.policies import SIDES_FIRST
 
 
 def big_block(panels=12, levels=9) -> Block:
@@ -27,13 +26,28 @@ def big_block(panels=12, levels=9) -> Block:
     out, x = [], 0.0
     for i in range(panels):
         w = {n: 40 + (i * 7 + j * 3) % 25 for j, n in enumerate(names)}
-        out.append(Panel(f"Panel {i + 1}", FRONT if i < panels // 2 else BACK,
-                         {n: x for n in names}, {n: x + w[n] for n in names},
-                         Point(x, -10), Point(x + w[names[0]], -10), Point(x, 450), Point(x + w[names[-1]], 450)))
+        out.append(
+            Panel(
+                f"Panel {i + 1}",
+                FRONT if i < panels // 2 else BACK,
+                {n: x for n in names},
+                {n: x + w[n] for n in names},
+                Point(x, -10),
+                Point(x + w[names[0]], -10),
+                Point(x, 450),
+                Point(x + w[names[-1]], 450),
+            )
+        )
         x += 100
     seams = tuple(
-        Seam(f"Seam {i + 1}", "side" if i == panels // 2 - 1 else ("princess" if i % 2 else "other"),
-             a.name, b.name, frozenset(names[2:] if i == 0 else names), 15.0)
+        Seam(
+            f"Seam {i + 1}",
+            "side" if i == panels // 2 - 1 else ("princess" if i % 2 else "other"),
+            a.name,
+            b.name,
+            frozenset(names[2:] if i == 0 else names),
+            15.0,
+        )
         for i, (a, b) in enumerate(zip(out, out[1:]))
     )
     return Block("Bench block", "B", "bench", lv, tuple(out), seams)

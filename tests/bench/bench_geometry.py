@@ -40,19 +40,36 @@ def twelve_panel_block() -> Block:
         left = {lv: centre - w / 2 for lv, w in widths.items()}
         right = {lv: centre + w / 2 for lv, w in widths.items()}
         top, bottom = 10.0 + 3 * i, levels[-1].y + 15.0
-        panels.append(Panel(
-            f"Panel {i + 1}", FRONT if i < 6 else BACK, left, right,
-            Point(left[names[0]], top), Point(right[names[0]], top + 3),
-            Point(left[names[-1]], bottom), Point(right[names[-1]], bottom),
-        ))
+        panels.append(
+            Panel(
+                f"Panel {i + 1}",
+                FRONT if i < 6 else BACK,
+                left,
+                right,
+                Point(left[names[0]], top),
+                Point(right[names[0]], top + 3),
+                Point(left[names[-1]], bottom),
+                Point(right[names[-1]], bottom),
+            )
+        )
         origin += widest + 50.0
     panels = [
-        Panel(p.name, p.side, p.left, p.right, p.top_left, Point(p.top_right.x, nxt.top_left.y), p.bottom_left,
-              p.bottom_right)
+        Panel(
+            p.name,
+            p.side,
+            p.left,
+            p.right,
+            p.top_left,
+            Point(p.top_right.x, nxt.top_left.y),
+            p.bottom_left,
+            p.bottom_right,
+        )
         for p, nxt in zip(panels, panels[1:] + panels[-1:])
     ]
-    seams = tuple(Seam(f"Seam {i + 1}", "side" if i == 5 else "other", a.name, b.name, frozenset(names))
-                  for i, (a, b) in enumerate(zip(panels, panels[1:])))
+    seams = tuple(
+        Seam(f"Seam {i + 1}", "side" if i == 5 else "other", a.name, b.name, frozenset(names))
+        for i, (a, b) in enumerate(zip(panels, panels[1:]))
+    )
     return Block("Bench block, twelve panels", "10", "bench", levels, tuple(panels), seams)
 
 
@@ -136,8 +153,10 @@ def main() -> None:
         }
         times = timed_together(cases, args.runs)
         floor_med = statistics.median(times["floor: bare Figure, same rc, as SVG"])
-        print(f"{len(block.panels)} panels: {len(lines)} lines, {sum(lines)} points, {labels} labels; "
-              "ratio = median / floor (same rc) median")
+        print(
+            f"{len(block.panels)} panels: {len(lines)} lines, {sum(lines)} points, {labels} labels; "
+            "ratio = median / floor (same rc) median"
+        )
         for name, values in times.items():
             med = statistics.median(values)
             print(f"  {name:44} {med:8.1f} {p95(values):8.1f} {med / floor_med:6.2f}")

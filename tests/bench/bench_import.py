@@ -49,12 +49,24 @@ def main():
     plain = dataclasses.replace(block, panels=tuple(dataclasses.replace(p, curves=None) for p in block.panels))
     alteration = Alteration({p.name: {lv: PanelShift(-3.0, -4.0) for lv in block.level_names} for p in block.panels})
     rows = [
-        ("read SVG", lambda: import_block(svg, "x.svg", ImportOptions(front_panels=2)), "svgelements parse alone",
-         lambda: list(svgelements.SVG.parse(io.BytesIO(svg)).elements())),
-        ("read DXF", lambda: import_block(dxf, "x.dxf", ImportOptions(front_panels=2)), "ezdxf read alone",
-         lambda: ezdxf.read(io.StringIO(dxf.decode()))),
-        ("alter drawn block", lambda: alter_pattern(block, alteration), "same block, no drawn lines",
-         lambda: alter_pattern(plain, alteration)),
+        (
+            "read SVG",
+            lambda: import_block(svg, "x.svg", ImportOptions(front_panels=2)),
+            "svgelements parse alone",
+            lambda: list(svgelements.SVG.parse(io.BytesIO(svg)).elements()),
+        ),
+        (
+            "read DXF",
+            lambda: import_block(dxf, "x.dxf", ImportOptions(front_panels=2)),
+            "ezdxf read alone",
+            lambda: ezdxf.read(io.StringIO(dxf.decode())),
+        ),
+        (
+            "alter drawn block",
+            lambda: alter_pattern(block, alteration),
+            "same block, no drawn lines",
+            lambda: alter_pattern(plain, alteration),
+        ),
     ]
     print(f"{'what':<20}{'ms':>9}   {'floor':<28}{'ms':>9}{'ratio':>8}")
     for name, fn, floor_name, floor in rows:

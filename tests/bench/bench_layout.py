@@ -29,7 +29,12 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
 from patterns.core.block import Alteration  # noqa: E402
 from patterns.core.layout import (  # noqa: E402
-    DEFAULT_GAP_MM, SOLVER, cut_pieces, layout_problems, shelf_layout, solver_layout,
+    DEFAULT_GAP_MM,
+    SOLVER,
+    cut_pieces,
+    layout_problems,
+    shelf_layout,
+    solver_layout,
 )
 from patterns.core.outline import alter_block  # noqa: E402
 from patterns.demo import bodice_block, corset_block, drawn_underbust_block  # noqa: E402
@@ -38,9 +43,12 @@ TARGET = 0.10
 
 
 def blocks():
-    return {"corset size 10 (6 panels)": corset_block("10"), "corset size 14 (6 panels)": corset_block("14"),
-            "bodice (4 panels, centre front on the fold)": bodice_block(),
-            "underbust, drawn (4 panels)": drawn_underbust_block()}
+    return {
+        "corset size 10 (6 panels)": corset_block("10"),
+        "corset size 14 (6 panels)": corset_block("14"),
+        "bodice (4 panels, centre front on the fold)": bodice_block(),
+        "underbust, drawn (4 panels)": drawn_underbust_block(),
+    }
 
 
 def run(budget: int, widths: list[float], gap: float, seed: int) -> list[dict]:
@@ -56,25 +64,36 @@ def run(budget: int, widths: list[float], gap: float, seed: int) -> list[dict]:
             solved = solver_layout(pieces, width, gap, budget_s=budget, seed=seed)
             assert not layout_problems(shelf) and not layout_problems(solved), name
             one_row = shelf.length_mm <= tallest + 1e-6
-            rows.append({
-                "block": name, "width_mm": width, "pieces": len(shelf.placements),
-                "shelf_length_mm": round(shelf.length_mm, 1), "shelf_utilisation": round(shelf.utilisation, 4),
-                "shelf_seconds": round(shelf_s, 4),
-                "solver_method": solved.method, "solver_note": solved.note,
-                "solver_length_mm": round(solved.length_mm, 1), "solver_utilisation": round(solved.utilisation, 4),
-                "solver_seconds": round(solved.seconds, 2),
-                "improvement": round(solved.utilisation / shelf.utilisation - 1, 4),
-                # No layout is shorter than its tallest piece, nor than the pieces' area spread over the width.
-                "bound_mm": round(max(tallest, area / width), 1),
-                "one_row": one_row,
-                "met": (not one_row) and solved.method == SOLVER and solved.utilisation >= (1 + TARGET) * shelf.utilisation,
-            })
+            rows.append(
+                {
+                    "block": name,
+                    "width_mm": width,
+                    "pieces": len(shelf.placements),
+                    "shelf_length_mm": round(shelf.length_mm, 1),
+                    "shelf_utilisation": round(shelf.utilisation, 4),
+                    "shelf_seconds": round(shelf_s, 4),
+                    "solver_method": solved.method,
+                    "solver_note": solved.note,
+                    "solver_length_mm": round(solved.length_mm, 1),
+                    "solver_utilisation": round(solved.utilisation, 4),
+                    "solver_seconds": round(solved.seconds, 2),
+                    "improvement": round(solved.utilisation / shelf.utilisation - 1, 4),
+                    # No layout is shorter than its tallest piece, nor than the pieces' area spread over the width.
+                    "bound_mm": round(max(tallest, area / width), 1),
+                    "one_row": one_row,
+                    "met": (not one_row)
+                    and solved.method == SOLVER
+                    and solved.utilisation >= (1 + TARGET) * shelf.utilisation,
+                }
+            )
             r = rows[-1]
-            print(f"{name:44} {width / 10:6.0f} cm  {r['pieces']:3}  rows {r['shelf_length_mm'] / 10:6.1f} cm "
-                  f"{100 * r['shelf_utilisation']:5.1f} %  solver {r['solver_length_mm'] / 10:6.1f} cm "
-                  f"{100 * r['solver_utilisation']:5.1f} %  {100 * r['improvement']:+6.1f} %  "
-                  f"{r['solver_seconds']:5.1f} s  bound {r['bound_mm'] / 10:5.1f} cm  {'one row' if one_row else ('met' if r['met'] else 'not met')}",
-                  flush=True)
+            print(
+                f"{name:44} {width / 10:6.0f} cm  {r['pieces']:3}  rows {r['shelf_length_mm'] / 10:6.1f} cm "
+                f"{100 * r['shelf_utilisation']:5.1f} %  solver {r['solver_length_mm'] / 10:6.1f} cm "
+                f"{100 * r['solver_utilisation']:5.1f} %  {100 * r['improvement']:+6.1f} %  "
+                f"{r['solver_seconds']:5.1f} s  bound {r['bound_mm'] / 10:5.1f} cm  {'one row' if one_row else ('met' if r['met'] else 'not met')}",
+                flush=True,
+            )
     return rows
 
 
@@ -87,18 +106,24 @@ def main(argv=None):
     parser.add_argument("--json", help="also write the figures to this file")
     args = parser.parse_args(argv)
     widths = [float(w) for w in args.widths.split(",")]
-    print(f"{os.cpu_count()} cores, {platform.machine()}, Python {platform.python_version()}; "
-          f"gap {args.gap:g} mm, budget {args.budget} s per layout, seed {args.seed}")
-    print(f"{'block':44} {'width':>9}  {'n':>3}  {'rows: length, used':>23}  {'solver: length, used':>25}  "
-          f"{'better':>7}  {'time':>7}")
+    print(
+        f"{os.cpu_count()} cores, {platform.machine()}, Python {platform.python_version()}; "
+        f"gap {args.gap:g} mm, budget {args.budget} s per layout, seed {args.seed}"
+    )
+    print(
+        f"{'block':44} {'width':>9}  {'n':>3}  {'rows: length, used':>23}  {'solver: length, used':>25}  "
+        f"{'better':>7}  {'time':>7}"
+    )
     rows = run(args.budget, widths, args.gap, args.seed)
     counted = [r for r in rows if not r["one_row"]]
     met = [r for r in counted if r["met"]]
     if counted:
         mean = sum(r["improvement"] for r in counted) / len(counted)
-        print(f"\nWhere the rows need more than one row: solver better by {100 * min(r['improvement'] for r in counted):+.1f} % "
-              f"to {100 * max(r['improvement'] for r in counted):+.1f} % (mean {100 * mean:+.1f} %); "
-              f"target +{100 * TARGET:.0f} % met in {len(met)} of {len(counted)}.")
+        print(
+            f"\nWhere the rows need more than one row: solver better by {100 * min(r['improvement'] for r in counted):+.1f} % "
+            f"to {100 * max(r['improvement'] for r in counted):+.1f} % (mean {100 * mean:+.1f} %); "
+            f"target +{100 * TARGET:.0f} % met in {len(met)} of {len(counted)}."
+        )
     if args.json:
         Path(args.json).write_text(json.dumps({"budget_s": args.budget, "gap_mm": args.gap, "rows": rows}, indent=1))
 

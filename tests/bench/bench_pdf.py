@@ -45,16 +45,16 @@ import pypdf  # noqa: E402  (only to count the pages; installed with the test ex
 
 django.setup()
 
+from fittings import previews  # noqa: E402
 from fittings.printing.cutting_sheet import cutting_sheet_html  # noqa: E402
 from fittings.printing.data import DocumentData, altered_pattern  # noqa: E402
 from fittings.printing.engine import html_to_pdf  # noqa: E402
 from fittings.printing.registry import render_documents  # noqa: E402
 from fittings.printing.work_order import work_order_html  # noqa: E402
-from fittings import previews  # noqa: E402
-from patterns.core.defaults import default_options  # noqa: E402
 from patterns import demo  # noqa: E402
 from patterns.core.allot import allot  # noqa: E402
 from patterns.core.block import BACK, CB_LACED, CF_BUSK, FRONT, Block, Panel, Point, Seam  # noqa: E402
+from patterns.core.defaults import default_options  # noqa: E402
 from patterns.core.fitting import body_from_measurements  # noqa: E402
 
 MINIMAL_HTML = "<!doctype html><title>x</title><p style='font-family: DejaVu Sans'>One line on one page.</p>"
@@ -96,20 +96,41 @@ def twelve_panel_block() -> Block:
         left = {lv: centre - w / 2 for lv, w in widths.items()}
         right = {lv: centre + w / 2 for lv, w in widths.items()}
         top, bottom = 10.0 * (i % 4), base.level_y(last) + 20 - 5 * (i % 3)
-        panels.append(Panel(
-            name=f"Panel {i + 1}", side=FRONT if i < count // 2 else BACK, left=left, right=right,
-            top_left=Point(left[first], top), top_right=Point(right[first], top),
-            bottom_left=Point(left[last], bottom), bottom_right=Point(right[last], bottom),
-        ))
+        panels.append(
+            Panel(
+                name=f"Panel {i + 1}",
+                side=FRONT if i < count // 2 else BACK,
+                left=left,
+                right=right,
+                top_left=Point(left[first], top),
+                top_right=Point(right[first], top),
+                bottom_left=Point(left[last], bottom),
+                bottom_right=Point(right[last], bottom),
+            )
+        )
         x += widest + 50
     levels = frozenset(lv.name for lv in base.levels)
     seams = tuple(
-        Seam(f"Seam {i + 1}", "side" if i == count // 2 - 1 else ("princess" if i % 2 else "other"),
-             a.name, b.name, levels, 15.0)
+        Seam(
+            f"Seam {i + 1}",
+            "side" if i == count // 2 - 1 else ("princess" if i % 2 else "other"),
+            a.name,
+            b.name,
+            levels,
+            15.0,
+        )
         for i, (a, b) in enumerate(zip(panels, panels[1:]))
     )
-    return Block("Bench corset, twelve panels", "10", "overbust corset", base.levels, tuple(panels), seams,
-                 centre_front=CF_BUSK, centre_back=CB_LACED)
+    return Block(
+        "Bench corset, twelve panels",
+        "10",
+        "overbust corset",
+        base.levels,
+        tuple(panels),
+        seams,
+        centre_front=CF_BUSK,
+        centre_back=CB_LACED,
+    )
 
 
 def data_for(block: Block) -> DocumentData:
@@ -117,10 +138,21 @@ def data_for(block: Block) -> DocumentData:
     options = default_options(block, "cm")
     result = allot(block, body_from_measurements(values), options)
     return DocumentData(
-        atelier_name=demo.ATELIER_NAME, client_label="WF-0101", garment="Bench corset", fitting_date=date(2025, 1, 1),
-        measured_by="Bench", revision_number=1, revision_status="issued", issued_at=None, issued_by="",
-        based_on=None, revision_url="https://atelier.example/plans/1/revisions/1/",
-        measurements=values, block=block, options=options, result=result,
+        atelier_name=demo.ATELIER_NAME,
+        client_label="WF-0101",
+        garment="Bench corset",
+        fitting_date=date(2025, 1, 1),
+        measured_by="Bench",
+        revision_number=1,
+        revision_status="issued",
+        issued_at=None,
+        issued_by="",
+        based_on=None,
+        revision_url="https://atelier.example/plans/1/revisions/1/",
+        measurements=values,
+        block=block,
+        options=options,
+        result=result,
     )
 
 
@@ -151,8 +183,10 @@ def timed(fn, runs):
         wall.append(time.perf_counter() - w)
         cpu.append(cpu_seconds() - c)
     return {
-        "wall_median_s": statistics.median(wall), "wall_p95_s": percentile(wall, 0.95),
-        "cpu_median_s": statistics.median(cpu), "cpu_p95_s": percentile(cpu, 0.95),
+        "wall_median_s": statistics.median(wall),
+        "wall_p95_s": percentile(wall, 0.95),
+        "cpu_median_s": statistics.median(cpu),
+        "cpu_p95_s": percentile(cpu, 0.95),
     }
 
 
@@ -166,9 +200,15 @@ def timed_alternately(fns: dict, runs):
             fn()
             samples[name][0].append(time.perf_counter() - w)
             samples[name][1].append(cpu_seconds() - c)
-    return {name: {"wall_median_s": statistics.median(wall), "wall_p95_s": percentile(wall, 0.95),
-                   "cpu_median_s": statistics.median(cpu), "cpu_p95_s": percentile(cpu, 0.95)}
-            for name, (wall, cpu) in samples.items()}
+    return {
+        name: {
+            "wall_median_s": statistics.median(wall),
+            "wall_p95_s": percentile(wall, 0.95),
+            "cpu_median_s": statistics.median(cpu),
+            "cpu_p95_s": percentile(cpu, 0.95),
+        }
+        for name, (wall, cpu) in samples.items()
+    }
 
 
 def peak_mib(fn):
@@ -193,15 +233,22 @@ def main(argv=None):
         print_both(data, args.paper)
 
     minimal_default_call()
-    rows = {"minimal_page": timed(lambda: html_to_pdf(MINIMAL_HTML), max(20, args.runs)),
-            "minimal_page_default_call": timed(minimal_default_call, max(20, args.runs))}
+    rows = {
+        "minimal_page": timed(lambda: html_to_pdf(MINIMAL_HTML), max(20, args.runs)),
+        "minimal_page_default_call": timed(minimal_default_call, max(20, args.runs)),
+    }
     for name, data in cases.items():
         work_order, cutting_sheet = print_both(data, args.paper)
         pages = same_html(data, args.paper)
         bare_weasyprint(pages)  # warm
         # The floor and the print take turns, run by run.
-        both = timed_alternately({"floor": lambda pages=pages: bare_weasyprint(pages),
-                                  "print": lambda data=data: print_both(data, args.paper)}, args.runs)
+        both = timed_alternately(
+            {
+                "floor": lambda pages=pages: bare_weasyprint(pages),
+                "print": lambda data=data: print_both(data, args.paper),
+            },
+            args.runs,
+        )
         floor = rows[f"{name}_same_html_bare"] = both["floor"]
         floor["pages"] = sum(len(pypdf.PdfReader(io.BytesIO(pdf)).pages) for pdf in bare_weasyprint(pages))
         rows[name] = both["print"]
@@ -212,7 +259,8 @@ def main(argv=None):
         for key in ("wall", "cpu"):
             rows[name][f"ratio_{key}_median"] = rows[name][f"{key}_median_s"] / rows["minimal_page"][f"{key}_median_s"]
             rows[name][f"ratio_{key}_median_default_call"] = (
-                rows[name][f"{key}_median_s"] / rows["minimal_page_default_call"][f"{key}_median_s"])
+                rows[name][f"{key}_median_s"] / rows["minimal_page_default_call"][f"{key}_median_s"]
+            )
     # One-sheet large formats of the six-panel corset, drawn when a print's page asks for them.
     from fittings.workroom import render_large_sheet
     from patterns.core.tiling import LARGE_FORMATS
@@ -228,31 +276,43 @@ def main(argv=None):
         print(json.dumps(rows, indent=2))
         return rows
     print(f"paper {args.paper}, {args.runs} runs, load average {rows['load_average']:.2f} on {os.cpu_count()} cores")
-    print(f"{'what':<44}{'pages':>6}{'wall med':>10}{'wall p95':>10}{'cpu med':>10}{'cpu p95':>10}"
-          f"{'x same':>8}{'x same cpu':>11}{'x minimal':>11}{'peak MiB':>10}")
-    for name, label in (("minimal_page", "minimal one-page document"),
-                        ("minimal_page_default_call", "the same, WeasyPrint's plain call"),
-                        ("six_panel_same_html_bare", "6-panel: same HTML, bare WeasyPrint (floor)"),
-                        ("six_panel", "6-panel corset: both documents, the app"),
-                        ("twelve_panel_same_html_bare", "12-panel: same HTML, bare WeasyPrint (floor)"),
-                        ("twelve_panel", "12-panel block: both documents, the app")):
+    print(
+        f"{'what':<44}{'pages':>6}{'wall med':>10}{'wall p95':>10}{'cpu med':>10}{'cpu p95':>10}"
+        f"{'x same':>8}{'x same cpu':>11}{'x minimal':>11}{'peak MiB':>10}"
+    )
+    for name, label in (
+        ("minimal_page", "minimal one-page document"),
+        ("minimal_page_default_call", "the same, WeasyPrint's plain call"),
+        ("six_panel_same_html_bare", "6-panel: same HTML, bare WeasyPrint (floor)"),
+        ("six_panel", "6-panel corset: both documents, the app"),
+        ("twelve_panel_same_html_bare", "12-panel: same HTML, bare WeasyPrint (floor)"),
+        ("twelve_panel", "12-panel block: both documents, the app"),
+    ):
         r = rows[name]
         same = f"{r['ratio_wall_median_same_html']:.2f}x" if "ratio_wall_median_same_html" in r else ""
         same_cpu = f"{r['ratio_cpu_median_same_html']:.2f}x" if "ratio_cpu_median_same_html" in r else ""
         ratio = f"{r['ratio_wall_median']:.1f}x" if "ratio_wall_median" in r else ""
         peak = f"{r['peak_python_mib']:.1f}" if "peak_python_mib" in r else ""
-        print(f"{label:<44}{r.get('pages', 1):>6}{r['wall_median_s']:>10.3f}{r['wall_p95_s']:>10.3f}"
-              f"{r['cpu_median_s']:>10.3f}{r['cpu_p95_s']:>10.3f}{same:>8}{same_cpu:>11}{ratio:>11}{peak:>10}")
+        print(
+            f"{label:<44}{r.get('pages', 1):>6}{r['wall_median_s']:>10.3f}{r['wall_p95_s']:>10.3f}"
+            f"{r['cpu_median_s']:>10.3f}{r['cpu_p95_s']:>10.3f}{same:>8}{same_cpu:>11}{ratio:>11}{peak:>10}"
+        )
     for fmt in ("a0", "roll-914", "roll-610"):
         r = rows[f"large_{fmt}"]
-        print(f"{'6-panel, all pieces on one sheet, ' + fmt:<44}{1:>6}{r['wall_median_s']:>10.3f}{r['wall_p95_s']:>10.3f}"
-              f"{r['cpu_median_s']:>10.3f}{r['cpu_p95_s']:>10.3f}")
-    print(f"peak resident size of the process: {rows['max_rss_mib']:.0f} MiB; of the largest child drawing a "
-          f"cutting sheet: {rows['max_rss_children_mib']:.0f} MiB (mostly pages shared with the parent)")
+        print(
+            f"{'6-panel, all pieces on one sheet, ' + fmt:<44}{1:>6}{r['wall_median_s']:>10.3f}{r['wall_p95_s']:>10.3f}"
+            f"{r['cpu_median_s']:>10.3f}{r['cpu_p95_s']:>10.3f}"
+        )
+    print(
+        f"peak resident size of the process: {rows['max_rss_mib']:.0f} MiB; of the largest child drawing a "
+        f"cutting sheet: {rows['max_rss_children_mib']:.0f} MiB (mostly pages shared with the parent)"
+    )
     six, twelve = rows["six_panel"], rows["twelve_panel"]
-    print(f"targets: 6-panel <= 1.3x the same HTML by bare WeasyPrint: {six['ratio_wall_median_same_html']:.2f}x wall "
-          f"({six['wall_median_s']:.3f} s against {rows['six_panel_same_html_bare']['wall_median_s']:.3f} s), "
-          f"{six['ratio_cpu_median_same_html']:.2f}x CPU; 12-panel < 1.5 s: {twelve['wall_median_s']:.3f} s wall")
+    print(
+        f"targets: 6-panel <= 1.3x the same HTML by bare WeasyPrint: {six['ratio_wall_median_same_html']:.2f}x wall "
+        f"({six['wall_median_s']:.3f} s against {rows['six_panel_same_html_bare']['wall_median_s']:.3f} s), "
+        f"{six['ratio_cpu_median_same_html']:.2f}x CPU; 12-panel < 1.5 s: {twelve['wall_median_s']:.3f} s wall"
+    )
     return rows
 
 

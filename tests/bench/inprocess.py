@@ -32,21 +32,27 @@ def main(argv=None):
     from django.test import RequestFactory
     from django_htmx.middleware import HtmxDetails
 
+    from fittings import views_plans
+    from fittings.models import Plan
     from tests.bench import urls as floors
     from tests.bench.run_all import recompute_data, summary
     from tests.bench.seed import plan_form_data
-    from fittings import views_plans
-    from fittings.models import Plan
 
     user = get_user_model().objects.get(username="demo")
     factory = RequestFactory(HTTP_HOST="127.0.0.1")
-    plans = {p.garment: {"pk": p.pk, "form": plan_form_data(p)}
-             for p in Plan.objects.filter(garment__in=["Summer wedding corset", "Daily-wear corset"])}
+    plans = {
+        p.garment: {"pk": p.pk, "form": plan_form_data(p)}
+        for p in Plan.objects.filter(garment__in=["Summer wedding corset", "Daily-wear corset"])
+    }
 
     def request(method, path, data=None, htmx=False):
         if method == "POST":
-            req = factory.post(path, urlencode(data), content_type="application/x-www-form-urlencoded",
-                               **({"HTTP_HX_REQUEST": "true"} if htmx else {}))
+            req = factory.post(
+                path,
+                urlencode(data),
+                content_type="application/x-www-form-urlencoded",
+                **({"HTTP_HX_REQUEST": "true"} if htmx else {}),
+            )
         else:
             req = factory.get(path)
         req.user = user
@@ -60,7 +66,8 @@ def main(argv=None):
     }
     for garment, plan in plans.items():
         cases[f"recompute:{garment}"] = lambda i, plan=plan: views_plans.plan_recompute(
-            request("POST", f"/plans/{plan['pk']}/recompute/", recompute_data(plan, i), htmx=True), plan["pk"])
+            request("POST", f"/plans/{plan['pk']}/recompute/", recompute_data(plan, i), htmx=True), plan["pk"]
+        )
     for fn in cases.values():
         for i in range(5):
             assert fn(i).status_code == 200

@@ -113,14 +113,20 @@ def run_load(port, sessions, fixtures, seconds=60, previews=False):
     every = [ms for values in times.values() for ms in values]
     error_count = sum(len(v) for v in errors.values())
     return {
-        "tablets": len(sessions), "seconds": took, "with_previews": previews,
-        "requests": len(every) + error_count, "errors": error_count,
+        "tablets": len(sessions),
+        "seconds": took,
+        "with_previews": previews,
+        "requests": len(every) + error_count,
+        "errors": error_count,
         "requests_per_s": (len(every) + error_count) / took,
-        "all": {"median": statistics.median(every), "p95": _percentile(every, 0.95), "max": max(every)} if every else {},
+        "all": {"median": statistics.median(every), "p95": _percentile(every, 0.95), "max": max(every)}
+        if every
+        else {},
         "by_kind": {
             kind: {"n": len(v), "median": statistics.median(v), "p95": _percentile(v, 0.95), "max": max(v)}
             for kind, v in sorted(times.items())
         },
         "error_samples": {kind: v[:3] for kind, v in errors.items()},
-        "think_s": THINK_S, "typing_pause_s": TYPING_PAUSE_S,
+        "think_s": THINK_S,
+        "typing_pause_s": TYPING_PAUSE_S,
     }

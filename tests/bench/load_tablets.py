@@ -52,8 +52,13 @@ from tests.bench.tablet import LOOPBACK, Tablet, form_fields  # noqa: E402
 
 PASSWORD = "load-tablets-pass-7"  # every login made in the throwaway data folder
 # Girths in cm a tablet types, each drawn from a range a body can measure.
-READINGS = {"bust_girth": (80, 120), "underbust_girth": (65, 100), "waist_girth": (55, 100),
-            "abdomen_girth": (75, 115), "hip_girth": (85, 130)}
+READINGS = {
+    "bust_girth": (80, 120),
+    "underbust_girth": (65, 100),
+    "waist_girth": (55, 100),
+    "abdomen_girth": (75, 115),
+    "hip_girth": (85, 130),
+}
 
 SETUP = r"""
 import json, os, sys
@@ -170,13 +175,24 @@ def sign_in(port, username, password):
         csrf = re.search(r"csrftoken=([^;]+)", page.getheader("Set-Cookie", ""))[1]
         token = re.search(r'name="csrfmiddlewaretoken" value="([^"]+)"', html)[1]
         body = urlencode({"username": username, "password": password, "csrfmiddlewaretoken": token})
-        connection.request("POST", "/login/", body=body, headers={
-            "Host": f"{LOOPBACK}:{port}", "Cookie": f"csrftoken={csrf}",
-            "Content-Type": "application/x-www-form-urlencoded"})
+        connection.request(
+            "POST",
+            "/login/",
+            body=body,
+            headers={
+                "Host": f"{LOOPBACK}:{port}",
+                "Cookie": f"csrftoken={csrf}",
+                "Content-Type": "application/x-www-form-urlencoded",
+            },
+        )
         reply = connection.getresponse()
         reply.read()
-        cookies = dict(re.findall(r"(sessionid|csrftoken)=([^;]+)", ", ".join(
-            value for name, value in reply.getheaders() if name.lower() == "set-cookie")))
+        cookies = dict(
+            re.findall(
+                r"(sessionid|csrftoken)=([^;]+)",
+                ", ".join(value for name, value in reply.getheaders() if name.lower() == "set-cookie"),
+            )
+        )
         if reply.status != 302 or "sessionid" not in cookies:
             raise RuntimeError(f"{username} could not sign in (HTTP {reply.status}).")
         return cookies["sessionid"], cookies.get("csrftoken", csrf)
@@ -217,8 +233,15 @@ class Run:
     def __init__(self, port, fixture, figures, until, think, seed):
         self.port, self.fixture, self.figures, self.until = port, fixture, figures, until
         self.think, self.rng = think, random.Random(seed)
-        self.claims = {"username": fixture["username"], "client": fixture["client"], "plan": fixture["plan"],
-                       "edit_session": fixture["edit_session"], "sessions": [], "edits": [], "revisions": []}
+        self.claims = {
+            "username": fixture["username"],
+            "client": fixture["client"],
+            "plan": fixture["plan"],
+            "edit_session": fixture["edit_session"],
+            "sessions": [],
+            "edits": [],
+            "revisions": [],
+        }
         self.tablet = None
 
     def call(self, kind, method, path, data=None, expect=(200,)):
@@ -234,7 +257,10 @@ class Run:
         return reply if reply.status in expect else None
 
     def readings(self):
-        return {code: f"{self.rng.randint(low, high - 1)}.{self.rng.randint(0, 9)}" for code, (low, high) in READINGS.items()}
+        return {
+            code: f"{self.rng.randint(low, high - 1)}.{self.rng.randint(0, 9)}"
+            for code, (low, high) in READINGS.items()
+        }
 
     @staticmethod
     def mm(readings):
@@ -331,8 +357,18 @@ def shared_phase(runs, plan, rounds, figures):
 
 def start_server(env, port, workers, threads, log_path):
     log = open(log_path, "ab")
-    argv = [sys.executable, "manage.py", "start", "--bind", f"{LOOPBACK}:{port}", "--no-demo",
-            "--workers", str(workers), "--threads", str(threads)]
+    argv = [
+        sys.executable,
+        "manage.py",
+        "start",
+        "--bind",
+        f"{LOOPBACK}:{port}",
+        "--no-demo",
+        "--workers",
+        str(workers),
+        "--threads",
+        str(threads),
+    ]
     process = subprocess.Popen(argv, cwd=ROOT, env=env, stdout=log, stderr=subprocess.STDOUT, start_new_session=True)
     deadline = time.monotonic() + 120
     while time.monotonic() < deadline:
@@ -367,7 +403,9 @@ def run_json(argv, env, timeout):
 
 def main(argv=None):
     parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
-    parser.add_argument("--seconds", type=float, default=60.0, help="Length of the main phase (default 60, at most 600).")
+    parser.add_argument(
+        "--seconds", type=float, default=60.0, help="Length of the main phase (default 60, at most 600)."
+    )
     parser.add_argument("--tablets", type=int, default=20, help="Simulated tablets (default 20, at most 100).")
     parser.add_argument("--max-requests", type=int, default=20_000, help="Requests in the main phase at most.")
     parser.add_argument("--think", type=float, default=0.2, help="Mean pause between a tablet's saves, in seconds.")
@@ -380,9 +418,19 @@ def main(argv=None):
     max_requests = max(1, min(args.max_requests, 200_000))
 
     data_dir = Path(tempfile.mkdtemp(prefix="atelier-load-"))
-    env = {k: v for k, v in os.environ.items() if not k.startswith("ATELIER_") and k not in ("DATABASE_URL", "DJANGO_SETTINGS_MODULE")}
-    env.update({"ATELIER_DATA_DIR": str(data_dir), "ATELIER_STATIC_ROOT": str(data_dir / "static"),
-                "ATELIER_LOG_LEVEL": "WARNING", "PYTHONPATH": str(ROOT)})
+    env = {
+        k: v
+        for k, v in os.environ.items()
+        if not k.startswith("ATELIER_") and k not in ("DATABASE_URL", "DJANGO_SETTINGS_MODULE")
+    }
+    env.update(
+        {
+            "ATELIER_DATA_DIR": str(data_dir),
+            "ATELIER_STATIC_ROOT": str(data_dir / "static"),
+            "ATELIER_LOG_LEVEL": "WARNING",
+            "PYTHONPATH": str(ROOT),
+        }
+    )
     log_path = data_dir / "server.log"
     process = None
     try:
@@ -390,8 +438,11 @@ def main(argv=None):
         fixture = run_json([sys.executable, "-c", SETUP, str(tablets), PASSWORD], env, timeout=600)
         port = free_port()
         process = start_server(env, port, args.workers, args.threads, log_path)
-        print(f"Serving on http://{LOOPBACK}:{port}/ (gunicorn, {args.workers} workers x {args.threads} threads); "
-              f"{seconds:.0f} s, at most {max_requests} requests.", flush=True)
+        print(
+            f"Serving on http://{LOOPBACK}:{port}/ (gunicorn, {args.workers} workers x {args.threads} threads); "
+            f"{seconds:.0f} s, at most {max_requests} requests.",
+            flush=True,
+        )
 
         figures = Figures(max_requests)
         started = time.monotonic()
@@ -418,18 +469,28 @@ def main(argv=None):
     saves = {k: sum(len(r.claims[k]) for r in runs) for k in ("sessions", "edits", "revisions")}
     errors = sum(figures.errors.values())
     print()
-    print(f"main phase: {main_requests} requests in {main_s:.1f} s ({main_requests / main_s:.1f}/s) from {tablets} tablets")
+    print(
+        f"main phase: {main_requests} requests in {main_s:.1f} s ({main_requests / main_s:.1f}/s) from {tablets} tablets"
+    )
     print(f"all requests, shared phase included: {len(every)}")
-    print(f"saves acknowledged: {saves['sessions']} new sessions, {saves['edits']} corrections, {saves['revisions']} plan revisions")
-    print(f"latency, all requests: p50 {statistics.median(every):.1f} ms, p95 {percentile(every, 0.95):.1f} ms, "
-          f"max {max(every):.1f} ms")
+    print(
+        f"saves acknowledged: {saves['sessions']} new sessions, {saves['edits']} corrections, {saves['revisions']} plan revisions"
+    )
+    print(
+        f"latency, all requests: p50 {statistics.median(every):.1f} ms, p95 {percentile(every, 0.95):.1f} ms, "
+        f"max {max(every):.1f} ms"
+    )
     for kind in sorted(figures.ms):
         values = figures.ms[kind]
-        print(f"  {kind:28} n={len(values):6}  p50 {statistics.median(values):7.1f} ms  "
-              f"p95 {percentile(values, 0.95):7.1f} ms  max {max(values):8.1f} ms")
+        print(
+            f"  {kind:28} n={len(values):6}  p50 {statistics.median(values):7.1f} ms  "
+            f"p95 {percentile(values, 0.95):7.1f} ms  max {max(values):8.1f} ms"
+        )
     print(f"errors: {errors}" + (f"  {dict(figures.errors)}" if errors else ""))
-    print(f"shared plan: {len(shared['won'])} saves won, {shared['refused']} refused with 409 (correct), "
-          f"{len(shared['refusals_without_values'])} refusals without the tablet's values shown back")
+    print(
+        f"shared plan: {len(shared['won'])} saves won, {shared['refused']} refused with 409 (correct), "
+        f"{len(shared['refusals_without_values'])} refusals without the tablet's values shown back"
+    )
     print(f"read back: {dict(verified['checked'])}")
     print(f"lost saves: {len(verified['lost'])}, overwritten saves: {len(verified['overwritten'])}")
     for problem in (verified["lost"] + verified["overwritten"])[:20]:

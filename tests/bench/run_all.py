@@ -57,8 +57,11 @@ def percentile(values, share):
 
 
 def summary(values):
-    return {"n": len(values), "median": statistics.median(values), "p95": percentile(values, 0.95),
-            "max": max(values)} if values else {"n": 0}
+    return (
+        {"n": len(values), "median": statistics.median(values), "p95": percentile(values, 0.95), "max": max(values)}
+        if values
+        else {"n": 0}
+    )
 
 
 def free_port():
@@ -78,8 +81,11 @@ def machine():
         pass
     return {
         "date": datetime.now(timezone.utc).astimezone().isoformat(timespec="seconds"),
-        "nproc": os.cpu_count(), "arch": platform.machine(), "cpu": model,
-        "python": platform.python_version(), "system": platform.platform(),
+        "nproc": os.cpu_count(),
+        "arch": platform.machine(),
+        "cpu": model,
+        "python": platform.python_version(),
+        "system": platform.platform(),
     }
 
 
@@ -111,15 +117,32 @@ class Server:
             argv = [PYTHON, "manage.py", "start", "--bind", f"{LOOPBACK}:{self.port}", "--no-demo"]
         else:
             # The same gunicorn command as `manage.py start`, without its warm-up (for comparison only).
-            argv = [PYTHON, "-m", "gunicorn", "atelier.wsgi:application", "--bind", f"{LOOPBACK}:{self.port}",
-                    "--workers", "2", "--threads", "4", "--chdir", str(ROOT), "--timeout", "120", "--preload",
-                    "--access-logfile", "-"]
+            argv = [
+                PYTHON,
+                "-m",
+                "gunicorn",
+                "atelier.wsgi:application",
+                "--bind",
+                f"{LOOPBACK}:{self.port}",
+                "--workers",
+                "2",
+                "--threads",
+                "4",
+                "--chdir",
+                str(ROOT),
+                "--timeout",
+                "120",
+                "--preload",
+                "--access-logfile",
+                "-",
+            ]
         env = dict(self.env)
         if not self.warm_up:
             env.pop("ATELIER_WARM_UP", None)
         started = time.perf_counter()
-        self.process = subprocess.Popen(argv, cwd=ROOT, env=env, stdout=log, stderr=subprocess.STDOUT,
-                                        start_new_session=True)
+        self.process = subprocess.Popen(
+            argv, cwd=ROOT, env=env, stdout=log, stderr=subprocess.STDOUT, start_new_session=True
+        )
         deadline = started + timeout
         while time.perf_counter() < deadline:
             if self.process.poll() is not None:
@@ -168,16 +191,33 @@ def preview_query(plan, i):
     data = recompute_data(plan, 0)
     data.pop("csrfmiddlewaretoken", None)
     quarters = 4 + 2 * i  # half an inch, or 1.25 cm, apart
-    data["ease_waist"] = (f"-{quarters // 4} {quarters % 4}/4" if plan["form"]["unit"] == "in"
-                          else f"-{1.25 * quarters / 2:.2f}")
+    data["ease_waist"] = (
+        f"-{quarters // 4} {quarters % 4}/4" if plan["form"]["unit"] == "in" else f"-{1.25 * quarters / 2:.2f}"
+    )
     return urlencode(data)
 
 
 SEARCHES = [
     # A surname typed letter by letter, as htmx sends it (each after a 300 ms pause).
-    "t", "th", "tho", "thor", "thorn", "thornl", "thornle", "thornley",
+    "t",
+    "th",
+    "tho",
+    "thor",
+    "thorn",
+    "thornl",
+    "thornle",
+    "thornley",
     # A first name, a reference and part of one, a double-barrelled surname, a telephone number, nothing.
-    "mar", "marin", "wf-1", "wf-1234", "wf-123456", "123456", "vale", "west-", "7946", "zzq",
+    "mar",
+    "marin",
+    "wf-1",
+    "wf-1234",
+    "wf-123456",
+    "123456",
+    "vale",
+    "west-",
+    "7946",
+    "zzq",
 ]
 
 
@@ -206,11 +246,17 @@ def timed_rounds(cases, rounds, time_limit_s, keep=()):
                 entry["server_ms"].append(reply.server_ms)
             if reply.cpu_ms is not None:
                 entry["cpu_ms"].append(reply.cpu_ms)
-    return {name: {"client": summary(v["ms"]), "server": summary(v["server_ms"]), "cpu": summary(v["cpu_ms"]),
-                   "errors": v["errors"],
-                   **({"first_error": v["first_error"]} if "first_error" in v else {}),
-                   **({"samples": v["server_ms"], "cpu_samples": v["cpu_ms"]} if name in keep else {})}
-            for name, v in got.items()}
+    return {
+        name: {
+            "client": summary(v["ms"]),
+            "server": summary(v["server_ms"]),
+            "cpu": summary(v["cpu_ms"]),
+            "errors": v["errors"],
+            **({"first_error": v["first_error"]} if "first_error" in v else {}),
+            **({"samples": v["server_ms"], "cpu_samples": v["cpu_ms"]} if name in keep else {}),
+        }
+        for name, v in got.items()
+    }
 
 
 def measure_cold_start(env, port, log, plan, sessions, warm_up, starts=3):
@@ -224,16 +270,23 @@ def measure_cold_start(env, port, log, plan, sessions, warm_up, starts=3):
             first = tablet.post(url, recompute_data(plan, 1), htmx=True)
             following = [tablet.post(url, recompute_data(plan, i), htmx=True) for i in range(2, 12)]
             tablet.close()
-            firsts.append({
-                "listening_after_s": server.listening_after_s, "first_ms": first.ms,
-                "first_server_ms": first.server_ms, "first_status": first.status,
-                "next_10_median_ms": statistics.median(r.ms for r in following),
-                "next_10_max_ms": max(r.ms for r in following),
-            })
+            firsts.append(
+                {
+                    "listening_after_s": server.listening_after_s,
+                    "first_ms": first.ms,
+                    "first_server_ms": first.server_ms,
+                    "first_status": first.status,
+                    "next_10_median_ms": statistics.median(r.ms for r in following),
+                    "next_10_max_ms": max(r.ms for r in following),
+                }
+            )
         finally:
             server.stop()
-    return {"starts": firsts, "first_ms": statistics.median(f["first_ms"] for f in firsts),
-            "first_max_ms": max(f["first_ms"] for f in firsts)}
+    return {
+        "starts": firsts,
+        "first_ms": statistics.median(f["first_ms"] for f in firsts),
+        "first_max_ms": max(f["first_ms"] for f in firsts),
+    }
 
 
 def measure_recompute(tablet, plans, rounds, limit):
@@ -243,7 +296,9 @@ def measure_recompute(tablet, plans, rounds, limit):
     }
     for plan in plans:
         url = f"/plans/{plan['pk']}/recompute/"
-        cases[f"recompute:{plan['garment']}"] = lambda i, url=url, plan=plan: tablet.post(url, recompute_data(plan, i), htmx=True)
+        cases[f"recompute:{plan['garment']}"] = lambda i, url=url, plan=plan: tablet.post(
+            url, recompute_data(plan, i), htmx=True
+        )
     return timed_rounds(cases, rounds, limit)
 
 
@@ -293,8 +348,22 @@ def measure_preview(tablet, plan, rounds, limit):
     for _ in range(3):
         preview_floor(lines, labels, size)
         preview_floor([200] * 6, 30, (10, 7))
-    got = {k: [] for k in ("floor_same_artists", "floor_6x200_30", "miss", "miss_server", "miss_cpu", "hit",
-                           "hit_server", "hit_cpu", "checks_after", "checks_after_server", "checks_after_cpu")}
+    got = {
+        k: []
+        for k in (
+            "floor_same_artists",
+            "floor_6x200_30",
+            "miss",
+            "miss_server",
+            "miss_cpu",
+            "hit",
+            "hit_server",
+            "hit_cpu",
+            "checks_after",
+            "checks_after_server",
+            "checks_after_cpu",
+        )
+    }
     hits, errors, redrawn, not_new = 0, 0, 0, 0
     stop_at = time.perf_counter() + limit
     for i in range(rounds):
@@ -325,9 +394,19 @@ def measure_preview(tablet, plan, rounds, limit):
             got[f"{name}_server"].append(reply.server_ms)
             got[f"{name}_cpu"].append(reply.cpu_ms)
     out = {k: summary(v) for k, v in got.items()}
-    out.update({"lines": len(lines), "points": sum(lines), "labels": labels, "size_in": size,
-                "rounds": len(got["miss"]), "second_request_hit": hits, "second_request_drawn_again": redrawn,
-                "first_request_not_new": not_new, "errors": errors})
+    out.update(
+        {
+            "lines": len(lines),
+            "points": sum(lines),
+            "labels": labels,
+            "size_in": size,
+            "rounds": len(got["miss"]),
+            "second_request_hit": hits,
+            "second_request_drawn_again": redrawn,
+            "first_request_not_new": not_new,
+            "errors": errors,
+        }
+    )
     return out
 
 
@@ -336,8 +415,7 @@ def measure_pages(tablet, fixtures, rounds, limit):
     revisions = [(p["pk"], n) for p in fixtures["plans"] for n in p["revisions"]]
     from urllib.parse import quote
 
-    cases = {"floor_empty": lambda i: tablet.get("/bench/empty/"),
-             "floor_form": lambda i: tablet.get("/bench/form/")}
+    cases = {"floor_empty": lambda i: tablet.get("/bench/empty/"), "floor_form": lambda i: tablet.get("/bench/form/")}
     for q in SEARCHES:
         cases[f"search:{q}"] = lambda i, q=q: tablet.get(f"/?q={quote(q)}", htmx=True)
     cases["client list, full page"] = lambda i: tablet.get("/")
@@ -350,8 +428,12 @@ def measure_pages(tablet, fixtures, rounds, limit):
     pages = timed_rounds(cases, rounds, limit, keep=searches)
     every = [ms for name in searches for ms in pages[name].pop("samples")]
     cpu = [ms for name in searches for ms in pages[name].pop("cpu_samples")]
-    pages["every search"] = {"server": summary(every), "cpu": summary(cpu), "client": summary([]),
-                             "errors": sum(pages[n]["errors"] for n in searches)}
+    pages["every search"] = {
+        "server": summary(every),
+        "cpu": summary(cpu),
+        "client": summary([]),
+        "errors": sum(pages[n]["errors"] for n in searches),
+    }
     return pages
 
 
@@ -389,10 +471,21 @@ def table_rows(results):
         met = ""
         if limit is not None or max_ratio is not None:
             ok = (limit is None or (p95 is not None and p95 <= limit)) and (
-                max_ratio is None or (ratio is not None and ratio <= max_ratio))
+                max_ratio is None or (ratio is not None and ratio <= max_ratio)
+            )
             met = "yes" if ok else "NO"
-        rows.append((what, fmt(med), fmt(p95), fmt((cpu or {}).get("median")),
-                     f"{fmt(floor)} {floor_name}".strip(), fmt(ratio, 2) + "x" if ratio else "", target, met))
+        rows.append(
+            (
+                what,
+                fmt(med),
+                fmt(p95),
+                fmt((cpu or {}).get("median")),
+                f"{fmt(floor)} {floor_name}".strip(),
+                fmt(ratio, 2) + "x" if ratio else "",
+                target,
+                met,
+            )
+        )
 
     cold = results.get("cold_start", {})
     rc = results.get("recompute", {})
@@ -402,8 +495,15 @@ def table_rows(results):
         add("floor: template with a 10-field form (server ms)", form["server"], form["cpu"])
         for name, r in rc.items():
             if name.startswith("recompute:"):
-                add(f"{name} (server ms)", r["server"], r["cpu"], form["server"]["median"], "form", "p95 <= 50 ms",
-                    limit=50)
+                add(
+                    f"{name} (server ms)",
+                    r["server"],
+                    r["cpu"],
+                    form["server"]["median"],
+                    "form",
+                    "p95 <= 50 ms",
+                    limit=50,
+                )
                 add(f"{name} (round trip ms)", r["client"], None, empty["client"]["median"], "empty")
     ip = results.get("recompute_in_process", {})
     if ip:
@@ -417,59 +517,102 @@ def table_rows(results):
     pv = results.get("preview", {})
     if "miss" in pv:
         floor = pv["floor_same_artists"]["median"]
-        add(f"floor: bare Figure, {pv['lines']} lines/{pv['points']} pts/{pv['labels']} labels, SVG (ms)",
-            pv["floor_same_artists"])
+        add(
+            f"floor: bare Figure, {pv['lines']} lines/{pv['points']} pts/{pv['labels']} labels, SVG (ms)",
+            pv["floor_same_artists"],
+        )
         add("reference: bare Figure, 6 x 200 pts, 30 labels, SVG (ms)", pv["floor_6x200_30"])
-        add("preview, new input (server ms)", pv["miss_server"], pv["miss_cpu"], floor, "bare",
-            "p95 <= 200 ms, <= 1.3x", limit=200, max_ratio=1.3)
+        add(
+            "preview, new input (server ms)",
+            pv["miss_server"],
+            pv["miss_cpu"],
+            floor,
+            "bare",
+            "p95 <= 200 ms, <= 1.3x",
+            limit=200,
+            max_ratio=1.3,
+        )
         add("preview, new input (round trip ms)", pv["miss"], None, floor, "bare")
-        add(f"preview, same input again (server ms; {pv['second_request_hit']}/{pv['rounds']} cache hits)",
-            pv["hit_server"], pv["hit_cpu"], floor, "bare")
+        add(
+            f"preview, same input again (server ms; {pv['second_request_hit']}/{pv['rounds']} cache hits)",
+            pv["hit_server"],
+            pv["hit_cpu"],
+            floor,
+            "bare",
+        )
         add("seam checks after the preview (server ms)", pv["checks_after_server"], pv["checks_after_cpu"])
     pg = results.get("pages", {})
     if pg:
         form = pg["floor_form"]["server"]["median"]
         for name, r in pg.items():
             if not name.startswith("floor") and r["server"].get("n"):
-                add(f"{name} (server ms)", r["server"], r.get("cpu"), form, "form",
-                    *(("p95 <= 30 ms", 30) if name == "every search" else ()))
+                add(
+                    f"{name} (server ms)",
+                    r["server"],
+                    r.get("cpu"),
+                    form,
+                    "form",
+                    *(("p95 <= 30 ms", 30) if name == "every search" else ()),
+                )
     pdf = results.get("pdf", {})
     if "six_panel" in pdf:
         six, minimal = pdf["six_panel"], pdf["minimal_page"]
-        add("floor: minimal one-page PDF (ms)", {"median": minimal["wall_median_s"] * 1000,
-                                                 "p95": minimal["wall_p95_s"] * 1000},
-            {"median": minimal["cpu_median_s"] * 1000})
-        add(f"work order + cutting sheet, 6 panels (ms; peak {six.get('peak_python_mib', 0):.0f} MiB Python, "
+        add(
+            "floor: minimal one-page PDF (ms)",
+            {"median": minimal["wall_median_s"] * 1000, "p95": minimal["wall_p95_s"] * 1000},
+            {"median": minimal["cpu_median_s"] * 1000},
+        )
+        add(
+            f"work order + cutting sheet, 6 panels (ms; peak {six.get('peak_python_mib', 0):.0f} MiB Python, "
             f"{pdf.get('max_rss_mib', 0):.0f} MiB resident)",
             {"median": six["wall_median_s"] * 1000, "p95": six["wall_p95_s"] * 1000},
-            {"median": six["cpu_median_s"] * 1000}, minimal["wall_median_s"] * 1000, "minimal",
-            "median <= 1500 ms, <= 3x", max_ratio=3.0)
+            {"median": six["cpu_median_s"] * 1000},
+            minimal["wall_median_s"] * 1000,
+            "minimal",
+            "median <= 1500 ms, <= 3x",
+            max_ratio=3.0,
+        )
         rows[-1] = (*rows[-1][:7], "yes" if six["wall_median_s"] <= 1.5 and rows[-1][7] == "yes" else "NO")
         plain = pdf.get("minimal_page_default_call")
         if plain:
-            add("floor: minimal one-page PDF, WeasyPrint's plain call (ms)",
+            add(
+                "floor: minimal one-page PDF, WeasyPrint's plain call (ms)",
                 {"median": plain["wall_median_s"] * 1000, "p95": plain["wall_p95_s"] * 1000},
-                {"median": plain["cpu_median_s"] * 1000})
-            add("work order + cutting sheet, 6 panels, against the plain call (ms)",
+                {"median": plain["cpu_median_s"] * 1000},
+            )
+            add(
+                "work order + cutting sheet, 6 panels, against the plain call (ms)",
                 {"median": six["wall_median_s"] * 1000, "p95": six["wall_p95_s"] * 1000},
-                {"median": six["cpu_median_s"] * 1000}, plain["wall_median_s"] * 1000, "plain call",
-                "<= 3x", max_ratio=3.0)
+                {"median": six["cpu_median_s"] * 1000},
+                plain["wall_median_s"] * 1000,
+                "plain call",
+                "<= 3x",
+                max_ratio=3.0,
+            )
     for key, label in (("load", "20 tablets"), ("load_with_previews", "20 tablets + previews")):
         load = results.get(key, {})
         if "all" not in load:
             continue
         for name, r in load["by_kind"].items():
             add(f"{label}, {name} (round trip ms)", r)
-        add(f"{label}, all {load['requests']} requests ({load['requests_per_s']:.0f}/s), {load['errors']} errors",
-            load["all"], target="p95 <= 250 ms, 0 errors" if key == "load" else "",
-            limit=250 if key == "load" else None)
+        add(
+            f"{label}, all {load['requests']} requests ({load['requests_per_s']:.0f}/s), {load['errors']} errors",
+            load["all"],
+            target="p95 <= 250 ms, 0 errors" if key == "load" else "",
+            limit=250 if key == "load" else None,
+        )
         if key == "load" and load["errors"]:
             rows[-1] = (*rows[-1][:7], "NO")
     warm = next((r["client"] for n, r in rc.items() if n.startswith("recompute:")), {})
     for name, c in cold.items():
         if "first_ms" in c:
-            add(f"first recompute after start, {name}, {len(c['starts'])} starts (round trip ms; max in p95)",
-                {"median": c["first_ms"], "p95": c["first_max_ms"]}, None, warm.get("median"), "warm p50")
+            add(
+                f"first recompute after start, {name}, {len(c['starts'])} starts (round trip ms; max in p95)",
+                {"median": c["first_ms"], "p95": c["first_max_ms"]},
+                None,
+                warm.get("median"),
+                "warm p50",
+            )
     return rows
 
 
@@ -495,7 +638,9 @@ def main(argv=None):
     parser.add_argument("--scale", choices=["full", "small"], default="full")
     parser.add_argument("--data", help="A data folder seeded by an earlier run (kept); default: a new temporary one.")
     parser.add_argument("--quick", action="store_true", help="Fewer rounds and a 20 s load: a quick try, not a figure.")
-    parser.add_argument("--skip", default="", help="Comma-separated parts to leave out: cold,recompute,preview,pages,pdf,load")
+    parser.add_argument(
+        "--skip", default="", help="Comma-separated parts to leave out: cold,recompute,preview,pages,pdf,load"
+    )
     parser.add_argument("--out", default=str(RESULTS / "latest.json"))
     args = parser.parse_args(argv)
     skip = {s.strip() for s in args.skip.split(",") if s.strip()}
@@ -506,8 +651,12 @@ def main(argv=None):
     data_dir = Path(args.data or tempfile.mkdtemp(prefix="atelier-bench-")).resolve()
     data_dir.mkdir(parents=True, exist_ok=True)
     env = {
-        **os.environ, "ATELIER_DATA_DIR": str(data_dir), "DJANGO_SETTINGS_MODULE": "tests.bench.settings",
-        "ATELIER_STATIC_ROOT": str(data_dir / "static"), "ATELIER_LOG_LEVEL": "WARNING", "PYTHONPATH": str(ROOT),
+        **os.environ,
+        "ATELIER_DATA_DIR": str(data_dir),
+        "DJANGO_SETTINGS_MODULE": "tests.bench.settings",
+        "ATELIER_STATIC_ROOT": str(data_dir / "static"),
+        "ATELIER_LOG_LEVEL": "WARNING",
+        "PYTHONPATH": str(ROOT),
     }
     env.pop("ATELIER_DEBUG", None)
     env.pop("DATABASE_URL", None)
@@ -517,8 +666,14 @@ def main(argv=None):
         if not (data_dir / "seeded.json").exists():
             print(f"seeding ({args.scale})...", flush=True)
             started = time.perf_counter()
-            done = subprocess.run([PYTHON, "-m", "tests.bench.seed", "--scale", args.scale], env=env, cwd=ROOT,
-                                  capture_output=True, text=True, timeout=3600)
+            done = subprocess.run(
+                [PYTHON, "-m", "tests.bench.seed", "--scale", args.scale],
+                env=env,
+                cwd=ROOT,
+                capture_output=True,
+                text=True,
+                timeout=3600,
+            )
             if done.returncode != 0:
                 raise RuntimeError(done.stdout + done.stderr)
             (data_dir / "seeded.json").write_text(done.stdout.strip().splitlines()[-1])
@@ -533,15 +688,19 @@ def main(argv=None):
         if "cold" not in skip:
             print("cold start...", flush=True)
             results["cold_start"] = {
-                "with warm-up (manage.py start)": measure_cold_start(env, port, log, demo_plans[0], sessions[0:3], True),
-                "without warm-up (gunicorn alone)": measure_cold_start(env, port, log, demo_plans[0], sessions[3:6],
-                                                                       False),
+                "with warm-up (manage.py start)": measure_cold_start(
+                    env, port, log, demo_plans[0], sessions[0:3], True
+                ),
+                "without warm-up (gunicorn alone)": measure_cold_start(
+                    env, port, log, demo_plans[0], sessions[3:6], False
+                ),
             }
 
         if "recompute" not in skip:
             print("recompute in-process, no middleware...", flush=True)
             results["recompute_in_process"] = run_json(
-                [PYTHON, "-m", "tests.bench.inprocess", "--rounds", "60" if args.quick else "300"], env, timeout=900)
+                [PYTHON, "-m", "tests.bench.inprocess", "--rounds", "60" if args.quick else "300"], env, timeout=900
+            )
 
         server = Server(env, port, log).start()
         try:
@@ -565,8 +724,9 @@ def main(argv=None):
                 print("20 tablets...", flush=True)
                 results["load"] = run_load(port, sessions[7:27], fixtures, seconds=20 if args.quick else 60)
                 print("20 tablets, each recompute followed by its preview and checks...", flush=True)
-                results["load_with_previews"] = run_load(port, sessions[7:27], fixtures,
-                                                         seconds=10 if args.quick else 30, previews=True)
+                results["load_with_previews"] = run_load(
+                    port, sessions[7:27], fixtures, seconds=10 if args.quick else 30, previews=True
+                )
         finally:
             server.stop()
         if "pdf" not in skip:
@@ -578,13 +738,17 @@ def main(argv=None):
     results["load_average_end"] = os.getloadavg()
     out = Path(args.out)
     out.parent.mkdir(parents=True, exist_ok=True)
-    results["table"] = [dict(zip(("what", "median", "p95", "cpu_median", "floor", "ratio", "target", "met"), row))
-                        for row in table_rows(results)]
+    results["table"] = [
+        dict(zip(("what", "median", "p95", "cpu_median", "floor", "ratio", "target", "met"), row))
+        for row in table_rows(results)
+    ]
     out.write_text(json.dumps(results, indent=2, default=str) + "\n")
     print()
     m = results["machine"]
-    print(f"{m['date']}  {m['nproc']} cores {m['arch']} {m['cpu']}  load average {results['load_average_start'][0]:.2f}"
-          f" -> {results['load_average_end'][0]:.2f}  scale {args.scale}{' (quick)' if args.quick else ''}")
+    print(
+        f"{m['date']}  {m['nproc']} cores {m['arch']} {m['cpu']}  load average {results['load_average_start'][0]:.2f}"
+        f" -> {results['load_average_end'][0]:.2f}  scale {args.scale}{' (quick)' if args.quick else ''}"
+    )
     print_table(results)
     print(f"\nwritten to {out}")
     return results

@@ -19,6 +19,7 @@ import sys
 import time
 from datetime import date, timedelta
 from pathlib import Path
+
 from fittings import selectors
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
@@ -34,17 +35,97 @@ LONG_HISTORY_REFERENCE = "WF-099999"  # one client seen for years: 120 sessions 
 PASSWORD = "bench-tape-and-pins"  # the demo login's password in a benchmark data folder only
 
 # Invented syllables: no real person's name is meant.
-_FIRST_START = ["Al", "Bel", "Cor", "Da", "El", "Fen", "Gwen", "Hal", "Is", "Jo", "Ka", "Lin", "Mar", "Nel",
-                "Or", "Pen", "Ros", "Sa", "Tam", "Ver", "Wyn", "Ys", "Ze", "Ama", "Bri", "Cla", "Dor", "Eve"]
+_FIRST_START = [
+    "Al",
+    "Bel",
+    "Cor",
+    "Da",
+    "El",
+    "Fen",
+    "Gwen",
+    "Hal",
+    "Is",
+    "Jo",
+    "Ka",
+    "Lin",
+    "Mar",
+    "Nel",
+    "Or",
+    "Pen",
+    "Ros",
+    "Sa",
+    "Tam",
+    "Ver",
+    "Wyn",
+    "Ys",
+    "Ze",
+    "Ama",
+    "Bri",
+    "Cla",
+    "Dor",
+    "Eve",
+]
 _FIRST_END = ["a", "e", "ia", "ette", "ine", "is", "enne", "ora", "elle", "ith"]
-_SURNAME_START = ["Ash", "Brack", "Corn", "Dun", "Elder", "Fair", "Gold", "Hart", "Ivy", "Kest", "Lang", "Marsh",
-                  "North", "Oak", "Pell", "Quill", "Rook", "Stan", "Thorn", "Under", "Vale", "West", "Yarrow",
-                  "Bram", "Cres", "Dew", "Fern", "Glen", "Holm", "Lark"]
-_SURNAME_END = ["by", "combe", "dale", "field", "ford", "ham", "hurst", "ley", "more", "ridge", "stead", "ton",
-                "well", "wick", "worth", "gate", "bury", "mere"]
+_SURNAME_START = [
+    "Ash",
+    "Brack",
+    "Corn",
+    "Dun",
+    "Elder",
+    "Fair",
+    "Gold",
+    "Hart",
+    "Ivy",
+    "Kest",
+    "Lang",
+    "Marsh",
+    "North",
+    "Oak",
+    "Pell",
+    "Quill",
+    "Rook",
+    "Stan",
+    "Thorn",
+    "Under",
+    "Vale",
+    "West",
+    "Yarrow",
+    "Bram",
+    "Cres",
+    "Dew",
+    "Fern",
+    "Glen",
+    "Holm",
+    "Lark",
+]
+_SURNAME_END = [
+    "by",
+    "combe",
+    "dale",
+    "field",
+    "ford",
+    "ham",
+    "hurst",
+    "ley",
+    "more",
+    "ridge",
+    "stead",
+    "ton",
+    "well",
+    "wick",
+    "worth",
+    "gate",
+    "bury",
+    "mere",
+]
 # Girths of the five levels in mm, as (centre, spread): an invented spread of clients.
-_GIRTHS = {"bust_girth": (950, 90), "underbust_girth": (800, 70), "waist_girth": (740, 90),
-           "abdomen_girth": (900, 90), "hip_girth": (1010, 90)}
+_GIRTHS = {
+    "bust_girth": (950, 90),
+    "underbust_girth": (800, 70),
+    "waist_girth": (740, 90),
+    "abdomen_girth": (900, 90),
+    "hip_girth": (1010, 90),
+}
 
 
 def client_rows(count: int, rng: random.Random):
@@ -91,24 +172,40 @@ def seed(scale: str = "full", out=sys.stdout) -> dict:
     with transaction.atomic():
         rows = list(client_rows(clients_n, rng))
         for start in range(0, len(rows), BATCH):
-            Client.objects.bulk_create([
-                Client(reference=ref, name=name, contact=contact, consent_given_on=today, created_by=fitter,
-                       is_deleted=(i % 100 == 99), deleted_at=now if i % 100 == 99 else None)
-                for i, (ref, name, contact) in enumerate(rows[start:start + BATCH], start)
-            ])
-        client_ids = list(Client.all_objects.filter(reference__startswith="WF-1").order_by("id").values_list("id", flat=True))
+            Client.objects.bulk_create(
+                [
+                    Client(
+                        reference=ref,
+                        name=name,
+                        contact=contact,
+                        consent_given_on=today,
+                        created_by=fitter,
+                        is_deleted=(i % 100 == 99),
+                        deleted_at=now if i % 100 == 99 else None,
+                    )
+                    for i, (ref, name, contact) in enumerate(rows[start : start + BATCH], start)
+                ]
+            )
+        client_ids = list(
+            Client.all_objects.filter(reference__startswith="WF-1").order_by("id").values_list("id", flat=True)
+        )
         out.write(f"  {len(client_ids)} clients in {time.perf_counter() - started:.1f} s\n")
 
         sessions = []
         for client_id in client_ids:
             day = today - timedelta(days=rng.randrange(60, 1800))
             for k in range(per_client):
-                sessions.append(MeasurementSession(
-                    client_id=client_id, taken_on=day + timedelta(days=30 * k), measured_by=fitter,
-                    kind=kinds[min(k, 3)], unit="cm",
-                ))
+                sessions.append(
+                    MeasurementSession(
+                        client_id=client_id,
+                        taken_on=day + timedelta(days=30 * k),
+                        measured_by=fitter,
+                        kind=kinds[min(k, 3)],
+                        unit="cm",
+                    )
+                )
         for start in range(0, len(sessions), BATCH):
-            MeasurementSession.objects.bulk_create(sessions[start:start + BATCH])
+            MeasurementSession.objects.bulk_create(sessions[start : start + BATCH])
         out.write(f"  {len(sessions)} sessions in {time.perf_counter() - started:.1f} s\n")
 
         # 1.5 million readings: plain executemany, as Django's per-object work would take minutes here.
@@ -120,7 +217,7 @@ def seed(scale: str = "full", out=sys.stdout) -> dict:
             for start in range(0, len(session_ids), BATCH):
                 batch = [
                     (session_id, code, f"{centre + rng.randint(-spread, spread)}.0000")
-                    for session_id in session_ids[start:start + BATCH]
+                    for session_id in session_ids[start : start + BATCH]
                     for code, (centre, spread) in _GIRTHS.items()
                 ]
                 cursor.executemany(insert, batch)
@@ -131,15 +228,19 @@ def seed(scale: str = "full", out=sys.stdout) -> dict:
     planned = []
     for client in Client.objects.filter(id__in=client_ids[: plans_n * 7 : 7]):
         session = client.sessions.order_by("-taken_on").prefetch_related("measurements").first()
-        plan = plan_services.start_plan(client=client, session=session, pattern=corset, garment="Bench corset",
-                                        user=fitter)
+        plan = plan_services.start_plan(
+            client=client, session=session, pattern=corset, garment="Bench corset", user=fitter
+        )
         planned.append(plan.pk)
     add_long_history(fitter, corset)
     with connection.cursor() as cursor:
         cursor.execute("ANALYZE")  # fresh planner statistics, as after a while in use
     summary = {
-        "scale": scale, "clients": Client.all_objects.count(), "sessions": MeasurementSession.objects.count(),
-        "readings": Measurement.objects.count(), "bench_plans": len(planned),
+        "scale": scale,
+        "clients": Client.all_objects.count(),
+        "sessions": MeasurementSession.objects.count(),
+        "readings": Measurement.objects.count(),
+        "bench_plans": len(planned),
         "seconds": round(time.perf_counter() - started, 1),
     }
     out.write(json.dumps(summary) + "\n")
@@ -151,12 +252,17 @@ def add_long_history(fitter, pattern, sessions: int = 120, plans: int = 6):
     from fittings.models import Client, Measurement, MeasurementSession
     from fittings.services import plans as plan_services
 
-    client = Client.objects.create(reference=LONG_HISTORY_REFERENCE, name="Ysette Thornleigh-Bramwick",
-                                   contact="ysette.t@example.org", created_by=fitter)
+    client = Client.objects.create(
+        reference=LONG_HISTORY_REFERENCE,
+        name="Ysette Thornleigh-Bramwick",
+        contact="ysette.t@example.org",
+        created_by=fitter,
+    )
     start = date(2016, 1, 10)
     for k in range(sessions):
-        session = MeasurementSession.objects.create(client=client, taken_on=start + timedelta(days=30 * k),
-                                                    measured_by=fitter, kind="check", unit="cm")
+        session = MeasurementSession.objects.create(
+            client=client, taken_on=start + timedelta(days=30 * k), measured_by=fitter, kind="check", unit="cm"
+        )
         Measurement.objects.bulk_create(
             Measurement(session=session, code=code, value_mm=centre + (k % 7) - 3)
             for code, (centre, _) in _GIRTHS.items()
@@ -171,8 +277,9 @@ def plan_form_data(plan) -> dict:
     from fittings.forms import PlanOptionsForm
 
     values, block, options = selectors.revision_inputs(selectors.latest_revision(plan))
-    form = PlanOptionsForm(initial={**PlanOptionsForm.initial_for(options, block), "version": plan.version},
-                           block=block, unit=options.unit)
+    form = PlanOptionsForm(
+        initial={**PlanOptionsForm.initial_for(options, block), "version": plan.version}, block=block, unit=options.unit
+    )
     data = {field.html_name: "" if field.value() is None else str(field.value()) for field in form}
     data["unit"] = options.unit  # not a form field: tells the benchmark how to type a new ease
     return data
@@ -204,9 +311,13 @@ def fixtures(tablets: int) -> dict:
         store.create()
         sessions.append({"session_key": store.session_key, "csrf_token": get_random_string(32)})
     plans = [
-        {"pk": p.pk, "garment": p.garment, "client": p.client.reference,
-         "revisions": list(p.revisions.order_by("number").values_list("number", flat=True)),
-         "form": plan_form_data(p)}
+        {
+            "pk": p.pk,
+            "garment": p.garment,
+            "client": p.client.reference,
+            "revisions": list(p.revisions.order_by("number").values_list("number", flat=True)),
+            "form": plan_form_data(p),
+        }
         for p in Plan.objects.select_related("client").order_by("pk")
     ]
     clients = list(Client.objects.order_by("pk").values_list("pk", flat=True)[:: max(1, Client.objects.count() // 500)])
@@ -217,8 +328,12 @@ def fixtures(tablets: int) -> dict:
 def main(argv=None):
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--scale", choices=sorted(SCALES), default="full")
-    parser.add_argument("--fixtures", type=int, metavar="TABLETS",
-                        help="Do not seed: print sessions for this many tablets and the ids to visit, as JSON.")
+    parser.add_argument(
+        "--fixtures",
+        type=int,
+        metavar="TABLETS",
+        help="Do not seed: print sessions for this many tablets and the ids to visit, as JSON.",
+    )
     args = parser.parse_args(argv)
     if not os.environ.get("ATELIER_DATA_DIR"):
         parser.error("Set ATELIER_DATA_DIR to an empty folder first; the benchmark never seeds the real one.")

@@ -80,8 +80,14 @@ class Tablet:
                 self.close()
             timing = response.getheader("Server-Timing", "")
             found, cpu = _SERVER_TIMING.search(timing), _SERVER_CPU.search(timing)
-            return Reply(response.status, payload, dict(response.getheaders()), ms,
-                         float(found.group(1)) if found else None, float(cpu.group(1)) if cpu else None)
+            return Reply(
+                response.status,
+                payload,
+                dict(response.getheaders()),
+                ms,
+                float(found.group(1)) if found else None,
+                float(cpu.group(1)) if cpu else None,
+            )
         raise AssertionError("unreachable")
 
     def get(self, path: str, htmx: bool = False) -> Reply:

@@ -40,7 +40,10 @@ def sign_in(page, live_server, username="demo", password=DEMO_PASSWORD):
 
 def in_view(page, selector):
     """The element's box lies within the window's width (not cut off at the right)."""
-    return page.eval_on_selector(selector, "e => { const b = e.getBoundingClientRect(); return b.left >= 0 && b.right <= window.innerWidth + 0.5; }")
+    return page.eval_on_selector(
+        selector,
+        "e => { const b = e.getBoundingClientRect(); return b.left >= 0 && b.right <= window.innerWidth + 0.5; }",
+    )
 
 
 def test_it_walks_the_fitting_with_every_message_where_the_fitter_looks(held, live_server, demo_atelier):
@@ -100,7 +103,9 @@ def test_it_walks_the_fitting_with_every_message_where_the_fitter_looks(held, li
     if wide:
         seam_left = page.eval_on_selector(scroller + " tbody th", "e => e.getBoundingClientRect().left")
         page.eval_on_selector(scroller, "e => { e.scrollLeft = e.scrollWidth; }")
-        assert page.eval_on_selector(scroller + " tbody th", "e => e.getBoundingClientRect().left") == pytest.approx(seam_left, abs=1)
+        assert page.eval_on_selector(scroller + " tbody th", "e => e.getBoundingClientRect().left") == pytest.approx(
+            seam_left, abs=1
+        )
         assert page.is_visible(".swipe-hint")
     assert in_view(page, scroller + " thead th:last-child")  # the hip heading can be brought into view
     page.snap("plan-table")
@@ -109,11 +114,16 @@ def test_it_walks_the_fitting_with_every_message_where_the_fitter_looks(held, li
     dots = page.locator("#plan-result details.why summary")
     if dots.count():
         dots.first.tap()
-        assert "Locked: the base pattern keeps" in page.locator("#plan-result details.why[open] .why-text").first.inner_text()
+        assert (
+            "Locked: the base pattern keeps"
+            in page.locator("#plan-result details.why[open] .why-text").first.inner_text()
+        )
         page.snap("why-locked")
 
     # The preview at its own size: labels of about 12 px, not 7.
-    page.wait_for_function("() => { const i = document.querySelector('.preview img'); return i && i.complete && i.naturalWidth > 0; }")
+    page.wait_for_function(
+        "() => { const i = document.querySelector('.preview img'); return i && i.complete && i.naturalWidth > 0; }"
+    )
     sizes = page.eval_on_selector(".preview img", "i => [i.clientWidth, i.naturalWidth]")
     assert sizes[0] == pytest.approx(sizes[1], abs=2)
     page.snap("preview")
@@ -121,7 +131,9 @@ def test_it_walks_the_fitting_with_every_message_where_the_fitter_looks(held, li
     # Opened alone, it renders: the figure's white ground is white (its inline styles are allowed).
     preview = page.get_attribute(".preview img", "src")
     page.goto(f"{live_server.url}{preview}")
-    fill = page.evaluate("() => getComputedStyle(document.querySelector('#patch_1 path') || document.querySelector('path')).fill")
+    fill = page.evaluate(
+        "() => getComputedStyle(document.querySelector('#patch_1 path') || document.querySelector('path')).fill"
+    )
     assert fill in ("rgb(255, 255, 255)", "#ffffff"), fill
     page.snap("preview-alone", full=False)  # an SVG document has no page to scroll
 

@@ -26,15 +26,23 @@ def square_side(page) -> float:
 def test_it_calibrates_the_projector_and_draws_the_pieces_to_that_scale(tablet, live_server, demo_atelier):
     client = Client.objects.get(reference="WF-0101")
     plan = plan_services.start_plan(
-        client=client, session=client.sessions.first(),
+        client=client,
+        session=client.sessions.first(),
         pattern=BasePattern.objects.get(garment="overbust corset", size_label="10"),
-        garment="Summer corset", user=get_user_model().objects.get(username="demo"),
+        garment="Summer corset",
+        user=get_user_model().objects.get(username="demo"),
     )
     page = tablet
     errors = []  # script errors and anything the Content Security Policy refused
     page.on("pageerror", lambda error: errors.append(str(error)))
-    page.on("console", lambda message: errors.append(message.text)
-            if "Content Security Policy" in message.text or "Refused" in message.text else None)
+    page.on(
+        "console",
+        lambda message: (
+            errors.append(message.text)
+            if "Content Security Policy" in message.text or "Refused" in message.text
+            else None
+        ),
+    )
     sign_in(page, live_server)
     page.goto(f"{live_server.url}/plans/{plan.pk}/revisions/1/projector/")
     page.wait_for_selector("#scale-text:has-text('not calibrated')")
@@ -87,11 +95,15 @@ def test_it_calibrates_the_projector_and_draws_the_pieces_to_that_scale(tablet, 
     page.check("#mirror")
     assert "scale(-1, 1)" in page.evaluate("document.querySelector('#projection-frame svg').style.transform")
     page.select_option("#rotation", "90")
-    turned = page.evaluate("(() => { const r = document.querySelector('#projection-frame svg').getBoundingClientRect();"
-                           " return [r.width, r.height]; })()")
+    turned = page.evaluate(
+        "(() => { const r = document.querySelector('#projection-frame svg').getBoundingClientRect();"
+        " return [r.width, r.height]; })()"
+    )
     assert turned[1] == pytest.approx(width_mm * scale, abs=1)  # now as tall as it was wide
-    page.evaluate("(() => { const w = document.getElementById('line-weight'); w.value = '2';"
-                  " w.dispatchEvent(new Event('input')); })()")
+    page.evaluate(
+        "(() => { const w = document.getElementById('line-weight'); w.value = '2';"
+        " w.dispatchEvent(new Event('input')); })()"
+    )
     assert page.get_attribute("#projection-frame path.cut", "stroke-width") == "2"
     page.snap("mirrored-turned")
     assert errors == []

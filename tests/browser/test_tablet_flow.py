@@ -35,8 +35,14 @@ def test_it_takes_a_new_client_from_tape_to_an_issued_plan(tablet, live_server, 
     page.check("input[name=unit][value=in]")
     # 95 cm = 37.40 in, 37 3/8 to the nearest 1/16 (1 in = 25.4 mm exactly).
     page.wait_for_selector("#id_bust_girth[value='37 3/8']")
-    readings = {"bust_girth": "37 3/8", "underbust_girth": "31 1/8", "waist_girth": "29 1/4",
-                "abdomen_girth": "35 5/8", "hip_girth": "39 3/4", "bust_span": "7 1/4"}
+    readings = {
+        "bust_girth": "37 3/8",
+        "underbust_girth": "31 1/8",
+        "waist_girth": "29 1/4",
+        "abdomen_girth": "35 5/8",
+        "hip_girth": "39 3/4",
+        "bust_span": "7 1/4",
+    }
     for code, text in readings.items():
         page.fill(f"#id_{code}", text)
     page.fill("#id_underbust_girth", "39")  # a slip of the tape: more than the bust
@@ -74,7 +80,8 @@ def test_it_takes_a_new_client_from_tape_to_an_issued_plan(tablet, live_server, 
     revision = PlanRevision.objects.get(plan__client__reference="WF-0300", number=2)
     fixed = [s for s in revision.result["shifts"] if s["fixed"]]
     assert [(s["seam"], s["level"], s["panel"], s["shift_mm"]) for s in fixed] == [
-        ("Side seam", "waist", "Side front", pytest.approx(-9.525))]  # 3/8 in = 9.525 mm
+        ("Side seam", "waist", "Side front", pytest.approx(-9.525))
+    ]  # 3/8 in = 9.525 mm
     page.snap("revision")
 
     page.tap("text=Issue to the workroom")

@@ -26,23 +26,25 @@ from django.utils import timezone
 import atelier.urls
 import fittings.urls
 import fittings.urls_print
-from fittings.printing import cutting_sheet as cutting_sheet_doc, engine, registry, work_order as work_order_doc
-from fittings.services import printing
-from fittings.printing.data import WAIST_REDUCTION_CAUTION, DocumentData, altered_pattern, client_label, document_data
-from fittings.printing.cutting_sheet import render_cutting_sheet
-from fittings.printing.work_order import render_work_order, work_order_pdf
-from patterns.core import sheets
-from patterns.core.sheets import PANEL_GAP_MM, SHEET_MARGIN_MM
+from fittings import selectors
 from fittings.models import MeasurementSession, PrintJob, RevisionStatus
-from fittings.wording import in_unit
+from fittings.printing import cutting_sheet as cutting_sheet_doc
+from fittings.printing import engine, registry
+from fittings.printing import work_order as work_order_doc
+from fittings.printing.cutting_sheet import render_cutting_sheet
+from fittings.printing.data import WAIST_REDUCTION_CAUTION, DocumentData, altered_pattern, client_label, document_data
+from fittings.printing.work_order import render_work_order, work_order_pdf
 from fittings.services import plans as plan_services
+from fittings.services import printing
 from fittings.services.printing import run_print_job
+from fittings.wording import in_unit
+from patterns.core import sheets
 from patterns.core.allot import allot
 from patterns.core.fitting import body_from_measurements, load_fitting_text
 from patterns.core.measures import LEVEL_LABELS
+from patterns.core.sheets import PANEL_GAP_MM, SHEET_MARGIN_MM
 from patterns.core.tiling import OVERLAP_MM, PAGE_MARGIN_MM
 from patterns.core.units import format_length
-from fittings import selectors
 
 MM_PER_PT = 25.4 / 72  # ISO 32000-1 8.3.2.3 and the 1959 agreement
 EXAMPLES = Path(__file__).resolve().parents[2] / "patterns" / "examples"
@@ -65,10 +67,21 @@ def example_data(name: str, status: str = "issued") -> DocumentData:
     measurements, block, options = load_fitting_text((EXAMPLES / f"{name}.json").read_text())
     result = allot(block, body_from_measurements(measurements), options)
     return DocumentData(
-        atelier_name="Wrenfield Stays & Bodices", client_label="WF-0102", garment="Daily corset",
-        fitting_date=date(2025, 3, 4), measured_by="Demo Fitter", revision_number=3, revision_status=status,
-        issued_at=None, issued_by="", based_on=2, revision_url=f"{BASE_URL}/plans/7/revisions/3/",
-        measurements=measurements, block=block, options=options, result=result,
+        atelier_name="Wrenfield Stays & Bodices",
+        client_label="WF-0102",
+        garment="Daily corset",
+        fitting_date=date(2025, 3, 4),
+        measured_by="Demo Fitter",
+        revision_number=3,
+        revision_status=status,
+        issued_at=None,
+        issued_by="",
+        based_on=2,
+        revision_url=f"{BASE_URL}/plans/7/revisions/3/",
+        measurements=measurements,
+        block=block,
+        options=options,
+        result=result,
     )
 
 
@@ -133,8 +146,11 @@ def test_it_prints_on_the_paper_asked_for(pdfs, kind, paper):
 def test_it_draws_the_test_squares_at_true_size(pdfs, paper):
     with pdfplumber.open(io.BytesIO(pdfs("cutting_sheet", "strong", paper))) as doc:
         cover = doc.pages[0]
-        squares = [(r["width"] * MM_PER_PT, r["height"] * MM_PER_PT) for r in cover.rects
-                   if abs(r["width"] - r["height"]) * MM_PER_PT < 0.2 and r["width"] * MM_PER_PT > 90]
+        squares = [
+            (r["width"] * MM_PER_PT, r["height"] * MM_PER_PT)
+            for r in cover.rects
+            if abs(r["width"] - r["height"]) * MM_PER_PT < 0.2 and r["width"] * MM_PER_PT > 90
+        ]
         text = flat(cover.extract_text())
     # 10 cm, and 4 in = 101.6 mm (1959 agreement); to 0.2 mm.
     assert sorted(round(w, 1) for w, _ in squares) == [100.0, 101.6]
@@ -197,19 +213,32 @@ def test_it_draws_every_panel_at_true_size_across_the_tiles(pdfs, strong, bodice
             fw, fh = page.width * MM_PER_PT - 2 * PAGE_MARGIN_MM, page.height * MM_PER_PT - 2 * PAGE_MARGIN_MM
             frame = max(page.rects, key=lambda r: r["width"] * r["height"] if r["stroke"] and not r["fill"] else 0)
             assert [v * MM_PER_PT for v in (frame["x0"], frame["top"], frame["width"], frame["height"])] == (
-                pytest.approx([fx, fy, fw, fh], abs=0.1))
+                pytest.approx([fx, fy, fw, fh], abs=0.1)
+            )
             # Each tile starts one printable width less the overlap after the one before it.
             ox, oy = col * (fw - OVERLAP_MM), row * (fh - OVERLAP_MM)
             for curve in page.curves:
-                if not (_is_black(curve["stroking_color"]) and abs(curve["linewidth"] - cut_width_pt) < 0.01
-                        and len(curve["pts"]) > 8):
+                if not (
+                    _is_black(curve["stroking_color"])
+                    and abs(curve["linewidth"] - cut_width_pt) < 0.01
+                    and len(curve["pts"]) > 8
+                ):
                     continue
                 pts = [(x * MM_PER_PT, y * MM_PER_PT) for x, y in curve["pts"]]
-                whole = tuple(round(v * 2) / 2 for v in (
-                    min(x for x, _ in pts) - fx + ox, min(y for _, y in pts) - fy + oy,
-                    max(x for x, _ in pts) - fx + ox, max(y for _, y in pts) - fy + oy))
-                seen = [(x - fx + ox, y - fy + oy) for x, y in pts
-                        if fx - 0.01 <= x <= fx + fw + 0.01 and fy - 0.01 <= y <= fy + fh + 0.01]
+                whole = tuple(
+                    round(v * 2) / 2
+                    for v in (
+                        min(x for x, _ in pts) - fx + ox,
+                        min(y for _, y in pts) - fy + oy,
+                        max(x for x, _ in pts) - fx + ox,
+                        max(y for _, y in pts) - fy + oy,
+                    )
+                )
+                seen = [
+                    (x - fx + ox, y - fy + oy)
+                    for x, y in pts
+                    if fx - 0.01 <= x <= fx + fw + 0.01 and fy - 0.01 <= y <= fy + fh + 0.01
+                ]
                 # The same panel lands on the same place of the sheet from every tile.
                 groups.setdefault(whole, []).extend(seen)
     assert len(groups) == len(pattern.altered)
@@ -266,8 +295,9 @@ def test_it_lists_every_seam_shift_at_every_level_in_words(pdfs, strong, gentle,
         for panel in (seam.front_panel, seam.back_panel):
             row = next(r for r in rows if r[:2] == [seam.name, panel])
             cells = [cell.split(" set by hand")[0].split(" with pins")[0] for cell in row[2:]]
-            assert cells == [expected_cell(by_edge.get((seam.name, level, panel)), unit)
-                             for level in data.block.level_names]
+            assert cells == [
+                expected_cell(by_edge.get((seam.name, level, panel)), unit) for level in data.block.level_names
+            ]
             checked += 1
     assert checked == 2 * len(data.block.seams)
     text = text_of(pdfs("work_order", name, "a4"))
@@ -361,10 +391,12 @@ def test_it_embeds_its_fonts(pdfs):
 def _geometry(pdf: bytes):
     with pdfplumber.open(io.BytesIO(pdf)) as doc:
         return [
-            (page.extract_text(),
-             [tuple(round(r[k], 3) for k in ("x0", "top", "width", "height")) for r in page.rects],
-             [tuple((round(x, 3), round(y, 3)) for x, y in c["pts"]) for c in page.curves],
-             [tuple((round(x, 3), round(y, 3)) for x, y in line["pts"]) for line in page.lines])
+            (
+                page.extract_text(),
+                [tuple(round(r[k], 3) for k in ("x0", "top", "width", "height")) for r in page.rects],
+                [tuple((round(x, 3), round(y, 3)) for x, y in c["pts"]) for c in page.curves],
+                [tuple((round(x, 3), round(y, 3)) for x, y in line["pts"]) for line in page.lines],
+            )
             for page in doc.pages
         ]
 
@@ -400,8 +432,10 @@ def test_it_draws_the_cutting_sheet_in_a_second_process_with_the_same_bytes(pdfs
     settings.ATELIER_PRINT_PROCESSES = 2
     files = registry.render_documents(strong, "a4")
     assert len(forks) == 1
-    assert files == {"work_order": pdfs("work_order", "strong", "a4"),
-                     "cutting_sheet": pdfs("cutting_sheet", "strong", "a4")}
+    assert files == {
+        "work_order": pdfs("work_order", "strong", "a4"),
+        "cutting_sheet": pdfs("cutting_sheet", "strong", "a4"),
+    }
 
 
 def test_it_draws_one_after_the_other_when_told_or_when_threads_run(strong, forks, settings, monkeypatch):
@@ -450,8 +484,12 @@ PDF_STUB = b"%PDF-1.7\n% test stand-in\n"
 @pytest.fixture
 def quick_render(monkeypatch):
     """Stand-ins for WeasyPrint where a test is about the job, not the pages."""
-    monkeypatch.setattr("fittings.printing.work_order.render_work_order", lambda data, paper, pattern=None: PDF_STUB + b"WO")
-    monkeypatch.setattr("fittings.printing.cutting_sheet.render_cutting_sheet", lambda data, paper, pattern=None: PDF_STUB + b"CS")
+    monkeypatch.setattr(
+        "fittings.printing.work_order.render_work_order", lambda data, paper, pattern=None: PDF_STUB + b"WO"
+    )
+    monkeypatch.setattr(
+        "fittings.printing.cutting_sheet.render_cutting_sheet", lambda data, paper, pattern=None: PDF_STUB + b"CS"
+    )
 
 
 def start_url(revision):
@@ -508,10 +546,20 @@ def test_it_shows_progress_as_an_htmx_fragment_that_polls_until_done(fitter_clie
 def test_it_gives_up_on_a_job_its_worker_left_and_offers_to_print_again(fitter_client, plan):
     revision = plan_services.issue_revision(revision=selectors.latest_revision(plan), user=None)
     now = timezone.now()
-    left = PrintJob.objects.create(revision=revision, paper="a4", status="running", step="Drawing",
-                                   started_at=now - printing.WORKER_GONE_AFTER - timedelta(seconds=1))
-    busy = PrintJob.objects.create(revision=revision, paper="a4", status="running", step="Drawing",
-                                   started_at=now - printing.WORKER_GONE_AFTER + timedelta(seconds=30))
+    left = PrintJob.objects.create(
+        revision=revision,
+        paper="a4",
+        status="running",
+        step="Drawing",
+        started_at=now - printing.WORKER_GONE_AFTER - timedelta(seconds=1),
+    )
+    busy = PrintJob.objects.create(
+        revision=revision,
+        paper="a4",
+        status="running",
+        step="Drawing",
+        started_at=now - printing.WORKER_GONE_AFTER + timedelta(seconds=30),
+    )
     html = fitter_client.get(reverse("fittings:print_status", args=[left.pk]), headers={"HX-Request": "true"})
     left.refresh_from_db()
     assert left.status == "failed" and left.finished_at is not None and "worker stopped" in left.error
@@ -526,10 +574,13 @@ def test_it_gives_up_on_a_job_its_worker_left_and_offers_to_print_again(fitter_c
 def test_it_says_when_no_worker_takes_the_job(fitter_client, plan):
     revision = plan_services.issue_revision(revision=selectors.latest_revision(plan), user=None)
     fresh = PrintJob.objects.create(revision=revision, paper="a4")
-    stuck = PrintJob.objects.create(revision=revision, paper="a4",
-                                    created_at=timezone.now() - printing.NO_WORKER_AFTER - timedelta(seconds=1))
-    page = {job: fitter_client.get(reverse("fittings:print_status", args=[job.pk])).content.decode()
-            for job in (fresh, stuck)}
+    stuck = PrintJob.objects.create(
+        revision=revision, paper="a4", created_at=timezone.now() - printing.NO_WORKER_AFTER - timedelta(seconds=1)
+    )
+    page = {
+        job: fitter_client.get(reverse("fittings:print_status", args=[job.pk])).content.decode()
+        for job in (fresh, stuck)
+    }
     assert "No document worker" not in page[fresh] and "No document worker" in page[stuck]
     assert 'hx-trigger="every 1s"' in page[stuck]  # it still waits: a worker may start
     stuck.refresh_from_db()
@@ -570,8 +621,11 @@ def test_it_clears_old_files_but_keeps_the_jobs_and_offers_a_reprint(fitter_clie
 def test_it_sends_anonymous_visitors_to_the_login(client, plan, quick_render):
     revision = selectors.latest_revision(plan)
     job = PrintJob.objects.create(revision=revision, paper="a4")
-    for url in (reverse("fittings:print_download", args=[job.pk, "work-order"]),
-                reverse("fittings:print_status", args=[job.pk]), start_url(revision)):
+    for url in (
+        reverse("fittings:print_download", args=[job.pk, "work-order"]),
+        reverse("fittings:print_status", args=[job.pk]),
+        start_url(revision),
+    ):
         response = client.get(url)
         assert response.status_code == 302 and response["Location"].startswith(reverse("login"))
     response = client.post(start_url(revision), {"paper": "a4", "kind": "both"})
@@ -641,8 +695,9 @@ def test_it_lets_the_workroom_print_issued_revisions_only(workroom_client, fitte
 def test_it_refuses_to_issue_a_draft_the_engine_found_errors_in(fitter_client, fitter_user, reducing_client, corset_12):
     session = MeasurementSession.objects.create(client=reducing_client, unit="cm")
     session.measurements.create(code="bust_girth", value_mm=950)  # no waist, underbust, abdomen or hip
-    plan = plan_services.start_plan(client=reducing_client, session=session, pattern=corset_12,
-                                    garment="Corset", user=fitter_user)
+    plan = plan_services.start_plan(
+        client=reducing_client, session=session, pattern=corset_12, garment="Corset", user=fitter_user
+    )
     revision = selectors.latest_revision(plan)
     response = fitter_client.post(start_url(revision), {"paper": "a4", "kind": "both"})
     assert response.status_code == 400
@@ -791,11 +846,21 @@ def test_it_imports_weasyprint_without_its_deprecation_warning_where_harfbuzz_su
         "import weasyprint.text.ffi as ffi\n"
         "print('subset library:', ffi.harfbuzz_subset, len(pdf) > 500)\n"
     )
-    env = {**os.environ, "DJANGO_SETTINGS_MODULE": "atelier.settings", "ATELIER_DATA_DIR": str(tmp_path),
-           "PYTHONWARNINGS": "default"}
+    env = {
+        **os.environ,
+        "DJANGO_SETTINGS_MODULE": "atelier.settings",
+        "ATELIER_DATA_DIR": str(tmp_path),
+        "PYTHONWARNINGS": "default",
+    }
     env.pop("SOURCE_DATE_EPOCH", None)
-    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, env=env,
-                          cwd=Path(__file__).resolve().parents[2], timeout=120)
+    done = subprocess.run(
+        [sys.executable, "-c", script],
+        capture_output=True,
+        text=True,
+        env=env,
+        cwd=Path(__file__).resolve().parents[2],
+        timeout=120,
+    )
     assert done.returncode == 0, done.stderr
     assert done.stdout.strip() == "subset library: None True"
     assert "HarfBuzz" not in done.stderr and "fontTools" not in done.stderr, done.stderr

@@ -8,10 +8,10 @@ from django.test import override_settings
 from django.urls import reverse
 
 from fittings import fabric
+from fittings.models import Client, FabricLayout, LayoutStatus, Plan, PlanRevision
+from fittings.previews import altered_for
 from fittings.printing.data import document_data
 from fittings.printing.work_order import work_order_html
-from fittings.previews import altered_for
-from fittings.models import Client, FabricLayout, LayoutStatus, Plan, PlanRevision
 from fittings.services import layouts as layout_services
 from patterns.core.layout import SHELF, SOLVER, LayerRequest, Layout, LayoutError, layout_problems
 from patterns.core.units import format_with_unit
@@ -39,8 +39,15 @@ def url(revision, name="fittings:fabric_layout"):
 
 
 def post(client, revision, **changes):
-    data = {"use_fashion": "on", "width_fashion": "112", "use_lining": "on", "width_lining": "140",
-            "gap": "0.5", "seconds": "1", **changes}
+    data = {
+        "use_fashion": "on",
+        "width_fashion": "112",
+        "use_lining": "on",
+        "width_lining": "140",
+        "gap": "0.5",
+        "seconds": "1",
+        **changes,
+    }
     return client.post(url(revision, "fittings:fabric_layout_start"), data)
 
 
@@ -80,7 +87,7 @@ def test_it_lays_out_each_layer_and_shows_length_and_utilisation_in_centimetres(
     assert f"{100 * best.utilisation:.1f} %" in page
     assert page.count('class="fabric-layout"') == 2
     assert " style=" not in page and "<script>" not in page
-    assert "hx-trigger=\"every 1s\"" not in page  # finished: no more polling
+    assert 'hx-trigger="every 1s"' not in page  # finished: no more polling
     # The revision itself is untouched: the fabric belongs to the request.
     cm_revision.refresh_from_db()
     assert cm_revision.inputs == inputs and cm_revision.result == result
@@ -116,6 +123,7 @@ def test_it_shows_the_rows_layout_at_once_and_polls_while_the_solver_runs(workro
         def record(p):
             progress(p)
             seen.append(FabricLayout.objects.get(pk=job.pk).progress)
+
         return real(*args, progress=record, **kwargs)
 
     layout_services.PROGRESS_EVERY_S, saved = 0.0, layout_services.PROGRESS_EVERY_S
@@ -150,13 +158,16 @@ def test_it_keeps_the_rows_layout_and_says_why_when_the_search_fails(fitter_clie
     assert "no memory left" in page and "rows across the fabric" in page
 
 
-@pytest.mark.parametrize("changes, words", [
-    ({"width_fashion": "0"}, "The fabric width must be more than 0."),
-    ({"width_lining": "wide"}, "is not a length in centimetres"),
-    ({"width_fashion": "10"}, "wider than the fabric (10.0 cm)"),
-    ({"gap": "-1"}, "is not a length in centimetres"),
-    ({"use_fashion": "", "use_lining": ""}, "Choose at least one fabric layer."),
-])
+@pytest.mark.parametrize(
+    "changes, words",
+    [
+        ({"width_fashion": "0"}, "The fabric width must be more than 0."),
+        ({"width_lining": "wide"}, "is not a length in centimetres"),
+        ({"width_fashion": "10"}, "wider than the fabric (10.0 cm)"),
+        ({"gap": "-1"}, "is not a length in centimetres"),
+        ({"use_fashion": "", "use_lining": ""}, "Choose at least one fabric layer."),
+    ],
+)
 def test_it_refuses_a_bad_request_plainly_and_saves_nothing(fitter_client, cm_revision, changes, words):
     response = post(fitter_client, cm_revision, **changes)
     assert response.status_code == 400
@@ -166,8 +177,9 @@ def test_it_refuses_a_bad_request_plainly_and_saves_nothing(fitter_client, cm_re
 
 def test_it_refuses_a_time_out_of_range_in_the_service(cm_revision, fitter_user):
     with pytest.raises(LayoutError, match="whole number of seconds"):
-        layout_services.request_layout(revision=cm_revision, user=fitter_user,
-                                       layers=[LayerRequest("fashion", 1400.0)], gap_mm=5.0, budget_s=0)
+        layout_services.request_layout(
+            revision=cm_revision, user=fitter_user, layers=[LayerRequest("fashion", 1400.0)], gap_mm=5.0, budget_s=0
+        )
     assert not FabricLayout.objects.exists()
 
 
@@ -206,9 +218,12 @@ def test_it_prints_the_layout_asked_for_with_length_and_utilisation(fitter_clien
     assert "As laid out in the app" in html
     for layer, label in (("fashion", "Outer fabric"), ("lining", "Lining")):
         best = fabric.best_of(stored(job.shelf)[layer], stored(job.solved)[layer])
-        assert re.search(rf"<td>{label}</td><td class=\"num\">[^<]+</td><td class=\"num\">"
-                         rf"{re.escape(format_with_unit(best.length_mm, 'cm'))}</td><td class=\"num\">"
-                         rf"{100 * best.utilisation:.1f} %</td>", html), label
+        assert re.search(
+            rf"<td>{label}</td><td class=\"num\">[^<]+</td><td class=\"num\">"
+            rf"{re.escape(format_with_unit(best.length_mm, 'cm'))}</td><td class=\"num\">"
+            rf"{100 * best.utilisation:.1f} %</td>",
+            html,
+        ), label
     assert "<td>Strength layer</td>" not in html.split("<h2>Fabric layout</h2>")[1]
     assert html.count('src="data:image/svg+xml;base64,') == 2 + 1  # two widths, two drawings; the preview
 
@@ -224,8 +239,9 @@ def test_it_erases_a_clients_layouts_with_the_client(fitter_client, cm_revision)
 
 
 def test_it_shows_the_solver_only_where_it_takes_less_fabric(cm_revision, fitter_user):
-    job = layout_services.request_layout(revision=cm_revision, user=fitter_user,
-                                         layers=[LayerRequest("fashion", 1400.0)], gap_mm=5.0, budget_s=1)
+    job = layout_services.request_layout(
+        revision=cm_revision, user=fitter_user, layers=[LayerRequest("fashion", 1400.0)], gap_mm=5.0, budget_s=1
+    )
     (lay,) = fabric.job_layers(job)
     assert lay.shown.length_mm <= lay.shelf.length_mm
     # At 140 cm the twelve corset pieces fit in one row: the rows layout is already as short as the tallest piece.

@@ -5,12 +5,12 @@ import re
 import pytest
 from django.urls import reverse
 
+from fittings import selectors
 from fittings.forms import cell_name
 from fittings.services import plans as plan_services
+from patterns.core.fitting import allot_measurements
 from patterns.core.measures import LEVEL_LABELS
 from tests.fittings.test_views_plans import options_post
-from fittings import selectors
-from patterns.core.fitting import allot_measurements
 
 pytestmark = pytest.mark.django_db
 
@@ -29,7 +29,9 @@ def test_it_lets_htmx_swap_a_refused_recompute_and_says_why(fitter_client, plan)
     _, block, _ = selectors.revision_inputs(selectors.latest_revision(plan))
     side = next(i for i, s in enumerate(block.seams) if s.kind == "side")
     data = options_post(plan, ease_waist="-2 1/", **{cell_name(side, "waist", 0): "abc"})
-    fragment = fitter_client.post(reverse("fittings:plan_recompute", args=[plan.pk]), data, headers={"HX-Request": "true"})
+    fragment = fitter_client.post(
+        reverse("fittings:plan_recompute", args=[plan.pk]), data, headers={"HX-Request": "true"}
+    )
     assert fragment.status_code == 422
     html = fragment.content.decode()
     assert "Some values cannot be read" in html
@@ -46,7 +48,10 @@ def test_it_heads_the_pin_form_with_the_levels_and_names_each_cell(fitter_client
     url = reverse("fittings:revision_pins", args=[plan.pk, revision.number])
     html = fitter_client.get(url).content.decode()
     head = re.search(r"<thead>(.*?)</thead>", html, re.S).group(1)
-    assert re.findall(r'<th scope="col">([^<]+)</th>', head) == ["Seam", *(LEVEL_LABELS[lv] for lv in ("bust", "underbust", "waist", "abdomen", "hip"))]
+    assert re.findall(r'<th scope="col">([^<]+)</th>', head) == [
+        "Seam",
+        *(LEVEL_LABELS[lv] for lv in ("bust", "underbust", "waist", "abdomen", "hip")),
+    ]
     _, block, _ = selectors.revision_inputs(revision)
     assert f'aria-label="{block.seams[0].name}, waist: pin, in"' in html
     assert "pin-0-waist" not in re.findall(r'aria-label="([^"]*)"', html)[0]
@@ -69,18 +74,26 @@ def _inch_plan_with_a_heavy_fixed_cell(plan):
 
 def test_it_writes_every_length_of_an_inch_plan_in_inches(fitter_client, plan):
     """Findings (the hand-fix warning, the reduction caution) on screen in the plan's unit."""
-    html = fitter_client.post(reverse("fittings:plan_recompute", args=[plan.pk]), _inch_plan_with_a_heavy_fixed_cell(plan),
-                              headers={"HX-Request": "true"}).content.decode()
+    html = fitter_client.post(
+        reverse("fittings:plan_recompute", args=[plan.pk]),
+        _inch_plan_with_a_heavy_fixed_cell(plan),
+        headers={"HX-Request": "true"},
+    ).content.decode()
     read = re.search(r'id="findings-heading">.*?</section>', html, re.S).group(0)
     assert "set by hand" in read and "waist reduction of 6 in" in read
     assert not re.search(r"\d\s?(mm|cm)\b", read), read
 
 
 def test_it_prints_the_findings_of_an_inch_plan_in_inches(fitter_client, plan):
-    from fittings.printing import data as printed, work_order
+    from fittings.printing import data as printed
+    from fittings.printing import work_order
 
-    assert fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]),
-                              _inch_plan_with_a_heavy_fixed_cell(plan)).status_code == 302
+    assert (
+        fitter_client.post(
+            reverse("fittings:plan_edit", args=[plan.pk]), _inch_plan_with_a_heavy_fixed_cell(plan)
+        ).status_code
+        == 302
+    )
     data = printed.document_data(selectors.latest_revision(plan))
     pattern = printed.altered_pattern(data)
     texts = [row["message"] for row in work_order.finding_rows(data, pattern)] + printed.cautions(data)
@@ -110,9 +123,14 @@ def test_it_suggests_a_size_in_the_session_unit_and_in_order_within_the_garment(
 
 def test_it_names_the_measurement_and_puts_the_advice_beside_it(fitter_client, reducing_client):
     url = reverse("fittings:session_check", args=[reducing_client.pk])
-    html = fitter_client.post(url, {"unit": "in", "bust_girth": "30", "underbust_girth": "33",
-                                    "waist_girth": "90"}, headers={"HX-Request": "true"}).content.decode()
-    assert re.search(r'<p class="note" data-for="bust_girth"><a href="#id_bust_girth">Bust girth</a>: Bust is smaller', html)
+    html = fitter_client.post(
+        url,
+        {"unit": "in", "bust_girth": "30", "underbust_girth": "33", "waist_girth": "90"},
+        headers={"HX-Request": "true"},
+    ).content.decode()
+    assert re.search(
+        r'<p class="note" data-for="bust_girth"><a href="#id_bust_girth">Bust girth</a>: Bust is smaller', html
+    )
     beside = re.search(r'id="advice-waist_girth" hx-swap-oob="true">(.*?)</span></span>', html, re.S).group(1)
     assert "Unusual value" in beside and " in here" in beside and " cm" not in beside
     assert re.search(r'id="advice-hip_girth" hx-swap-oob="true"></span>', html)  # cleared where nothing is to say
@@ -120,7 +138,8 @@ def test_it_names_the_measurement_and_puts_the_advice_beside_it(fitter_client, r
 
 def test_it_starts_an_inch_plan_from_the_trades_inch_values(fitter_client, plan):
     """5/8 in seam allowance and a 2 in lacing gap (common practice), not 1.5 cm and 5 cm converted."""
-    from fittings.printing import data as printed, work_order
+    from fittings.printing import data as printed
+    from fittings.printing import work_order
 
     revision = selectors.latest_revision(plan)
     values, block, options = selectors.revision_inputs(revision)
@@ -129,7 +148,9 @@ def test_it_starts_an_inch_plan_from_the_trades_inch_values(fitter_client, plan)
     if block.centre_back == "laced":
         assert options.lacing_gap_mm == pytest.approx(50.8)  # 2 in = 50.8 mm
         page = fitter_client.get(reverse("fittings:plan_edit", args=[plan.pk])).content.decode()
-        assert re.search(r'name="lacing_gap"[^>]*value="2"', page) or re.search(r'value="2"[^>]*name="lacing_gap"', page)
+        assert re.search(r'name="lacing_gap"[^>]*value="2"', page) or re.search(
+            r'value="2"[^>]*name="lacing_gap"', page
+        )
     html = work_order.work_order_html(printed.document_data(revision), "a4")
     assert "5/8 in" in re.search(r"Seam allowance</th><td>([^<]*)", html).group(1)
 
@@ -138,14 +159,26 @@ def test_it_shows_pins_and_lacing_gap_so_the_girth_table_adds_up(fitter_client, 
     revision = selectors.latest_revision(plan)
     pins_url = reverse("fittings:revision_pins", args=[plan.pk, revision.number])
     fitter_client.post(pins_url, {"pin-0-waist": "-1/2", "note": "", "version": plan.version})
-    fitter_client.post(reverse("fittings:revision_apply_pins", args=[plan.pk, revision.number]), {"version": plan.version})
+    fitter_client.post(
+        reverse("fittings:revision_apply_pins", args=[plan.pk, revision.number]), {"version": plan.version}
+    )
     pinned = selectors.latest_revision(plan)
     assert pinned.number == 2
     response = fitter_client.get(reverse("fittings:revision_detail", args=[plan.pk, 2]))
     html = response.content.decode()
     head = re.search(r'id="levels-heading".*?</thead>', html, re.S).group(0)
     assert re.findall(r'<th scope="col">([^<]+)</th>', head) == [
-        "Level", "Body", "Ease", "Lacing gap", "Target", "Pattern", "Difference", "Seams give", "Pins", "Left over"]
+        "Level",
+        "Body",
+        "Ease",
+        "Lacing gap",
+        "Target",
+        "Pattern",
+        "Difference",
+        "Seams give",
+        "Pins",
+        "Left over",
+    ]
     result = selectors.revision_result(pinned)
     waist = next(lv for lv in result.levels if lv.level == "waist")
     row = re.search(r"<tr><th scope=\"row\">Waist.*?</tr>", html, re.S).group(0)
@@ -177,18 +210,22 @@ def test_it_words_the_seam_checks_with_both_edges_before_and_after(fitter_client
 
 
 def test_it_does_not_call_a_change_below_the_tapes_step_a_change(fitter_client, fitter_user, reducing_client):
-    from fittings.services import clients as client_services
     from decimal import Decimal
+
+    from fittings.services import clients as client_services
 
     first = reducing_client.sessions.order_by("taken_on").first()
     values = {m.code: m.value_mm for m in first.measurements.all()}
     nudged = {**values, "waist_girth": values["waist_girth"] + Decimal("0.4")}  # 0.4 mm: under 1/16 in (1.5875 mm)
     second = client_services.record_session(
-        client=reducing_client, user=fitter_user, values=nudged,
+        client=reducing_client,
+        user=fitter_user,
+        values=nudged,
         form_data={"taken_on": first.taken_on, "kind": "check", "unit": "in", "posture_notes": "", "notes": ""},
     )
-    html = fitter_client.get(reverse("fittings:compare", args=[reducing_client.pk]),
-                             {"a": f"s{first.pk}", "b": f"s{second.pk}"}).content.decode()
+    html = fitter_client.get(
+        reverse("fittings:compare", args=[reducing_client.pk]), {"a": f"s{first.pk}", "b": f"s{second.pk}"}
+    ).content.decode()
     assert '<tr class=""><th scope="row">Waist girth</th>' in html
     assert 'class="differs"' not in html
     day = first.taken_on
@@ -212,13 +249,17 @@ def test_it_opens_the_compare_chooser_with_two_different_choices_and_no_error(fi
 
 def test_it_serves_the_preview_so_it_renders_opened_alone(fitter_client, plan):
     revision = selectors.latest_revision(plan)
-    for url in (reverse("fittings:revision_preview", args=[plan.pk, revision.number]),
-                reverse("fittings:plan_preview", args=[plan.pk])):
+    for url in (
+        reverse("fittings:revision_preview", args=[plan.pk, revision.number]),
+        reverse("fittings:plan_preview", args=[plan.pk]),
+    ):
         response = fitter_client.get(url)
         assert response.status_code == 200 and response["Content-Type"] == "image/svg+xml"
         svg = response.content.decode()
         assert "<style" in svg or 'style="' in svg  # the drawing is styled inline
-        policy = dict(part.strip().split(" ", 1) for part in response["Content-Security-Policy"].split(";") if part.strip())
+        policy = dict(
+            part.strip().split(" ", 1) for part in response["Content-Security-Policy"].split(";") if part.strip()
+        )
         assert "'unsafe-inline'" in policy["style-src"]
         assert policy["script-src"] == "'none'" and policy["default-src"] == "'none'"
     page = fitter_client.get(reverse("fittings:plan_edit", args=[plan.pk]))
@@ -234,8 +275,14 @@ def _jpeg(size=(640, 960)):
 def test_it_says_which_photos_to_choose_again_when_the_session_form_comes_back(fitter_client, reducing_client):
     from django.core.files.uploadedfile import SimpleUploadedFile
 
-    data = {"taken_on": "2026-11-30", "kind": "first", "unit": "in", "bust_girth": "abc", "done": "1",
-            "photo_back": SimpleUploadedFile("back.jpg", _jpeg())}
+    data = {
+        "taken_on": "2026-11-30",
+        "kind": "first",
+        "unit": "in",
+        "bust_girth": "abc",
+        "done": "1",
+        "photo_back": SimpleUploadedFile("back.jpg", _jpeg()),
+    }
     response = fitter_client.post(reverse("fittings:session_new", args=[reducing_client.pk]), data)
     assert response.status_code == 400
     html = response.content.decode()
@@ -253,16 +300,27 @@ def test_it_shows_the_photos_large_on_the_plan_page_with_delete_and_replace(fitt
     html = fitter_client.get(url).content.decode()
     card = re.search(r'<section class="card photos-card".*?</section>', html, re.S).group(0)
     assert f'src="{reverse("fittings:photo_file", args=[photo.pk])}"' in card and 'width="120"' not in card
-    assert reverse("fittings:photo_replace", args=[photo.pk]) in card and reverse("fittings:photo_delete", args=[photo.pk]) in card
-    assert "<form" not in re.search(r'id="plan-form".*?</form>', html, re.S).group(0)[10:]  # no form inside the plan form
+    assert (
+        reverse("fittings:photo_replace", args=[photo.pk]) in card
+        and reverse("fittings:photo_delete", args=[photo.pk]) in card
+    )
+    assert (
+        "<form" not in re.search(r'id="plan-form".*?</form>', html, re.S).group(0)[10:]
+    )  # no form inside the plan form
 
-    replaced = fitter_client.post(reverse("fittings:photo_replace", args=[photo.pk]),
-                                  {"image": SimpleUploadedFile("new.jpg", _jpeg((500, 700))), "next": url})
+    replaced = fitter_client.post(
+        reverse("fittings:photo_replace", args=[photo.pk]),
+        {"image": SimpleUploadedFile("new.jpg", _jpeg((500, 700))), "next": url},
+    )
     assert replaced.status_code == 302 and replaced["Location"] == url
     new = Photo.objects.get(session=plan.session, view="back")
     assert new.pk != photo.pk
-    deleted = fitter_client.post(reverse("fittings:photo_delete", args=[new.pk]), {"next": "https://elsewhere.example/"})
-    assert deleted.status_code == 302 and deleted["Location"] == reverse("fittings:session_edit", args=[plan.session.pk])
+    deleted = fitter_client.post(
+        reverse("fittings:photo_delete", args=[new.pk]), {"next": "https://elsewhere.example/"}
+    )
+    assert deleted.status_code == 302 and deleted["Location"] == reverse(
+        "fittings:session_edit", args=[plan.session.pk]
+    )
     assert not Photo.objects.filter(session=plan.session).exists()
 
 
@@ -308,16 +366,21 @@ def test_it_warns_before_importing_another_clients_fitting_file(fitter_client, p
     assert refused.status_code == 400 and Plan.objects.count() == before
     assert f"This fitting file was made for client {plan.client.reference}, not WF-0101" in html
     assert 'name="other_client"' in html and 'value="Copy"' in html
-    taken = fitter_client.post(url, {"file": SimpleUploadedFile("f.json", exported), "garment": "Copy", "other_client": "1"})
+    taken = fitter_client.post(
+        url, {"file": SimpleUploadedFile("f.json", exported), "garment": "Copy", "other_client": "1"}
+    )
     assert taken.status_code == 302 and Plan.objects.get(garment="Copy").client == other
 
 
-@pytest.mark.parametrize("content", [b'{"format": "atelier-fitting",', b"[" * 5000 + b"]" * 5000, b'{"measurements": 3}'])
+@pytest.mark.parametrize(
+    "content", [b'{"format": "atelier-fitting",', b"[" * 5000 + b"]" * 5000, b'{"measurements": 3}']
+)
 def test_it_says_plainly_that_a_broken_file_cannot_be_read(fitter_client, plan, content):
     from django.core.files.uploadedfile import SimpleUploadedFile
 
-    response = fitter_client.post(reverse("fittings:fitting_import", args=[plan.client.pk]),
-                                  {"file": SimpleUploadedFile("f.json", content)})
+    response = fitter_client.post(
+        reverse("fittings:fitting_import", args=[plan.client.pk]), {"file": SimpleUploadedFile("f.json", content)}
+    )
     error = re.search(r'id="import-error">(.*?)</div>', response.content.decode(), re.S).group(1)
     assert response.status_code == 400
     assert "Export the fitting file again" in error
@@ -325,14 +388,17 @@ def test_it_says_plainly_that_a_broken_file_cannot_be_read(fitter_client, plan, 
         assert raw not in error.replace("&#x27;", "'"), error
 
 
-def test_it_gives_the_workroom_a_queue_of_issued_revisions_and_no_contacts_or_drafts(workroom_client, fitter_user, plan):
+def test_it_gives_the_workroom_a_queue_of_issued_revisions_and_no_contacts_or_drafts(
+    workroom_client, fitter_user, plan
+):
     issued = plan_services.issue_revision(revision=selectors.latest_revision(plan), user=fitter_user)
-    draft = plan_services.save_revision(plan=plan, options=selectors.revision_inputs(issued)[2], user=fitter_user,
-                                        expected_version=plan.version)
+    draft = plan_services.save_revision(
+        plan=plan, options=selectors.revision_inputs(issued)[2], user=fitter_user, expected_version=plan.version
+    )
     assert workroom_client.get(reverse("fittings:client_list"))["Location"] == reverse("fittings:workroom_queue")
     html = workroom_client.get(reverse("fittings:workroom_queue")).content.decode()
     assert f'href="{reverse("fittings:revision_detail", args=[plan.pk, issued.number])}"' in html
-    assert f'revisions/{draft.number}/' not in html
+    assert f"revisions/{draft.number}/" not in html
     assert plan.client.contact not in html and "To cut" in html
     assert workroom_client.get(reverse("fittings:client_detail", args=[plan.client.pk])).status_code == 403
     refused = workroom_client.get(reverse("fittings:revision_detail", args=[plan.pk, draft.number]))
@@ -342,7 +408,9 @@ def test_it_gives_the_workroom_a_queue_of_issued_revisions_and_no_contacts_or_dr
     assert reverse("fittings:workroom_queue") in printing.content.decode()  # not a dead end
     # The live plan page (editable cells) sends the workroom to the issued revision, read-only.
     sent = workroom_client.get(reverse("fittings:plan_edit", args=[plan.pk]))
-    assert sent.status_code == 302 and sent["Location"] == reverse("fittings:revision_detail", args=[plan.pk, issued.number])
+    assert sent.status_code == 302 and sent["Location"] == reverse(
+        "fittings:revision_detail", args=[plan.pk, issued.number]
+    )
     page = workroom_client.get(sent["Location"]).content.decode()
     assert "<input" not in re.search(r'id="edges-heading".*?</section>', page, re.S).group(0)
     assert plan.client.contact not in page
@@ -362,7 +430,9 @@ def test_it_reaches_admin_client_details_removal_and_the_way_back_by_tap(fitter_
     assert f'href="{reverse("admin:index")}"' not in fitter_page and "client_delete" not in fitter_page
     edit = reverse("fittings:client_edit", args=[client.pk])
     assert f'href="{edit}"' in fitter_page
-    saved = fitter_client.post(edit, {"reference": client.reference, "name": "Odalys Brenneman-Vey", "contact": "07700 900123"})
+    saved = fitter_client.post(
+        edit, {"reference": client.reference, "name": "Odalys Brenneman-Vey", "contact": "07700 900123"}
+    )
     assert saved.status_code == 302
     client.refresh_from_db()
     assert (client.name, client.contact) == ("Odalys Brenneman-Vey", "07700 900123")
@@ -371,7 +441,9 @@ def test_it_reaches_admin_client_details_removal_and_the_way_back_by_tap(fitter_
     entry = AuditEntry.objects.filter(object_type="client", object_id=str(client.pk)).order_by("-id").first()
     assert entry.before["name"] != "Odalys Brenneman-Vey" and entry.after["name"] == "Odalys Brenneman-Vey"
     status = reverse("fittings:print_start", args=[plan.pk, 1])
-    assert f'href="{reverse("fittings:revision_detail", args=[plan.pk, 1])}"' in fitter_client.get(status).content.decode()
+    assert (
+        f'href="{reverse("fittings:revision_detail", args=[plan.pk, 1])}"' in fitter_client.get(status).content.decode()
+    )
 
 
 def test_it_proofs_a_draft_without_issuing_it_with_draft_on_every_page(fitter_client, plan):
@@ -398,7 +470,9 @@ def test_it_proofs_a_draft_without_issuing_it_with_draft_on_every_page(fitter_cl
 def test_it_offers_a_reset_to_the_saved_revision_on_the_plan_page(fitter_client, plan):
     url = reverse("fittings:plan_edit", args=[plan.pk])
     html = fitter_client.get(url).content.decode()
-    assert re.search(rf'<a class="button button-quiet" href="{url}" id="reset-to-saved">Reset to saved revision 1</a>', html)
+    assert re.search(
+        rf'<a class="button button-quiet" href="{url}" id="reset-to-saved">Reset to saved revision 1</a>', html
+    )
 
 
 def test_it_says_at_the_dot_why_a_seam_is_locked_at_a_level(fitter_client, plan):
@@ -407,15 +481,21 @@ def test_it_says_at_the_dot_why_a_seam_is_locked_at_a_level(fitter_client, plan)
     seam, level = next((s, lv) for s in block.seams for lv in block.level_names if lv not in s.alterable_at)
     html = fitter_client.get(reverse("fittings:plan_edit", args=[plan.pk])).content.decode()
     where = LEVEL_LABELS[level].lower()
-    assert re.search(rf'<details class="why"><summary aria-label="Not altered here. Why\?">·</summary><span class="why-text">'
-                     rf'Locked: the base pattern keeps the {re.escape(seam.name)} as drafted at the {re.escape(where)}; '
-                     rf'it (may move at the [^<]+|is never moved)\.</span></details>', html)
+    assert re.search(
+        rf'<details class="why"><summary aria-label="Not altered here. Why\?">·</summary><span class="why-text">'
+        rf"Locked: the base pattern keeps the {re.escape(seam.name)} as drafted at the {re.escape(where)}; "
+        rf"it (may move at the [^<]+|is never moved)\.</span></details>",
+        html,
+    )
 
 
 def test_it_writes_the_measuring_hints_in_the_tapes_unit(fitter_client, reducing_client):
     html = fitter_client.get(reverse("fittings:session_new", args=[reducing_client.pk])).content.decode()
     hints = re.findall(r'<small class="how">([^<]*)</small>', html)
     assert hints and not [h for h in hints if re.search(r"\d\s?(mm|cm)\b", h)]  # the last session was in inches
-    converted = fitter_client.post(reverse("fittings:session_convert", args=[reducing_client.pk]),
-                                   {"typed_unit": "in", "unit": "cm"}, headers={"HX-Request": "true"}).content.decode()
+    converted = fitter_client.post(
+        reverse("fittings:session_convert", args=[reducing_client.pk]),
+        {"typed_unit": "in", "unit": "cm"},
+        headers={"HX-Request": "true"},
+    ).content.decode()
     assert "10 cm below the waist" in converted

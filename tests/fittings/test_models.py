@@ -10,13 +10,23 @@ from django.db.models import ProtectedError
 from django.utils import timezone
 
 from fittings.models import (
-    Client, Measurement, MeasurementSession, PinAdjustment, Plan, PlanRevision, RevisionLocked,
+    Client,
+    Measurement,
+    MeasurementSession,
+    PinAdjustment,
+    Plan,
+    PlanRevision,
+    RevisionLocked,
 )
 from fittings.selectors import client_timeline
 
 pytestmark = pytest.mark.django_db
 
-INPUTS = {"measurements": {"waist_girth": 742.0}, "pattern": {"name": "Bodice", "size": "12"}, "options": {"unit": "cm"}}
+INPUTS = {
+    "measurements": {"waist_girth": 742.0},
+    "pattern": {"name": "Bodice", "size": "12"},
+    "options": {"unit": "cm"},
+}
 RESULT = {"seams": [{"name": "Side seam", "waist": -4.5}], "findings": []}
 
 
@@ -32,7 +42,9 @@ def session(hester):
 
 @pytest.fixture
 def plan(hester, session, bodice_pattern, fitter_user):
-    return Plan.objects.create(client=hester, garment="Gala bodice", base_pattern=bodice_pattern, session=session, created_by=fitter_user)
+    return Plan.objects.create(
+        client=hester, garment="Gala bodice", base_pattern=bodice_pattern, session=session, created_by=fitter_user
+    )
 
 
 @pytest.fixture
@@ -203,7 +215,9 @@ def test_it_numbers_revisions_once_per_plan(draft):
 
 
 def test_it_keeps_the_sign_of_a_pin(issued, fitter_user):
-    PinAdjustment.objects.create(revision=issued, seam="Side seam", level="waist", amount_mm=Decimal("-6"), created_by=fitter_user)
+    PinAdjustment.objects.create(
+        revision=issued, seam="Side seam", level="waist", amount_mm=Decimal("-6"), created_by=fitter_user
+    )
     PinAdjustment.objects.create(revision=issued, seam="Side seam", level="hip", amount_mm=Decimal("3.175"))
     assert sorted(issued.pins.values_list("amount_mm", flat=True)) == [Decimal("-6.0000"), Decimal("3.1750")]
 
@@ -213,13 +227,17 @@ def test_it_keeps_the_sign_of_a_pin(issued, fitter_user):
 
 def add_history(client_obj, pattern, user, sessions=2, plans=2):
     for n in range(sessions):
-        session = MeasurementSession.objects.create(client=client_obj, taken_on=date(2025, 1, 1) + timedelta(days=n), measured_by=user)
+        session = MeasurementSession.objects.create(
+            client=client_obj, taken_on=date(2025, 1, 1) + timedelta(days=n), measured_by=user
+        )
         Measurement.objects.bulk_create(
             Measurement(session=session, code=code, value_mm=Decimal(value))
             for code, value in (("waist_girth", "742"), ("hip_girth", "1008"), ("bust_girth", "955"))
         )
     for n in range(plans):
-        plan = Plan.objects.create(client=client_obj, garment=f"Bodice {n}", base_pattern=pattern, session=session, created_by=user)
+        plan = Plan.objects.create(
+            client=client_obj, garment=f"Bodice {n}", base_pattern=pattern, session=session, created_by=user
+        )
         first = PlanRevision.objects.create(plan=plan, number=1, inputs=INPUTS, result=RESULT, author=user)
         PlanRevision.objects.create(plan=plan, number=2, based_on=first, inputs=INPUTS, result=RESULT, author=user)
         PinAdjustment.objects.create(revision=first, seam="Side seam", level="waist", amount_mm=Decimal("-4"))
@@ -227,13 +245,16 @@ def add_history(client_obj, pattern, user, sessions=2, plans=2):
 
 def read_everything(timeline):
     return [
-        (item.obj.measured_by.username, item.obj.measure_count, item.obj.photo_count) if item.kind == "session" else
-        (item.obj.base_pattern.name, item.obj.session.taken_on, [r.number for r in item.obj.revisions.all()])
+        (item.obj.measured_by.username, item.obj.measure_count, item.obj.photo_count)
+        if item.kind == "session"
+        else (item.obj.base_pattern.name, item.obj.session.taken_on, [r.number for r in item.obj.revisions.all()])
         for item in timeline
     ]
 
 
-def test_it_lists_a_clients_history_in_one_query_per_table(hester, bodice_pattern, fitter_user, django_assert_num_queries):
+def test_it_lists_a_clients_history_in_one_query_per_table(
+    hester, bodice_pattern, fitter_user, django_assert_num_queries
+):
     add_history(hester, bodice_pattern, fitter_user, sessions=2, plans=2)
     # sessions (with their counts of readings and photos), plans, revisions
     with django_assert_num_queries(3):

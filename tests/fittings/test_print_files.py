@@ -31,20 +31,30 @@ def test_it_moves_the_file_names_into_rows_and_back(demo_atelier):
     try:
         old = _migrate(BEFORE)
         OldJob = old.get_model("fittings", "PrintJob")
-        both = OldJob.objects.create(revision_id=revision_id, status="done", kind="both",
-                                     work_order="print/2026/01/aa.pdf", cutting_sheet="print/2026/01/bb.pdf")
-        one = OldJob.objects.create(revision_id=revision_id, status="done", kind="cutting_sheet",
-                                    cutting_sheet="print/2026/01/cc.pdf")
+        both = OldJob.objects.create(
+            revision_id=revision_id,
+            status="done",
+            kind="both",
+            work_order="print/2026/01/aa.pdf",
+            cutting_sheet="print/2026/01/bb.pdf",
+        )
+        one = OldJob.objects.create(
+            revision_id=revision_id, status="done", kind="cutting_sheet", cutting_sheet="print/2026/01/cc.pdf"
+        )
         none = OldJob.objects.create(revision_id=revision_id, status="failed", kind="both")
 
         new = _migrate(AFTER)
         rows = set(new.get_model("fittings", "PrintFile").objects.values_list("job_id", "document", "file"))
-        assert rows == {(both.pk, "work-order", "print/2026/01/aa.pdf"),
-                        (both.pk, "cutting-sheet", "print/2026/01/bb.pdf"),
-                        (one.pk, "cutting-sheet", "print/2026/01/cc.pdf")}
+        assert rows == {
+            (both.pk, "work-order", "print/2026/01/aa.pdf"),
+            (both.pk, "cutting-sheet", "print/2026/01/bb.pdf"),
+            (one.pk, "cutting-sheet", "print/2026/01/cc.pdf"),
+        }
 
         old = _migrate(BEFORE)
-        back = {j.pk: (j.work_order.name, j.cutting_sheet.name) for j in old.get_model("fittings", "PrintJob").objects.all()}
+        back = {
+            j.pk: (j.work_order.name, j.cutting_sheet.name) for j in old.get_model("fittings", "PrintJob").objects.all()
+        }
         assert back[both.pk] == ("print/2026/01/aa.pdf", "print/2026/01/bb.pdf")
         assert back[one.pk] == ("", "print/2026/01/cc.pdf")
         assert back[none.pk] == ("", "")
@@ -66,8 +76,9 @@ def test_it_keeps_one_file_per_document_and_clears_them_with_their_rows(demo_ate
     from django.utils import timezone
 
     revision_id = demo_atelier_revision()
-    job = PrintJob.objects.create(revision_id=revision_id, status=PrintStatus.DONE,
-                                  finished_at=timezone.now() - timedelta(days=40))
+    job = PrintJob.objects.create(
+        revision_id=revision_id, status=PrintStatus.DONE, finished_at=timezone.now() - timedelta(days=40)
+    )
     kept = PrintFile(job=job, document="work-order")
     kept.file.save("w.pdf", ContentFile(b"%PDF-1.4 test\n"), save=True)
     path = kept.file.path

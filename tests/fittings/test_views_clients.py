@@ -25,8 +25,15 @@ def test_it_creates_a_client(fitter_client):
     assert response.status_code == 302 and response["Location"] == reverse("fittings:client_detail", args=[client.pk])
 
 
-@pytest.mark.parametrize("data", [{"reference": "", "name": "A"}, {"reference": "WF-1", "name": ""},
-                                  {"reference": "R" * 33, "name": "A"}, {"reference": "WF-1", "name": "A", "consent_given_on": "yesterday"}])
+@pytest.mark.parametrize(
+    "data",
+    [
+        {"reference": "", "name": "A"},
+        {"reference": "WF-1", "name": ""},
+        {"reference": "R" * 33, "name": "A"},
+        {"reference": "WF-1", "name": "A", "consent_given_on": "yesterday"},
+    ],
+)
 def test_it_refuses_a_bad_client_and_saves_nothing(fitter_client, data):
     response = fitter_client.post(reverse("fittings:client_new"), data)
     assert response.status_code == 400 and 'class="field-error"' in response.content.decode()
@@ -47,17 +54,30 @@ def test_it_reads_a_session_in_inches_with_fractions(fitter_client, demo_atelier
     session = client.sessions.get(taken_on="2026-11-30")
     values = {m.code: m.value_mm for m in session.measurements.all()}
     # 1 in = 25.4 mm exactly (1959 international yard and pound agreement).
-    assert values == {"bust_girth": Decimal("949.3250"), "underbust_girth": Decimal("787.4000"),
-                      "waist_girth": Decimal("738.1875")}
+    assert values == {
+        "bust_girth": Decimal("949.3250"),
+        "underbust_girth": Decimal("787.4000"),
+        "waist_girth": Decimal("738.1875"),
+    }
     page = fitter_client.get(reverse("fittings:session_edit", args=[session.pk]))
     assert 'value="37 3/8"' in page.content.decode()
 
 
-@pytest.mark.parametrize("values", [
-    {"bust_girth": "abc"}, {"bust_girth": "-90"}, {"bust_girth": "NaN"}, {"bust_girth": "inf"},
-    {"bust_girth": "9000"}, {"bust_girth": "27 3/8"}, {}, {"bust_girth": "90", "kind": "fitting"},
-    {"bust_girth": "90", "unit": "yd"}, {"bust_girth": "90", "taken_on": "2026-13-45"},
-])
+@pytest.mark.parametrize(
+    "values",
+    [
+        {"bust_girth": "abc"},
+        {"bust_girth": "-90"},
+        {"bust_girth": "NaN"},
+        {"bust_girth": "inf"},
+        {"bust_girth": "9000"},
+        {"bust_girth": "27 3/8"},
+        {},
+        {"bust_girth": "90", "kind": "fitting"},
+        {"bust_girth": "90", "unit": "yd"},
+        {"bust_girth": "90", "taken_on": "2026-13-45"},
+    ],
+)
 def test_it_refuses_bad_readings_and_saves_nothing(fitter_client, demo_atelier, values):
     client = Client.objects.get(reference="WF-0101")
     before = (MeasurementSession.objects.count(), Measurement.objects.count())
@@ -69,9 +89,11 @@ def test_it_refuses_bad_readings_and_saves_nothing(fitter_client, demo_atelier, 
 
 def test_it_advises_while_typing(fitter_client, demo_atelier):
     client = Client.objects.get(reference="WF-0101")
-    response = fitter_client.post(reverse("fittings:session_check", args=[client.pk]),
-                                  session_post(bust_girth="70", underbust_girth="80", waist_girth="110"),
-                                  headers={"HX-Request": "true"})
+    response = fitter_client.post(
+        reverse("fittings:session_check", args=[client.pk]),
+        session_post(bust_girth="70", underbust_girth="80", waist_girth="110"),
+        headers={"HX-Request": "true"},
+    )
     html = response.content.decode()
     assert response.status_code == 200 and html.lstrip().startswith('<div id="session-notes"')
     assert "Bust is smaller than underbust" in html
@@ -83,17 +105,20 @@ def test_it_rewrites_the_typed_readings_when_the_tape_unit_is_switched(fitter_cl
     # 1/16 in 35 7/16; 27 3/8 in = 695.325 mm, 69.5 cm to the millimetre.
     client = Client.objects.get(reference="WF-0101")
     url = reverse("fittings:session_convert", args=[client.pk])
-    to_inches = fitter_client.post(url, session_post(unit="in", typed_unit="cm", bust_girth="90",
-                                                     waist_girth="70,5", hip_girth="lots"),
-                                   headers={"HX-Request": "true"})
+    to_inches = fitter_client.post(
+        url,
+        session_post(unit="in", typed_unit="cm", bust_girth="90", waist_girth="70,5", hip_girth="lots"),
+        headers={"HX-Request": "true"},
+    )
     html = to_inches.content.decode()
     assert to_inches.status_code == 200 and html.lstrip().startswith('<fieldset class="card" id="session-measures"')
     assert 'name="bust_girth" value="35 7/16"' in html
     assert 'name="waist_girth" value="27 3/4"' in html  # 70.5 cm = 27.756 in
     assert 'name="hip_girth" value="lots"' in html  # not a length: left for the fitter to see
     assert 'name="typed_unit" value="in"' in html
-    back = fitter_client.post(url, session_post(unit="cm", typed_unit="in", bust_girth="27 3/8"),
-                              headers={"HX-Request": "true"}).content.decode()
+    back = fitter_client.post(
+        url, session_post(unit="cm", typed_unit="in", bust_girth="27 3/8"), headers={"HX-Request": "true"}
+    ).content.decode()
     assert 'name="bust_girth" value="69.5"' in back and 'name="typed_unit" value="cm"' in back
     same = fitter_client.post(url, session_post(unit="cm", typed_unit="cm", bust_girth="90")).content.decode()
     assert 'name="bust_girth" value="90"' in same
@@ -103,8 +128,10 @@ def test_it_rewrites_the_typed_readings_when_the_tape_unit_is_switched(fitter_cl
 
 def test_it_refuses_an_unknown_tape_unit_when_switching(fitter_client, demo_atelier):
     client = Client.objects.get(reference="WF-0101")
-    response = fitter_client.post(reverse("fittings:session_convert", args=[client.pk]),
-                                  session_post(unit="furlong", typed_unit="cm", bust_girth="90"))
+    response = fitter_client.post(
+        reverse("fittings:session_convert", args=[client.pk]),
+        session_post(unit="furlong", typed_unit="cm", bust_girth="90"),
+    )
     assert response.status_code == 400 and "Choose a tape unit" in response.content.decode()
 
 
@@ -136,8 +163,10 @@ def png_with_location():
 
 def test_it_keeps_a_photo_without_its_location(fitter_client, demo_atelier):
     client = Client.objects.get(reference="WF-0101")
-    response = fitter_client.post(reverse("fittings:session_new", args=[client.pk]),
-                                  session_post(bust_girth="95", done="1", photo_front=png_with_location()))
+    response = fitter_client.post(
+        reverse("fittings:session_new", args=[client.pk]),
+        session_post(bust_girth="95", done="1", photo_front=png_with_location()),
+    )
     assert response.status_code == 302
     photo = Photo.objects.get()
     with Image.open(photo.image.open("rb")) as stored:
@@ -151,8 +180,9 @@ def test_it_refuses_a_file_that_is_not_a_picture(fitter_client, demo_atelier):
     client = Client.objects.get(reference="WF-0101")
     fake = io.BytesIO(b"<?php echo 'not a photo'; ?>" * 10)
     fake.name = "front.jpg"
-    response = fitter_client.post(reverse("fittings:session_new", args=[client.pk]),
-                                  session_post(bust_girth="95", done="1", photo_front=fake))
+    response = fitter_client.post(
+        reverse("fittings:session_new", args=[client.pk]), session_post(bust_girth="95", done="1", photo_front=fake)
+    )
     assert response.status_code == 400 and Photo.objects.count() == 0
     assert MeasurementSession.objects.filter(client=client).count() == 1
 
@@ -174,7 +204,8 @@ def add_history(client, pattern, user, count):
 
 
 def test_it_reads_a_client_page_in_the_same_queries_however_long_the_history(
-        fitter_client, fitter_user, demo_atelier, django_assert_max_num_queries, django_assert_num_queries):
+    fitter_client, fitter_user, demo_atelier, django_assert_max_num_queries, django_assert_num_queries
+):
     from patterns.models import BasePattern
 
     client = Client.objects.get(reference="WF-0101")
@@ -193,7 +224,9 @@ def test_it_reads_a_client_page_in_the_same_queries_however_long_the_history(
     assert len(short) <= 10
 
 
-def test_it_reads_the_client_list_in_the_same_queries_however_many_clients(fitter_client, demo_atelier, django_assert_num_queries):
+def test_it_reads_the_client_list_in_the_same_queries_however_many_clients(
+    fitter_client, demo_atelier, django_assert_num_queries
+):
     from django.db import connection
     from django.test.utils import CaptureQueriesContext
 
@@ -206,7 +239,8 @@ def test_it_reads_the_client_list_in_the_same_queries_however_many_clients(fitte
 
 
 def test_it_searches_the_client_list_in_the_same_queries_however_many_clients_match(
-        fitter_client, demo_atelier, django_assert_num_queries):
+    fitter_client, demo_atelier, django_assert_num_queries
+):
     from django.db import connection
     from django.test.utils import CaptureQueriesContext
 
@@ -219,12 +253,22 @@ def test_it_searches_the_client_list_in_the_same_queries_however_many_clients_ma
         assert fitter_client.get(url, headers={"HX-Request": "true"}).text.count("Thornbury") == 25
 
 
-@pytest.mark.parametrize("query, found", [
-    ("ysolde", True), ("Marie", True), ("thornley", True),  # first name, middle name, surname after it
-    ("VALE", True), ("ashdown-v", True),  # the part after a hyphen; the whole double-barrelled name
-    ("ab-0042", True), ("0042", True), ("ysolde.t@", True),  # reference, its number, the contact from its start
-    ("ornley", False), ("042", False), ("example.org", False),  # the middle of a word is not a start
-])
+@pytest.mark.parametrize(
+    "query, found",
+    [
+        ("ysolde", True),
+        ("Marie", True),
+        ("thornley", True),  # first name, middle name, surname after it
+        ("VALE", True),
+        ("ashdown-v", True),  # the part after a hyphen; the whole double-barrelled name
+        ("ab-0042", True),
+        ("0042", True),
+        ("ysolde.t@", True),  # reference, its number, the contact from its start
+        ("ornley", False),
+        ("042", False),
+        ("example.org", False),  # the middle of a word is not a start
+    ],
+)
 def test_it_finds_a_client_by_the_start_of_any_word_of_the_name_or_the_reference(fitter_client, query, found):
     # Deliberate since the speed work: a search matches starts of words, which indexes serve; not any part.
     Client.objects.create(reference="AB-0042", name="Ysolde Marie Thornley", contact="ysolde.t@example.org")
@@ -251,9 +295,14 @@ def test_it_lists_a_limited_number_of_matches_and_says_so(fitter_client, monkeyp
 def test_it_compares_two_sessions_and_marks_the_differences(fitter_client, demo_atelier):
     client = Client.objects.get(reference="WF-0102")
     first, toile = client.sessions.order_by("taken_on")
-    html = fitter_client.get(reverse("fittings:compare", args=[client.pk]) + f"?a=s{first.pk}&b=s{toile.pk}").content.decode()
+    html = fitter_client.get(
+        reverse("fittings:compare", args=[client.pk]) + f"?a=s{first.pk}&b=s{toile.pk}"
+    ).content.decode()
     # Bust 39 1/2 -> 39 3/8 in, waist 32 -> 31 3/4 in; underbust unchanged.
-    assert '<tr class="differs"><th scope="row">Bust girth</th><td>39 1/2</td><td>39 3/8</td><td><strong>-1/8</strong>' in html
+    assert (
+        '<tr class="differs"><th scope="row">Bust girth</th><td>39 1/2</td><td>39 3/8</td><td><strong>-1/8</strong>'
+        in html
+    )
     assert '<tr class=""><th scope="row">Underbust girth</th><td>33</td><td>33</td>' in html
 
 

@@ -5,12 +5,12 @@ import re
 import pytest
 from django.urls import reverse
 
+from fittings import selectors
 from fittings.forms import cell_name
 from fittings.models import Plan, PlanRevision
 from fittings.services import plans as plan_services
-from patterns.core.units import format_length
-from fittings import selectors
 from patterns.core.fitting import allot_measurements
+from patterns.core.units import format_length
 
 pytestmark = pytest.mark.django_db
 
@@ -38,8 +38,15 @@ def test_it_suggests_a_size_and_starts_a_plan(fitter_client, reducing_client, co
     assert plan.revisions.count() == 1 and plan.revisions.get().status == "draft"
 
 
-@pytest.mark.parametrize("data", [{"garment": "", "base_pattern": "1"}, {"garment": "Corset", "base_pattern": "99999"},
-                                  {"garment": "x" * 201, "base_pattern": "1"}, {"garment": "Corset", "base_pattern": "abc"}])
+@pytest.mark.parametrize(
+    "data",
+    [
+        {"garment": "", "base_pattern": "1"},
+        {"garment": "Corset", "base_pattern": "99999"},
+        {"garment": "x" * 201, "base_pattern": "1"},
+        {"garment": "Corset", "base_pattern": "abc"},
+    ],
+)
 def test_it_refuses_a_bad_new_plan_and_saves_nothing(fitter_client, reducing_client, data):
     session = reducing_client.sessions.first()
     before = (Plan.objects.count(), PlanRevision.objects.count())
@@ -61,8 +68,9 @@ def test_it_recomputes_as_a_fragment_for_htmx(fitter_client, plan):
 
 def test_it_shows_what_the_engine_computed(fitter_client, plan):
     data = options_post(plan, ease_waist="-6")
-    html = fitter_client.post(reverse("fittings:plan_recompute", args=[plan.pk]), data,
-                              headers={"HX-Request": "true"}).content.decode()
+    html = fitter_client.post(
+        reverse("fittings:plan_recompute", args=[plan.pk]), data, headers={"HX-Request": "true"}
+    ).content.decode()
     values, block, _ = selectors.revision_inputs(selectors.latest_revision(plan))
     from fittings.forms import PlanOptionsForm
 
@@ -87,16 +95,28 @@ def test_it_keeps_a_fixed_cell_and_spreads_the_rest(fitter_client, plan):
     assert abs(waist.residual) <= result.step_mm + 1e-6
 
 
-@pytest.mark.parametrize("field, value", [("ease_waist", "abc"), ("ease_waist", "nan"), ("ease_waist", "-999"),
-                                          ("lacing_gap", "-2"), ("step", "0.3"), ("policy", "random"),
-                                          ("centre_front_width", "1e9")])
+@pytest.mark.parametrize(
+    "field, value",
+    [
+        ("ease_waist", "abc"),
+        ("ease_waist", "nan"),
+        ("ease_waist", "-999"),
+        ("lacing_gap", "-2"),
+        ("step", "0.3"),
+        ("policy", "random"),
+        ("centre_front_width", "1e9"),
+    ],
+)
 def test_it_refuses_bad_options_with_a_field_message(fitter_client, plan, field, value):
     response = fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]), options_post(plan, **{field: value}))
     assert response.status_code == 400
     assert 'class="field-error"' in response.content.decode() or "error-box" in response.content.decode()
     assert plan.revisions.count() == 1
-    fragment = fitter_client.post(reverse("fittings:plan_recompute", args=[plan.pk]), options_post(plan, **{field: value}),
-                                  headers={"HX-Request": "true"})
+    fragment = fitter_client.post(
+        reverse("fittings:plan_recompute", args=[plan.pk]),
+        options_post(plan, **{field: value}),
+        headers={"HX-Request": "true"},
+    )
     assert fragment.status_code == 422
 
 
@@ -170,22 +190,30 @@ def test_it_lets_the_workroom_read_but_not_change(workroom_client, fitter_user, 
     plan_services.issue_revision(revision=plan.revisions.get(number=1), user=fitter_user)
     assert workroom_client.get(reverse("fittings:revision_detail", args=[plan.pk, 1])).status_code == 200
     assert workroom_client.get(reverse("fittings:plan_edit", args=[plan.pk]))["Location"] == reverse(
-        "fittings:revision_detail", args=[plan.pk, 1])
+        "fittings:revision_detail", args=[plan.pk, 1]
+    )
     assert workroom_client.post(reverse("fittings:plan_edit", args=[plan.pk]), options_post(plan)).status_code == 403
     assert workroom_client.post(reverse("fittings:revision_issue", args=[plan.pk, 1])).status_code == 403
-    assert workroom_client.post(reverse("fittings:plan_recompute", args=[plan.pk]), options_post(plan)).status_code == 403
+    assert (
+        workroom_client.post(reverse("fittings:plan_recompute", args=[plan.pk]), options_post(plan)).status_code == 403
+    )
     assert workroom_client.get(reverse("fittings:revision_pins", args=[plan.pk, 1])).status_code == 403
     assert plan.revisions.count() == 1
 
 
-@pytest.mark.parametrize("name, args", [("plan_edit", [99999]), ("revision_detail", [99999, 1]), ("revision_preview", [99999, 1])])
+@pytest.mark.parametrize(
+    "name, args", [("plan_edit", [99999]), ("revision_detail", [99999, 1]), ("revision_preview", [99999, 1])]
+)
 def test_it_answers_404_for_what_does_not_exist(fitter_client, name, args):
     assert fitter_client.get(reverse(f"fittings:{name}", args=args)).status_code == 404
 
 
 def test_it_gives_a_strong_reduction_its_caution(fitter_client, plan):
-    html = fitter_client.post(reverse("fittings:plan_recompute", args=[plan.pk]), options_post(plan, ease_waist="-6"),
-                              headers={"HX-Request": "true"}).content.decode()
+    html = fitter_client.post(
+        reverse("fittings:plan_recompute", args=[plan.pk]),
+        options_post(plan, ease_waist="-6"),
+        headers={"HX-Request": "true"},
+    ).content.decode()
     assert re.search(r"restricts breathing", html)
 
 
@@ -195,8 +223,9 @@ def test_it_exports_a_fitting_file_that_imports_again(fitter_client, plan):
     from django.core.files.uploadedfile import SimpleUploadedFile
 
     upload = SimpleUploadedFile("fitting.json", exported.content, content_type="application/json")
-    response = fitter_client.post(reverse("fittings:fitting_import", args=[plan.client.pk]),
-                                  {"file": upload, "garment": "Copy"})
+    response = fitter_client.post(
+        reverse("fittings:fitting_import", args=[plan.client.pk]), {"file": upload, "garment": "Copy"}
+    )
     assert response.status_code == 302
     copy = Plan.objects.get(garment="Copy")
     original, again = plan.revisions.get(), copy.revisions.get()
@@ -204,18 +233,24 @@ def test_it_exports_a_fitting_file_that_imports_again(fitter_client, plan):
     assert again.inputs["measurements"] == original.inputs["measurements"]
 
 
-@pytest.mark.parametrize("content, words", [
-    (b"{", "damaged or is not a fitting file"), (b"\xff\xfe", "not text"), (b"[]", "JSON object"),
-    (b'{"format": "atelier-fitting"}', "not a fitting file this app can use"),
-])
+@pytest.mark.parametrize(
+    "content, words",
+    [
+        (b"{", "damaged or is not a fitting file"),
+        (b"\xff\xfe", "not text"),
+        (b"[]", "JSON object"),
+        (b'{"format": "atelier-fitting"}', "not a fitting file this app can use"),
+    ],
+)
 def test_it_refuses_a_bad_fitting_file_and_saves_nothing(fitter_client, plan, content, words):
     from django.core.files.uploadedfile import SimpleUploadedFile
 
     from fittings.models import MeasurementSession
 
     before = (Plan.objects.count(), MeasurementSession.objects.count(), PlanRevision.objects.count())
-    response = fitter_client.post(reverse("fittings:fitting_import", args=[plan.client.pk]),
-                                  {"file": SimpleUploadedFile("f.json", content)})
+    response = fitter_client.post(
+        reverse("fittings:fitting_import", args=[plan.client.pk]), {"file": SimpleUploadedFile("f.json", content)}
+    )
     assert response.status_code == 400 and words in response.content.decode()
     assert (Plan.objects.count(), MeasurementSession.objects.count(), PlanRevision.objects.count()) == before
 
@@ -229,7 +264,9 @@ def test_it_checks_the_seam_lengths_after_the_alteration(fitter_client, plan):
     assert all(seam.name in even.content.decode() for seam in block.seams)
     # One raw edge taken in 1 1/4 in at the waist and its partner left alone: the seam's
     # two edges no longer match (tolerance 1/8 in, Threads magazine no. 200).
-    uneven = fitter_client.get(url, options_post(plan, **{cell_name(side, "waist", 0): "-1 1/4", cell_name(side, "waist", 1): "0"}))
+    uneven = fitter_client.get(
+        url, options_post(plan, **{cell_name(side, "waist", 0): "-1 1/4", cell_name(side, "waist", 1): "0"})
+    )
     html = uneven.content.decode()
     assert "Walk the seam and true it" in html and "Side seam" in html
 
@@ -241,8 +278,9 @@ def test_it_starts_a_new_plan_from_an_earlier_revision(fitter_client, plan):
     link = reverse("fittings:plan_new", args=[session.pk]) + f"?from={plan.revisions.get().pk}"
     assert link in page.content.decode()
     source = plan.revisions.get()
-    response = fitter_client.post(link, {"garment": "Second corset", "base_pattern": plan.base_pattern.pk,
-                                         "from": source.pk})
+    response = fitter_client.post(
+        link, {"garment": "Second corset", "base_pattern": plan.base_pattern.pk, "from": source.pk}
+    )
     assert response.status_code == 302
     new = Plan.objects.get(garment="Second corset").revisions.get()
     assert new.inputs["plan"]["ease"] == source.inputs["plan"]["ease"]
@@ -262,8 +300,9 @@ def cm_plan(demo_atelier, corset_12, fitter_user):
 
     client = Client.objects.get(reference="WF-0101")  # read in centimetres
     session = client.sessions.order_by("-taken_on").first()
-    return plan_services.start_plan(client=client, session=session, pattern=corset_12, garment="First corset",
-                                    user=fitter_user)
+    return plan_services.start_plan(
+        client=client, session=session, pattern=corset_12, garment="First corset", user=fitter_user
+    )
 
 
 def _field_value(html: str, name: str) -> str:
@@ -271,20 +310,35 @@ def _field_value(html: str, name: str) -> str:
     return re.search(r'value="([^"]*)"', tag).group(1)
 
 
-@pytest.mark.parametrize("which, typed, mm", [("cm_plan", "-0.75", -7.5), ("cm_plan", "1.25", 12.5),
-                                              ("plan", "-0.3", -7.62), ("plan", "-1 5/16", -33.3375)])
+@pytest.mark.parametrize(
+    "which, typed, mm",
+    [("cm_plan", "-0.75", -7.5), ("cm_plan", "1.25", 12.5), ("plan", "-0.3", -7.62), ("plan", "-1 5/16", -33.3375)],
+)
 def test_it_gives_back_a_hand_fixed_cell_exactly_as_typed(fitter_client, request, which, typed, mm):
     plan = request.getfixturevalue(which)
     _, block, _ = selectors.revision_inputs(selectors.latest_revision(plan))
     side = next(i for i, s in enumerate(block.seams) if s.kind == "side")
     cell, seam = cell_name(side, "waist", 0), block.seams[side]
-    assert fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]), options_post(plan, **{cell: typed})).status_code == 302
+    assert (
+        fitter_client.post(
+            reverse("fittings:plan_edit", args=[plan.pk]), options_post(plan, **{cell: typed})
+        ).status_code
+        == 302
+    )
     page = fitter_client.get(reverse("fittings:plan_edit", args=[plan.pk])).content.decode()
     shown = _field_value(page, cell)
     assert shown.lstrip("+") == typed  # before, "-0.75" came back as "-0.8" and "-0.3" in as "-5/16"
     # Saving the reopened page unchanged keeps the very same cell.
     plan.refresh_from_db()
-    assert fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]), {**options_post(plan), cell: shown}).status_code == 302
-    fixed = [o for o in selectors.revision_inputs(selectors.latest_revision(plan))[2].overrides
-             if (o.seam, o.level, o.panel) == (seam.name, "waist", seam.front_panel)]
+    assert (
+        fitter_client.post(
+            reverse("fittings:plan_edit", args=[plan.pk]), {**options_post(plan), cell: shown}
+        ).status_code
+        == 302
+    )
+    fixed = [
+        o
+        for o in selectors.revision_inputs(selectors.latest_revision(plan))[2].overrides
+        if (o.seam, o.level, o.panel) == (seam.name, "waist", seam.front_panel)
+    ]
     assert [round(o.shift_mm, 4) for o in fixed] == [round(mm, 4)]

@@ -22,9 +22,9 @@ from django.urls import reverse
 
 from atelier.models import AtelierSettings, parse_stock
 from fittings import workroom
+from fittings.models import PrintJob
 from fittings.printing.data import DocumentData, altered_pattern, document_data
 from fittings.printing.work_order import render_work_order
-from fittings.models import PrintJob
 from fittings.services import plans as plan_services
 from fittings.tasks import run_print_job
 from patterns.core.allot import allot
@@ -43,10 +43,21 @@ def example_data(name: str) -> DocumentData:
     measurements, block, options = load_fitting_text((EXAMPLES / f"{name}.json").read_text())
     result = allot(block, body_from_measurements(measurements), options)
     return DocumentData(
-        atelier_name="Wrenfield Stays & Bodices", client_label="WF-0102", garment="Daily corset",
-        fitting_date=date(2025, 3, 4), measured_by="Demo Fitter", revision_number=3, revision_status="issued",
-        issued_at=None, issued_by="", based_on=2, revision_url="https://atelier.example/plans/7/revisions/3/",
-        measurements=measurements, block=block, options=options, result=result,
+        atelier_name="Wrenfield Stays & Bodices",
+        client_label="WF-0102",
+        garment="Daily corset",
+        fitting_date=date(2025, 3, 4),
+        measured_by="Demo Fitter",
+        revision_number=3,
+        revision_status="issued",
+        issued_at=None,
+        issued_by="",
+        based_on=2,
+        revision_url="https://atelier.example/plans/7/revisions/3/",
+        measurements=measurements,
+        block=block,
+        options=options,
+        result=result,
     )
 
 
@@ -110,18 +121,31 @@ def test_it_prints_a_roll_as_wide_as_the_roll_and_as_long_as_needed(sheets, stro
 def test_it_draws_the_test_square_and_the_pieces_at_true_size(sheets, strong, fmt):
     with pdfplumber.open(io.BytesIO(sheets[fmt])) as doc:
         page = doc.pages[0]
-        squares = [(r["width"] * MM_PER_PT, r["height"] * MM_PER_PT) for r in page.rects
-                   if abs(r["width"] - r["height"]) * MM_PER_PT < 0.2 and 90 < r["width"] * MM_PER_PT < 110]
+        squares = [
+            (r["width"] * MM_PER_PT, r["height"] * MM_PER_PT)
+            for r in page.rects
+            if abs(r["width"] - r["height"]) * MM_PER_PT < 0.2 and 90 < r["width"] * MM_PER_PT < 110
+        ]
         curves = [c for c in page.curves if len(c["pts"]) > 8 and abs(c["linewidth"] - 0.4 / MM_PER_PT) < 0.01]
         text = re.sub(r"\s+", " ", page.extract_text())
     # The 10 cm square measures 100 mm each way, the 4 in square 101.6 mm, to 0.1 mm.
     assert sorted(round(w, 1) for w, _ in squares) == [100.0, 101.6]
     assert all(abs(w - h) < 0.1 for w, h in squares)
     # Every piece's cutting line is as wide and as tall as the computed outline, to 0.1 mm.
-    drawn = sorted(((max(x for x, _ in c["pts"]) - min(x for x, _ in c["pts"])) * MM_PER_PT,
-                    (max(y for _, y in c["pts"]) - min(y for _, y in c["pts"])) * MM_PER_PT) for c in curves)
-    expected = sorted((max(x for x, _ in o.cutting) - min(x for x, _ in o.cutting),
-                       max(y for _, y in o.cutting) - min(y for _, y in o.cutting)) for o in altered_pattern(strong).altered)
+    drawn = sorted(
+        (
+            (max(x for x, _ in c["pts"]) - min(x for x, _ in c["pts"])) * MM_PER_PT,
+            (max(y for _, y in c["pts"]) - min(y for _, y in c["pts"])) * MM_PER_PT,
+        )
+        for c in curves
+    )
+    expected = sorted(
+        (
+            max(x for x, _ in o.cutting) - min(x for x, _ in o.cutting),
+            max(y for _, y in o.cutting) - min(y for _, y in o.cutting),
+        )
+        for o in altered_pattern(strong).altered
+    )
     assert len(drawn) == len(expected)
     for ew, eh in expected:
         nearest = min(drawn, key=lambda d: max(abs(d[0] - ew), abs(d[1] - eh)))
@@ -140,7 +164,7 @@ def test_it_keeps_pieces_apart_and_inside_the_sheet(strong):
             assert x0 >= -1e-6 and x1 <= layout.printable_width_mm + 1e-6
             assert y0 >= workroom.LARGE_HEADER_MM and y1 <= layout.printable_height_mm + 1e-6
         for i, a in enumerate(boxes):
-            for b in boxes[i + 1:]:
+            for b in boxes[i + 1 :]:
                 apart = max(b[0] - a[2], a[0] - b[2], b[1] - a[3], a[1] - b[3])
                 assert apart >= workroom.LARGE_GAP_MM - 1e-6
 
@@ -175,10 +199,14 @@ def test_it_puts_boning_and_lacing_on_the_work_order_in_the_plans_unit(strong):
     assert "Boning and busk (in)" in text and "Lacing (in)" in text
     for channel in bones.channels:
         # Inches to 1/16, the bone rounded down to a whole 1/16 in.
-        assert f"{channel.name} {format_with_unit(channel.channel_mm, 'in')} " \
-               f"{format_with_unit(channel.cut_mm, 'in')}" in text
+        assert (
+            f"{channel.name} {format_with_unit(channel.channel_mm, 'in')} "
+            f"{format_with_unit(channel.cut_mm, 'in')}" in text
+        )
         assert channel.cut_mm <= channel.channel_mm - 12 + 1e-9
-    assert f"Busk: {format_with_unit(bones.busk.length_mm, 'in')} ({format_with_unit(bones.busk.length_mm, 'cm')})" in text
+    assert (
+        f"Busk: {format_with_unit(bones.busk.length_mm, 'in')} ({format_with_unit(bones.busk.length_mm, 'cm')})" in text
+    )
     assert "eyelets on each back edge" in text and "Lace: about" in text
 
 
@@ -237,14 +265,33 @@ def test_it_lets_only_the_owner_change_the_settings(make_user, client):
     url = "/admin/atelier/ateliersettings/add/"
     # The owner keeps the settings in /admin/ as a staff account; a fitter with staff access may not.
     client.force_login(make_user("owner", is_staff=True))
-    response = client.post(url, {"busk_stock": "10 in; 12 in", "bone_clearance_mm": "10", "busk_clearance_mm": "",
-                                 "eyelet_spacing_mm": "22", "waist_pair_mm": "13", "eyelet_margin_mm": "20",
-                                 "eyelet_inset_mm": "12", "lace_tail_mm": "500"})
+    response = client.post(
+        url,
+        {
+            "busk_stock": "10 in; 12 in",
+            "bone_clearance_mm": "10",
+            "busk_clearance_mm": "",
+            "eyelet_spacing_mm": "22",
+            "waist_pair_mm": "13",
+            "eyelet_margin_mm": "20",
+            "eyelet_inset_mm": "12",
+            "lace_tail_mm": "500",
+        },
+    )
     assert response.status_code == 302, response.content.decode()[:2000]
     assert AtelierSettings.current().boning_rules().clearance_mm == 10.0
-    bad = client.post("/admin/atelier/ateliersettings/1/change/", {
-        "busk_stock": "ten inches", "bone_clearance_mm": "10", "eyelet_spacing_mm": "22", "waist_pair_mm": "13",
-        "eyelet_margin_mm": "20", "eyelet_inset_mm": "12", "lace_tail_mm": "500"})
+    bad = client.post(
+        "/admin/atelier/ateliersettings/1/change/",
+        {
+            "busk_stock": "ten inches",
+            "bone_clearance_mm": "10",
+            "eyelet_spacing_mm": "22",
+            "waist_pair_mm": "13",
+            "eyelet_margin_mm": "20",
+            "eyelet_inset_mm": "12",
+            "lace_tail_mm": "500",
+        },
+    )
     assert bad.status_code == 200 and "is not a length" in bad.content.decode()
     assert AtelierSettings.current().busk_stock == "10 in; 12 in"
     client.force_login(make_user("fitter", is_staff=True))
@@ -265,7 +312,9 @@ def done_job(plan):
 
 @pytest.mark.django_db
 def test_it_offers_the_large_sheets_and_the_projector_once_a_print_is_ready(workroom_client, done_job, monkeypatch):
-    monkeypatch.setattr("fittings.printing.work_order.render_work_order", lambda data, paper, pattern=None: b"%PDF-1.7\n")
+    monkeypatch.setattr(
+        "fittings.printing.work_order.render_work_order", lambda data, paper, pattern=None: b"%PDF-1.7\n"
+    )
     assert run_print_job(done_job.pk) == "done"
     page = workroom_client.get(reverse("fittings:print_status", args=[done_job.pk])).content.decode()
     for fmt in LARGE_FORMATS:
@@ -318,7 +367,9 @@ def test_it_projects_only_issued_revisions_for_the_workroom(workroom_client, pla
 
 @pytest.mark.django_db
 def test_it_says_plainly_when_the_pieces_do_not_fit_one_a0_sheet(workroom_client, done_job, monkeypatch):
-    monkeypatch.setattr("fittings.printing.work_order.render_work_order", lambda data, paper, pattern=None: b"%PDF-1.7\n")
+    monkeypatch.setattr(
+        "fittings.printing.work_order.render_work_order", lambda data, paper, pattern=None: b"%PDF-1.7\n"
+    )
     assert run_print_job(done_job.pk) == "done"
 
     def too_large(*args, **kwargs):

@@ -7,10 +7,14 @@ LEVELS = (Level("bust", 0.0), Level("waist", 200.0), Level("hip", 400.0))
 
 def panel(name, side, x0, width=100.0):
     return Panel(
-        name=name, side=side,
-        left={lv.name: x0 for lv in LEVELS}, right={lv.name: x0 + width for lv in LEVELS},
-        top_left=Point(x0, -20), top_right=Point(x0 + width, -20),
-        bottom_left=Point(x0, 420), bottom_right=Point(x0 + width, 420),
+        name=name,
+        side=side,
+        left={lv.name: x0 for lv in LEVELS},
+        right={lv.name: x0 + width for lv in LEVELS},
+        top_left=Point(x0, -20),
+        top_right=Point(x0 + width, -20),
+        bottom_left=Point(x0, 420),
+        bottom_right=Point(x0 + width, 420),
     )
 
 
@@ -25,5 +29,12 @@ def three_panel_block(side_cap=15.0, princess_cap=15.0, side_at=("bust", "waist"
         Seam("Princess seam", "princess", "Front", "Side", frozenset({"waist", "hip"}), princess_cap),
         Seam("Side seam", "side", "Side", "Back", frozenset(side_at), side_cap),
     )
-    return Block(name="Test block", size="T", garment="test", levels=LEVELS, panels=panels, seams=seams,
-                 centre_back="laced" if laced else "seamed")
+    return Block(
+        name="Test block",
+        size="T",
+        garment="test",
+        levels=LEVELS,
+        panels=panels,
+        seams=seams,
+        centre_back="laced" if laced else "seamed",
+    )

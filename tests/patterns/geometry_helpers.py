@@ -1,7 +1,8 @@
 """Shared helpers for the geometry tests: measuring outlines with shapely, and small constructed blocks."""
 
 import numpy as np
-from shapely.geometry import LineString, Point as ShapelyPoint, Polygon
+from shapely.geometry import LineString, Polygon
+from shapely.geometry import Point as ShapelyPoint
 
 from patterns.core.block import BACK, FRONT, Alteration, Block, Level, Panel, PanelShift, Point, Seam
 
@@ -49,9 +50,14 @@ def uniform_alteration(block: Block, left: float, right: float) -> Alteration:
 def _panel(name, side, left, right, top, bottom, levels):
     first, last = levels[0].name, levels[-1].name
     return Panel(
-        name=name, side=side, left=left, right=right,
-        top_left=Point(left[first], top), top_right=Point(right[first], top),
-        bottom_left=Point(left[last], bottom), bottom_right=Point(right[last], bottom),
+        name=name,
+        side=side,
+        left=left,
+        right=right,
+        top_left=Point(left[first], top),
+        top_right=Point(right[first], top),
+        bottom_left=Point(left[last], bottom),
+        bottom_right=Point(right[last], bottom),
     )
 
 
@@ -63,10 +69,24 @@ def mirrored_pair_block(offsets: dict[str, float]) -> Block:
     """
     ys = {"bust": 60.0, "underbust": 150.0, "waist": 250.0, "abdomen": 340.0, "hip": 440.0}
     levels = tuple(Level(lv, ys[lv]) for lv in ALL_LEVELS)
-    front = _panel("Front", FRONT, {lv: 80.0 for lv in ALL_LEVELS}, {lv: 150.0 + offsets[lv] for lv in ALL_LEVELS},
-                   20.0, 470.0, levels)
-    back = _panel("Back", BACK, {lv: 250.0 - offsets[lv] for lv in ALL_LEVELS}, {lv: 320.0 for lv in ALL_LEVELS},
-                  20.0, 470.0, levels)
+    front = _panel(
+        "Front",
+        FRONT,
+        {lv: 80.0 for lv in ALL_LEVELS},
+        {lv: 150.0 + offsets[lv] for lv in ALL_LEVELS},
+        20.0,
+        470.0,
+        levels,
+    )
+    back = _panel(
+        "Back",
+        BACK,
+        {lv: 250.0 - offsets[lv] for lv in ALL_LEVELS},
+        {lv: 320.0 for lv in ALL_LEVELS},
+        20.0,
+        470.0,
+        levels,
+    )
     seam = Seam("Side seam", "side", "Front", "Back", frozenset(ALL_LEVELS))
     return Block(name="Mirrored pair", size="T", garment="test", levels=levels, panels=(front, back), seams=(seam,))
 
@@ -84,8 +104,13 @@ def s_bend_block() -> Block:
     left = {"underbust": 0.0, "waist": 40.0, "abdomen": 40.0}
     right = {"underbust": 22.0, "waist": 62.0, "abdomen": 102.0}
     panel = Panel(
-        name="Slant", side=FRONT, left=left, right=right,
-        top_left=Point(-12.0, 130.0), top_right=Point(14.0, 130.0),
-        bottom_left=Point(40.0, 370.0), bottom_right=Point(110.0, 370.0),
+        name="Slant",
+        side=FRONT,
+        left=left,
+        right=right,
+        top_left=Point(-12.0, 130.0),
+        top_right=Point(14.0, 130.0),
+        bottom_left=Point(40.0, 370.0),
+        bottom_right=Point(110.0, 370.0),
     )
     return Block(name="S bend", size="T", garment="test", levels=levels, panels=(panel,), seams=())

@@ -9,7 +9,6 @@ moved s mm changes the girth by 2 s mm.
 import pytest
 
 from patterns.core.allot import Body, Override, PinAdjustment, PlanOptions, allot
-
 from patterns.core.policies import BY_WIDTH, EVEN, SIDES_FIRST
 from patterns.core.units import parse_length
 from tests.patterns.engine_helpers import three_panel_block
@@ -125,6 +124,7 @@ def test_it_weights_by_panel_width():
     block = three_panel_block()
     wide = block.panels[2]
     from dataclasses import replace
+
     wide = replace(wide, right={k: v + 100 for k, v in wide.right.items()})  # the back panel 200 wide
     block = replace(block, panels=(*block.panels[:2], wide))
     # girth now 800; waist body 850 - 50 = 800 + 40 ease -> +40 -> 20 per half
@@ -174,11 +174,14 @@ def test_it_gives_a_breathing_caution_for_strong_reduction():
     assert caution.severity == "caution" and "breathing" in caution.message
 
 
-@pytest.mark.parametrize("girths, code", [
-    ({"bust": 650, "waist": 600}, "missing_girth"),
-    ({"bust": -650, "waist": 600, "hip": 700}, "impossible_girth"),
-    ({"bust": 650, "underbust": 800, "waist": 600, "hip": 700}, "underbust_exceeds_bust"),
-])
+@pytest.mark.parametrize(
+    "girths, code",
+    [
+        ({"bust": 650, "waist": 600}, "missing_girth"),
+        ({"bust": -650, "waist": 600, "hip": 700}, "impossible_girth"),
+        ({"bust": 650, "underbust": 800, "waist": 600, "hip": 700}, "underbust_exceeds_bust"),
+    ],
+)
 def test_it_refuses_impossible_inputs(girths, code):
     result = allot(three_panel_block(), Body(girths=girths), PlanOptions())
     assert code in codes(result)
@@ -196,8 +199,10 @@ def test_it_lengthens_and_shortens_bands_between_levels():
     # Pattern: bust to waist 200, waist to hip 200.  Body: bust to underbust 90
     # + underbust to waist 105 = 195 -> shorten 5; waist to hip 210 -> lengthen 10.
     block = three_panel_block()
-    body = Body(girths={"bust": 650, "waist": 650, "hip": 650},
-                lengths={"bust_to_underbust": 90, "underbust_to_waist": 105, "waist_to_hip": 210})
+    body = Body(
+        girths={"bust": 650, "waist": 650, "hip": 650},
+        lengths={"bust_to_underbust": 90, "underbust_to_waist": 105, "waist_to_hip": 210},
+    )
     bands = {(b.upper, b.lower): b.change_mm for b in allot(block, body, PlanOptions()).bands}
     assert bands == {("bust", "waist"): -5.0, ("waist", "hip"): 10.0}
 
@@ -237,8 +242,10 @@ def test_it_says_nothing_when_the_side_seams_are_let_out_by_hand_and_the_princes
     # princess edges take in the rest (-110).  Ordinary work, no finding.
     block = three_panel_block()
     body = Body(girths={"bust": 650, "waist": 600, "hip": 700})
-    options = PlanOptions(ease={"waist": -40}, overrides=(
-        Override("Side seam", "waist", "Side", 5.0), Override("Side seam", "waist", "Back", 5.0)))
+    options = PlanOptions(
+        ease={"waist": -40},
+        overrides=(Override("Side seam", "waist", "Side", 5.0), Override("Side seam", "waist", "Back", 5.0)),
+    )
     result = allot(block, body, options)
     assert "override_exceeds_difference" not in codes(result)
     assert result.level("waist").residual == 0.0
@@ -253,7 +260,8 @@ def test_it_says_in_words_when_hand_set_cells_take_in_more_than_the_level_needs(
     finding = next(f for f in allot(block, body, options).findings if f.code == "override_exceeds_difference")
     assert finding.message == (
         "Waist: the edges you set by hand take in 4.0 cm of girth, 3.0 cm more than this level needs (1.0 cm). "
-        "The edges left free let out 3.0 cm to make up for it; clear a hand-set cell if that is not what you meant.")
+        "The edges left free let out 3.0 cm to make up for it; clear a hand-set cell if that is not what you meant."
+    )
 
 
 def test_it_says_when_a_level_lies_below_the_bottom_of_a_panel():
@@ -269,4 +277,6 @@ def test_it_says_when_a_level_lies_below_the_bottom_of_a_panel():
     found = [f for f in result.findings if f.code == "level_beyond_panel"]
     assert [(f.level, f.severity) for f in found] == [("hip", "warning")]
     assert found[0].message.startswith("Hip: the hip line lies below the bottom of the Side panel")
-    assert "level_beyond_panel" not in codes(allot(three_panel_block(), Body(girths={"bust": 650, "waist": 650, "hip": 650}), PlanOptions()))
+    assert "level_beyond_panel" not in codes(
+        allot(three_panel_block(), Body(girths={"bust": 650, "waist": 650, "hip": 650}), PlanOptions())
+    )

@@ -6,9 +6,8 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 from patterns.core.allot import Body, Override, PlanOptions, allot
-
-from patterns.core.policies import POLICIES
 from patterns.core.block import BACK, FRONT, Block, Level, Panel, Point, Seam
+from patterns.core.policies import POLICIES
 from patterns.core.rounding import EPS
 
 ALL_LEVELS = ("bust", "underbust", "waist", "abdomen", "hip")
@@ -27,32 +26,50 @@ def blocks(draw):
         widths = {lv: draw(st.floats(40, 160)) for lv in level_names}
         left = {lv: x for lv in level_names}
         right = {lv: x + widths[lv] for lv in level_names}
-        panels.append(Panel(
-            name=f"P{i}", side=FRONT if i < front_count else BACK, left=left, right=right,
-            top_left=Point(x, -20), top_right=Point(x + widths[level_names[0]], -20),
-            bottom_left=Point(x, levels[-1].y + 20), bottom_right=Point(x + widths[level_names[-1]], levels[-1].y + 20),
-        ))
+        panels.append(
+            Panel(
+                name=f"P{i}",
+                side=FRONT if i < front_count else BACK,
+                left=left,
+                right=right,
+                top_left=Point(x, -20),
+                top_right=Point(x + widths[level_names[0]], -20),
+                bottom_left=Point(x, levels[-1].y + 20),
+                bottom_right=Point(x + widths[level_names[-1]], levels[-1].y + 20),
+            )
+        )
         x += 200
     seams = []
     for i, (a, b) in enumerate(zip(panels, panels[1:])):
         at = draw(st.lists(st.sampled_from(level_names), unique=True))
         kind = "side" if i == front_count - 1 else draw(st.sampled_from(("princess", "other")))
         seams.append(Seam(f"S{i}", kind, a.name, b.name, frozenset(at), draw(st.floats(2, 40))))
-    return Block("Random", "R", "test", levels, tuple(panels), tuple(seams),
-                 centre_back=draw(st.sampled_from(("laced", "seamed"))))
+    return Block(
+        "Random",
+        "R",
+        "test",
+        levels,
+        tuple(panels),
+        tuple(seams),
+        centre_back=draw(st.sampled_from(("laced", "seamed"))),
+    )
 
 
 @st.composite
 def plans(draw):
     block = draw(blocks())
     gap = draw(st.sampled_from((0.0, 50.0)))
-    body = Body(girths={
-        lv: block.girth(lv) + (gap if block.centre_back == "laced" else 0) + draw(st.floats(-200, 200))
-        for lv in block.level_names
-    })
+    body = Body(
+        girths={
+            lv: block.girth(lv) + (gap if block.centre_back == "laced" else 0) + draw(st.floats(-200, 200))
+            for lv in block.level_names
+        }
+    )
     options = PlanOptions(
         ease={lv: draw(st.floats(-80, 40)) for lv in block.level_names},
-        lacing_gap_mm=gap, step_mm=draw(st.sampled_from(STEPS)), policy=draw(st.sampled_from(sorted(POLICIES))),
+        lacing_gap_mm=gap,
+        step_mm=draw(st.sampled_from(STEPS)),
+        policy=draw(st.sampled_from(sorted(POLICIES))),
     )
     return block, body, options
 
@@ -161,7 +178,9 @@ def test_it_rounds_a_split_level_once_so_it_is_off_by_at_most_one_step(plan):
     result = allot(block, body, options)
     panels = {p.name: p for p in block.panels}
     for lv in result.levels:
-        sides = {panels[p].side for s in block.seams if lv.level in s.alterable_at for p in (s.front_panel, s.back_panel)}
+        sides = {
+            panels[p].side for s in block.seams if lv.level in s.alterable_at for p in (s.front_panel, s.back_panel)
+        }
         if lv.front is None or sides != {FRONT, BACK}:
             continue
         assert abs(lv.residual) <= options.step_mm + 1e-6

@@ -23,7 +23,7 @@ TOL = 0.1
 # Two pieces drawn by hand: a rectangle 100 x 300 mm and a piece whose right side is a circular arc of
 # radius 400 mm from (260, 0) to (260, 300), its centre on y = 150 left of the chord.
 R = 400.0
-CX = 260.0 - math.sqrt(R * R - 150.0 ** 2)
+CX = 260.0 - math.sqrt(R * R - 150.0**2)
 DRAWN = f"""<svg xmlns="http://www.w3.org/2000/svg" width="400mm" height="400mm" viewBox="0 0 400 400">
   <rect x="0" y="0" width="100" height="300"/><text x="20" y="30">Front</text>
   <path d="M 150 0 L 260 0 A {R:g} {R:g} 0 0 1 260 300 L 150 300 Z"/><text x="170" y="30">Back</text>
@@ -38,8 +38,16 @@ def arc_width(y):
 
 
 def _post(client, content=DRAWN, name="drawn.svg", **fields):
-    data = {"name": "Drawn test block", "size_label": "S", "garment": "underbust corset", "front_panels": "1",
-            "centre_back": "laced", "seam_allowance": "1,5", "file": SimpleUploadedFile(name, content), **fields}
+    data = {
+        "name": "Drawn test block",
+        "size_label": "S",
+        "garment": "underbust corset",
+        "front_panels": "1",
+        "centre_back": "laced",
+        "seam_allowance": "1,5",
+        "file": SimpleUploadedFile(name, content),
+        **fields,
+    }
     return client.post(reverse("patterns:block_import"), data)
 
 
@@ -75,8 +83,10 @@ def test_it_refuses_a_bad_drawing_with_its_reason_and_keeps_nothing(fitter_clien
 def test_it_offers_the_import_to_fitters_but_not_to_the_workroom(fitter_client, workroom_user, client):
     assert reverse("patterns:block_import") in fitter_client.get(reverse("fittings:client_list")).content.decode()
     client.force_login(workroom_user)
-    assert reverse("patterns:block_import") not in client.get(reverse("fittings:client_list"), follow=True
-                                                                 ).content.decode()
+    assert (
+        reverse("patterns:block_import")
+        not in client.get(reverse("fittings:client_list"), follow=True).content.decode()
+    )
     assert client.get(reverse("patterns:block_import")).status_code == 403
 
 
@@ -93,8 +103,9 @@ def test_it_downloads_a_base_pattern_that_reads_back_to_the_same_widths(fitter_c
                 assert b.width(lv) == pytest.approx(a.width(lv), abs=TOL)
 
 
-def test_it_downloads_a_revisions_altered_pieces_as_the_plan_shifted_them(demo_atelier, client, fitter_user,
-                                                                          workroom_user):
+def test_it_downloads_a_revisions_altered_pieces_as_the_plan_shifted_them(
+    demo_atelier, client, fitter_user, workroom_user
+):
     plan = Plan.objects.get(client__reference="WF-0102")
     # The workroom cuts from an issued revision's pieces, and sees no draft's.
     client.force_login(workroom_user)
@@ -117,8 +128,11 @@ def test_it_downloads_a_revisions_altered_pieces_as_the_plan_shifted_them(demo_a
     # Every piece reaches back as drawn: its width at each level it crosses is the altered width.
     for outline in altered:
         left, right = np.asarray(outline.left_line), np.asarray(outline.right_line)
-        insert = next(b for b in doc.blocks if b.name.startswith("PANEL_") and any(
-            e.dxftype() == "TEXT" and e.dxf.text == outline.name for e in b))
+        insert = next(
+            b
+            for b in doc.blocks
+            if b.name.startswith("PANEL_") and any(e.dxftype() == "TEXT" and e.dxf.text == outline.name for e in b)
+        )
         for level, y in outline.level_y.items():
             line = next(e for e in insert if e.dxf.layer == f"LEVEL_{level.upper()}")
             width = float(np.interp(y, right[:, 1], right[:, 0]) - np.interp(y, left[:, 1], left[:, 0]))
@@ -137,8 +151,20 @@ def test_it_checks_that_the_commands_export_and_import_pieces(demo_atelier, tmp_
     pattern = BasePattern.objects.get(garment="bodice")
     drawn = tmp_path / "bodice.dxf"
     call_command("export_pieces", "--pattern", str(pattern.pk), "--format", "dxf", "-o", str(drawn))
-    call_command("import_block", str(drawn), "--name", "Bodice again", "--size", "12", "--garment", "bodice",
-                 "--front-panels", "2", "--centre-back", "seamed")
+    call_command(
+        "import_block",
+        str(drawn),
+        "--name",
+        "Bodice again",
+        "--size",
+        "12",
+        "--garment",
+        "bodice",
+        "--front-panels",
+        "2",
+        "--centre-back",
+        "seamed",
+    )
     again = block_for(BasePattern.objects.get(name="Bodice again"))
     original = block_for(pattern)
     for a, b in zip(original.panels, again.panels, strict=True):
@@ -146,14 +172,21 @@ def test_it_checks_that_the_commands_export_and_import_pieces(demo_atelier, tmp_
             assert b.width(lv) == pytest.approx(a.width(lv), abs=TOL)
 
 
-def test_it_checks_that_a_plan_can_be_made_on_the_demo_block_imported_from_its_drawing(demo_atelier, fitter_client, fitter_user):
+def test_it_checks_that_a_plan_can_be_made_on_the_demo_block_imported_from_its_drawing(
+    demo_atelier, fitter_client, fitter_user
+):
     from fittings.models import Client
     from fittings.services import plans as plan_services
 
     pattern = BasePattern.objects.get(garment="underbust corset")
     client_ = Client.objects.get(reference="WF-0101")
-    plan = plan_services.start_plan(client=client_, session=client_.sessions.get(), pattern=pattern,
-                                    garment="Underbust from the drawn block", user=fitter_user)
+    plan = plan_services.start_plan(
+        client=client_,
+        session=client_.sessions.get(),
+        pattern=pattern,
+        garment="Underbust from the drawn block",
+        user=fitter_user,
+    )
     revision = plan.revisions.get()
     result = selectors.revision_result(revision)
     assert {lv.level for lv in result.levels} == {"underbust", "waist", "abdomen", "hip"}

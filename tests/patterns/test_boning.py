@@ -103,7 +103,9 @@ def test_it_chooses_the_longest_stocked_busk_that_fits():
 
 def test_it_takes_the_atelier_stock_and_its_clearance():
     assert choose_busk(300.0, BoningRules(busk_stock_mm=(250.0, 280.0, 290.0))).length_mm == 280.0
-    assert choose_busk(300.0, BoningRules(busk_stock_mm=(250.0, 280.0, 290.0), busk_clearance_mm=10.0)).length_mm == 290.0
+    assert (
+        choose_busk(300.0, BoningRules(busk_stock_mm=(250.0, 280.0, 290.0), busk_clearance_mm=10.0)).length_mm == 290.0
+    )
     # Exactly the room fits.
     assert choose_busk(300.0, BoningRules(busk_stock_mm=(288.0,))).length_mm == 288.0
     none = choose_busk(200.0, BoningRules(busk_stock_mm=(250.0,)))
@@ -129,8 +131,12 @@ def test_it_uses_its_clearance_setting():
 
 
 def test_it_refuses_rules_that_make_no_sense():
-    for bad in ({"clearance_mm": -1}, {"cut_step_mm": 0}, {"busk_stock_mm": (250.0, -3.0)},
-                {"clearance_mm": float("nan")}):
+    for bad in (
+        {"clearance_mm": -1},
+        {"cut_step_mm": 0},
+        {"busk_stock_mm": (250.0, -3.0)},
+        {"clearance_mm": float("nan")},
+    ):
         with pytest.raises(ValueError):
             BoningRules(**bad)
 
@@ -157,8 +163,10 @@ def test_it_keeps_marked_channels_through_the_fitting_file():
     block = hand_block(MARKS)
     assert block_errors(block) == []
     data = json.loads(json.dumps(block_to_dict(block)))
-    assert data["channels"] == [{"panel": "Side", "fraction": 0.5, "edge": "left", "offset_mm": 0.0},
-                                {"panel": "Back", "edge": "right", "offset_mm": 15.0, "name": "Lacing bone"}]
+    assert data["channels"] == [
+        {"panel": "Side", "fraction": 0.5, "edge": "left", "offset_mm": 0.0},
+        {"panel": "Back", "edge": "right", "offset_mm": 15.0, "name": "Lacing bone"},
+    ]
     assert block_from_dict(data) == block
     # A block without marks writes the file it always did (no "channels" key), and reads back.
     plain = demo.corset_block("10")
@@ -175,8 +183,9 @@ def test_it_finds_marks_on_panels_that_do_not_exist():
 
 
 @settings(max_examples=60, deadline=None)
-@given(band=st.floats(-60, 60), shift=st.floats(-8, 8), clearance=st.floats(0, 40),
-       step=st.sampled_from([1.0, 25.4 / 16]))
+@given(
+    band=st.floats(-60, 60), shift=st.floats(-8, 8), clearance=st.floats(0, 40), step=st.sampled_from([1.0, 25.4 / 16])
+)
 def test_it_never_cuts_a_bone_longer_than_its_channel_allows(band, shift, clearance, step):
     block = hand_block(MARKS)
     shifts = {p.name: {lv: PanelShift(shift, shift) for lv in block.level_names} for p in block.panels}

@@ -9,7 +9,8 @@ import json
 
 import numpy as np
 import pytest
-from shapely.geometry import LineString, Point as ShapelyPoint, Polygon
+from shapely.geometry import LineString, Polygon
+from shapely.geometry import Point as ShapelyPoint
 
 from patterns.core.fitting import block_from_dict, block_to_dict, read_fitting
 from patterns.core.outline import alter_block, base_outlines
@@ -18,8 +19,9 @@ from tests.patterns.geometry_helpers import uniform_alteration
 
 
 def _bound(block, top, bottom):
-    return dataclasses.replace(block, panels=tuple(
-        dataclasses.replace(p, top_bound=top, bottom_bound=bottom) for p in block.panels))
+    return dataclasses.replace(
+        block, panels=tuple(dataclasses.replace(p, top_bound=top, bottom_bound=bottom) for p in block.panels)
+    )
 
 
 def _signed_outside(points, a, b, inside):
@@ -129,9 +131,18 @@ def test_it_reads_old_files_as_unbound_and_round_trips_the_choice():
 
 def test_it_checks_the_bound_choice_against_the_schema():
     from patterns.core.fitting import FittingFileError
+
     block = corset_block("10")
-    data = json.loads(json.dumps({"format": "atelier-fitting", "version": 1, "measurements": {"waist_girth": 700.0},
-                                  "pattern": block_to_dict(block)}))
+    data = json.loads(
+        json.dumps(
+            {
+                "format": "atelier-fitting",
+                "version": 1,
+                "measurements": {"waist_girth": 700.0},
+                "pattern": block_to_dict(block),
+            }
+        )
+    )
     assert read_fitting(data)[1] == block
     data["pattern"]["panels"][0]["top_bound"] = "yes"
     with pytest.raises(FittingFileError) as exc:
@@ -144,8 +155,9 @@ def test_it_puts_a_chosen_grainline_where_it_was_drawn():
     panel = block.panels[1]
     mid = block.level_names[len(block.level_names) // 2]
     at = panel.left[mid] + 0.25 * panel.width(mid)
-    moved = dataclasses.replace(block, panels=tuple(
-        dataclasses.replace(p, grainline_x=at) if p is panel else p for p in block.panels))
+    moved = dataclasses.replace(
+        block, panels=tuple(dataclasses.replace(p, grainline_x=at) if p is panel else p for p in block.panels)
+    )
     outline = base_outlines(moved)[1]
     (x0, _), (x1, _) = outline.grainline
     assert x0 == x1 == pytest.approx(at)
@@ -161,12 +173,15 @@ from patterns.core.block import Alteration, PanelShift  # noqa: E402
 
 
 @settings(max_examples=30, deadline=None)
-@given(st.lists(st.tuples(st.floats(-12, 12), st.floats(-12, 12)), min_size=5, max_size=5),
-       st.floats(min_value=0, max_value=25))
+@given(
+    st.lists(st.tuples(st.floats(-12, 12), st.floats(-12, 12)), min_size=5, max_size=5),
+    st.floats(min_value=0, max_value=25),
+)
 def test_it_never_cuts_beyond_a_bound_edge_whatever_the_shifts(shifts, allowance):
     block = corset_block("10")
-    alteration = Alteration(shifts={p.name: {lv: PanelShift(*s) for lv, s in zip(block.level_names, shifts)}
-                                    for p in block.panels})
+    alteration = Alteration(
+        shifts={p.name: {lv: PanelShift(*s) for lv, s in zip(block.level_names, shifts)} for p in block.panels}
+    )
     for outline in alter_block(block, alteration, seam_allowance_mm=allowance):
         cut = np.asarray(outline.cutting)
         left, right = np.asarray(outline.left_line), np.asarray(outline.right_line)

@@ -6,7 +6,14 @@ import pytest
 
 from patterns.core.block import BACK, FRONT, Level
 from patterns.core.drafting import (
-    BlockDraft, PanelDraft, SeamDraft, TapePanel, TapeReadings, build_block, draft_from_block, draft_from_tape,
+    BlockDraft,
+    PanelDraft,
+    SeamDraft,
+    TapePanel,
+    TapeReadings,
+    build_block,
+    draft_from_block,
+    draft_from_tape,
 )
 from patterns.demo import bodice_block, corset_block
 
@@ -15,13 +22,24 @@ LEVELS = (Level("bust", 80.0), Level("waist", 260.0), Level("hip", 420.0))
 
 def _draft(**changes):
     panels = (
-        PanelDraft("Front", FRONT, {"bust": 110.0, "waist": 80.0, "hip": 115.0}, top=(0.0, 20.0), bottom=(440.0, 440.0),
-                   top_bound=True, bottom_bound=True),
-        PanelDraft("Side", FRONT, {"bust": 100.0, "waist": 75.0, "hip": 110.0}, top=(20.0, 40.0), bottom=(440.0, 440.0)),
+        PanelDraft(
+            "Front",
+            FRONT,
+            {"bust": 110.0, "waist": 80.0, "hip": 115.0},
+            top=(0.0, 20.0),
+            bottom=(440.0, 440.0),
+            top_bound=True,
+            bottom_bound=True,
+        ),
+        PanelDraft(
+            "Side", FRONT, {"bust": 100.0, "waist": 75.0, "hip": 110.0}, top=(20.0, 40.0), bottom=(440.0, 440.0)
+        ),
         PanelDraft("Back", BACK, {"bust": 105.0, "waist": 85.0, "hip": 120.0}, top=(40.0, 30.0), bottom=(440.0, 450.0)),
     )
-    seams = (SeamDraft("Front seam", "princess", frozenset({"waist", "hip"})),
-             SeamDraft("Side seam", "side", frozenset({"bust", "waist", "hip"}), cap_mm=12.0))
+    seams = (
+        SeamDraft("Front seam", "princess", frozenset({"waist", "hip"})),
+        SeamDraft("Side seam", "side", frozenset({"bust", "waist", "hip"}), cap_mm=12.0),
+    )
     base = dict(name="Test block", size="M", garment="underbust corset", levels=LEVELS, panels=panels, seams=seams)
     base.update(changes)
     return BlockDraft(**base)
@@ -78,8 +96,9 @@ def test_it_finds_a_level_outside_a_panel_and_outside_the_block():
 
 def test_it_finds_stitch_lines_placed_by_hand_that_cross_a_neighbour():
     draft = _draft()
-    placed = tuple(dataclasses.replace(p, lefts={lv.name: x for lv in LEVELS})
-                   for p, x in zip(draft.panels, (0.0, 100.0, 250.0)))
+    placed = tuple(
+        dataclasses.replace(p, lefts={lv.name: x for lv in LEVELS}) for p, x in zip(draft.panels, (0.0, 100.0, 250.0))
+    )
     drafted = build_block(dataclasses.replace(draft, panels=placed))
     overlaps = [f for f in drafted.findings if f.code == "panels_overlap"]
     # Front is 110 mm wide at the bust but Side starts at 100 mm: they cross by 1 cm there, and at the hip by 1.5 cm.
@@ -88,8 +107,12 @@ def test_it_finds_stitch_lines_placed_by_hand_that_cross_a_neighbour():
 
 
 def test_it_refuses_a_seam_moving_at_a_level_the_block_lacks():
-    draft = _draft(seams=(SeamDraft("Front seam", "princess", frozenset({"underbust"})),
-                          SeamDraft("Side seam", "side", frozenset({"waist"}))))
+    draft = _draft(
+        seams=(
+            SeamDraft("Front seam", "princess", frozenset({"underbust"})),
+            SeamDraft("Side seam", "side", frozenset({"waist"})),
+        )
+    )
     drafted = build_block(draft)
     assert [f.code for f in drafted.errors] == ["seam_level_unknown"]
 
@@ -104,7 +127,9 @@ def _tape_of(draft):
     )
     return TapeReadings(
         levels=tuple(lv.name for lv in draft.levels),
-        panels=tuple(TapePanel(p.name, p.side, p.cut_count, p.on_fold, p.top_bound, p.bottom_bound) for p in draft.panels),
+        panels=tuple(
+            TapePanel(p.name, p.side, p.cut_count, p.on_fold, p.top_bound, p.bottom_bound) for p in draft.panels
+        ),
         widths={lv.name: tuple(p.widths[lv.name] for p in draft.panels) for lv in draft.levels},
         down=down,
     )
@@ -114,8 +139,9 @@ def test_it_makes_the_same_block_from_tape_readings_as_from_the_form():
     # Shared corners between neighbours, as on a card pattern: each seam has one top and one bottom height.
     draft = _draft()
     readings = _tape_of(draft)
-    from_tape, findings = draft_from_tape(readings, name=draft.name, size=draft.size, garment=draft.garment,
-                                          seams=draft.seams)
+    from_tape, findings = draft_from_tape(
+        readings, name=draft.name, size=draft.size, garment=draft.garment, seams=draft.seams
+    )
     assert findings == ()
     assert build_block(from_tape).block == build_block(draft).block
 
@@ -125,7 +151,8 @@ def test_it_warns_when_a_seam_measures_shorter_than_the_centre_front_between_lev
     readings = _tape_of(draft)
     down = list(readings.down)
     down[2] = (down[2][0], down[2][1] - 10.0, *down[2][2:])
-    _, findings = draft_from_tape(dataclasses.replace(readings, down=tuple(down)), name="x", size="1",
-                                  garment="bodice", seams=draft.seams)
+    _, findings = draft_from_tape(
+        dataclasses.replace(readings, down=tuple(down)), name="x", size="1", garment="bodice", seams=draft.seams
+    )
     assert [f.code for f in findings] == ["line_shorter_than_centre_front"]
     assert "Along the Side seam the bust to waist measures 17.0 cm, less than the 18.0 cm" in findings[0].message

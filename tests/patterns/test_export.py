@@ -7,12 +7,20 @@ from xml.etree import ElementTree as ET
 import ezdxf
 import numpy as np
 import pytest
-from shapely.geometry import LineString, Point as ShapelyPoint, Polygon
+from shapely.geometry import LineString, Polygon
+from shapely.geometry import Point as ShapelyPoint
 
 from patterns.core.block import Alteration, PanelShift
 from patterns.core.export import (
-    INSUNITS_MILLIMETRES, NOTCH_DEPTH_MM, SHEET_MARGIN_MM, TEST_SQUARE_MM, dxf_bytes, notch_segments, read_dxf,
-    sheet_layout, svg_text,
+    INSUNITS_MILLIMETRES,
+    NOTCH_DEPTH_MM,
+    SHEET_MARGIN_MM,
+    TEST_SQUARE_MM,
+    dxf_bytes,
+    notch_segments,
+    read_dxf,
+    sheet_layout,
+    svg_text,
 )
 from patterns.core.outline import alter_block, base_outlines
 from patterns.demo import bodice_block, corset_block
@@ -24,9 +32,10 @@ LAYERS = {"CUT", "STITCH", "NOTCH", "GRAIN", "LABEL"}
 def _outlines(block=None):
     block = block or corset_block("10")
     second, last_but_one = block.panels[1].name, block.panels[-2].name
-    alteration = Alteration(shifts={second: {"waist": PanelShift(-6.0, -4.0)},
-                                    last_but_one: {"bust": PanelShift(5.0, 5.0)}},
-                            bands={("waist", block.levels[-1].name): 8.0})
+    alteration = Alteration(
+        shifts={second: {"waist": PanelShift(-6.0, -4.0)}, last_but_one: {"bust": PanelShift(5.0, 5.0)}},
+        bands={("waist", block.levels[-1].name): 8.0},
+    )
     return alter_block(block, alteration)
 
 
@@ -167,8 +176,10 @@ def test_it_checks_that_dxf_units_are_millimetres_and_entities_sit_on_named_laye
 def test_it_checks_that_dxf_pieces_sit_apart_on_the_sheet():
     outlines = base_outlines(corset_block("10"))
     panels = read_dxf(dxf_bytes(outlines))
-    placed = [Polygon([(x + ix, y + iy) for x, y in p.cutting]) for p, (ix, iy) in
-              ((p, (p.insert[0], p.insert[1])) for p in panels)]
+    placed = [
+        Polygon([(x + ix, y + iy) for x, y in p.cutting])
+        for p, (ix, iy) in ((p, (p.insert[0], p.insert[1])) for p in panels)
+    ]
     for a, b in zip(placed, placed[1:]):
         assert b.bounds[0] - a.bounds[2] == pytest.approx(10.0, abs=0.01)
         assert a.distance(b) >= 10.0 - 0.01

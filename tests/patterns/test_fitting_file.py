@@ -6,8 +6,15 @@ import pytest
 
 from patterns.core.allot import allot
 from patterns.core.fitting import (
-    FittingFileError, block_from_dict, block_to_dict, body_from_measurements, fitting_to_dict, load_fitting_text,
-    result_to_json, schema, validate_result,
+    FittingFileError,
+    block_from_dict,
+    block_to_dict,
+    body_from_measurements,
+    fitting_to_dict,
+    load_fitting_text,
+    result_to_json,
+    schema,
+    validate_result,
 )
 from patterns.demo import bodice_block, corset_run
 
@@ -60,21 +67,27 @@ def mutate(path, value):
     return json.dumps(data)
 
 
-@pytest.mark.parametrize("text, field", [
-    ("{", "(file)"),
-    ("[]", "(file)"),
-    ('{"format": "atelier-fitting", "version": 1, "measurements": {"bust_girth": NaN}, "pattern": {}}', "(file)"),
-    (mutate("measurements/bust_girth", -5), "measurements/bust_girth"),
-    (mutate("measurements/bust_girth", "95"), "measurements/bust_girth"),
-    (mutate("measurements/bust_girth", 10), "measurements/bust_girth"),
-    (mutate("measurements/shoe_size", 40), "measurements"),
-    (mutate("pattern/levels", KeyError), "pattern"),
-    (mutate("pattern/seams/0/front_panel", "Nowhere"), "pattern"),
-    (mutate("plan/policy", "random"), "plan/policy"),
-    (mutate("plan/overrides", [{"seam": "Zip seam", "level": "waist", "panel": "Front", "shift_mm": 2}]), "plan/overrides/0/seam"),
-    (mutate("plan/ease", {"knee": 10}), "plan/ease"),
-    (mutate("version", 2), "version"),
-])
+@pytest.mark.parametrize(
+    "text, field",
+    [
+        ("{", "(file)"),
+        ("[]", "(file)"),
+        ('{"format": "atelier-fitting", "version": 1, "measurements": {"bust_girth": NaN}, "pattern": {}}', "(file)"),
+        (mutate("measurements/bust_girth", -5), "measurements/bust_girth"),
+        (mutate("measurements/bust_girth", "95"), "measurements/bust_girth"),
+        (mutate("measurements/bust_girth", 10), "measurements/bust_girth"),
+        (mutate("measurements/shoe_size", 40), "measurements"),
+        (mutate("pattern/levels", KeyError), "pattern"),
+        (mutate("pattern/seams/0/front_panel", "Nowhere"), "pattern"),
+        (mutate("plan/policy", "random"), "plan/policy"),
+        (
+            mutate("plan/overrides", [{"seam": "Zip seam", "level": "waist", "panel": "Front", "shift_mm": 2}]),
+            "plan/overrides/0/seam",
+        ),
+        (mutate("plan/ease", {"knee": 10}), "plan/ease"),
+        (mutate("version", 2), "version"),
+    ],
+)
 def test_it_names_the_field_at_fault(text, field):
     with pytest.raises(FittingFileError) as caught:
         load_fitting_text(text)

@@ -13,7 +13,14 @@ from hypothesis import strategies as st
 
 from patterns.core import allot as allot_module
 from patterns.core.block import block_errors
-from patterns.core.grading import EN13402_BUST_CM, EN13402_BUST_STEP_MM, GRADING_STEP_MM, GradingTable, grade_block, grade_run
+from patterns.core.grading import (
+    EN13402_BUST_CM,
+    EN13402_BUST_STEP_MM,
+    GRADING_STEP_MM,
+    GradingTable,
+    grade_block,
+    grade_run,
+)
 from patterns.core.outline import base_outlines
 from patterns.demo import bodice_block, corset_block
 from tests.patterns.geometry_helpers import width_at
@@ -85,7 +92,9 @@ def test_it_measures_the_graded_outline_wider_by_the_step():
 
 def test_it_lengthens_the_bands_it_is_told_to():
     block = corset_block("10")
-    graded = grade_block(block, _table(block, band_mm={("waist", "abdomen"): 3.0, ("abdomen", "hip"): 2.0}), 2, "14").block
+    graded = grade_block(
+        block, _table(block, band_mm={("waist", "abdomen"): 3.0, ("abdomen", "hip"): 2.0}), 2, "14"
+    ).block
     assert graded.level_y("waist") == block.level_y("waist")
     assert graded.level_y("abdomen") == pytest.approx(block.level_y("abdomen") + 6.0)
     assert graded.level_y("hip") == pytest.approx(block.level_y("hip") + 10.0)

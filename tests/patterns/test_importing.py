@@ -13,13 +13,20 @@ import math
 import ezdxf
 import numpy as np
 import pytest
-from hypothesis import given, settings, strategies as st
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from patterns.core.block import Alteration, PanelShift, block_errors
 from patterns.core.export import dxf_bytes, svg_text
 from patterns.core.fitting import block_to_dict, read_fitting
 from patterns.core.importing import (
-    BlockImportError, ImportOptions, LevelsError, OpenOutlineError, UnknownUnitError, import_block, level_of,
+    BlockImportError,
+    ImportOptions,
+    LevelsError,
+    OpenOutlineError,
+    UnknownUnitError,
+    import_block,
+    level_of,
 )
 from patterns.core.outline import alter_block, alter_pattern, base_outlines
 from patterns.demo import bodice_block, corset_block
@@ -31,7 +38,7 @@ MM_PER_IN = 25.4
 # A piece 400 mm long: straight left side at x = 0, right side a circular arc of radius R
 # from (100, 0) to (100, 400), bulging outwards; its centre lies on y = 200.
 R = 500.0
-CX = 100.0 - math.sqrt(R * R - 200.0 ** 2)
+CX = 100.0 - math.sqrt(R * R - 200.0**2)
 
 
 def arc_x(y: float) -> float:
@@ -41,7 +48,7 @@ def arc_x(y: float) -> float:
 
 def bezier_x(t: float) -> float:
     """x of the cubic Bezier (100,0) (140,133.3) (140,266.7) (100,400); its y is 400 t exactly."""
-    return 100 * (1 - t) ** 3 + 3 * 140 * (1 - t) ** 2 * t + 3 * 140 * (1 - t) * t ** 2 + 100 * t ** 3
+    return 100 * (1 - t) ** 3 + 3 * 140 * (1 - t) ** 2 * t + 3 * 140 * (1 - t) * t**2 + 100 * t**3
 
 
 SVG_ARC = b"""<?xml version="1.0"?>
@@ -116,8 +123,12 @@ def test_it_keeps_blocks_without_drawn_lines_as_they_were():
 
 def test_it_carries_the_drawn_lines_through_the_fitting_file():
     block = import_block(SVG_ARC, "block.svg")
-    data = {"format": "atelier-fitting", "version": 1, "measurements": {"waist_girth": 700.0},
-            "pattern": json.loads(json.dumps(block_to_dict(block)))}
+    data = {
+        "format": "atelier-fitting",
+        "version": 1,
+        "measurements": {"waist_girth": 700.0},
+        "pattern": json.loads(json.dumps(block_to_dict(block))),
+    }
     _, read, _ = read_fitting(data)
     assert np.array(read.panels[0].curves.right) == pytest.approx(np.array(block.panels[0].curves.right))
     assert read == block
@@ -188,7 +199,7 @@ def test_it_reads_dxf_lines_arcs_and_splines_in_inches_joined_end_to_end():
         x_arc = cx + math.sqrt(r * r - (y_in - 4.0) ** 2)
         assert front.width(lv.name) == pytest.approx(x_arc * MM_PER_IN, abs=TOL)
         t = y_in / 8.0  # the spline's control points are evenly spaced in y, so y = 8 t
-        x_spline = 10 * (1 - t) ** 3 + 33 * (1 - t) ** 2 * t + 33 * (1 - t) * t ** 2 + 10 * t ** 3
+        x_spline = 10 * (1 - t) ** 3 + 33 * (1 - t) ** 2 * t + 33 * (1 - t) * t**2 + 10 * t**3
         assert back.width(lv.name) == pytest.approx((x_spline - 6) * MM_PER_IN, abs=TOL)
 
 
@@ -202,8 +213,10 @@ def test_it_reads_a_dxf_written_as_raw_text_in_millimetres():
         line(*a, *b)
     line(-5, -50, 130, -50, "underbust")
     line(-5, -250, 130, -250, "abdomen")
-    text = ("0\nSECTION\n2\nHEADER\n9\n$INSUNITS\n70\n4\n0\nENDSEC\n"
-            "0\nSECTION\n2\nENTITIES\n" + "".join(entities) + "0\nENDSEC\n0\nEOF\n")
+    text = (
+        "0\nSECTION\n2\nHEADER\n9\n$INSUNITS\n70\n4\n0\nENDSEC\n"
+        "0\nSECTION\n2\nENTITIES\n" + "".join(entities) + "0\nENDSEC\n0\nEOF\n"
+    )
     block = import_block(text.encode(), "raw.dxf")
     (panel,) = block.panels
     # Right side from (120, 0) to (110, 300): x = 120 - y / 30.
@@ -223,7 +236,11 @@ def test_it_round_trips_a_dxf_export_to_the_same_block():
             dx = after.top_left.x - before.top_left.x
             assert after.top_left.y == pytest.approx(before.top_left.y, abs=TOL)
             assert (after.name, after.side, after.cut_count, after.on_fold) == (
-                before.name, before.side, before.cut_count, before.on_fold)
+                before.name,
+                before.side,
+                before.cut_count,
+                before.on_fold,
+            )
             for lv in block.level_names:
                 assert after.left[lv] - dx == pytest.approx(before.left[lv], abs=TOL)
                 assert after.right[lv] - dx == pytest.approx(before.right[lv], abs=TOL)
@@ -264,13 +281,16 @@ def test_it_refuses_an_open_outline_and_says_where_the_gap_is():
         import_block(_svg('<path d="M 0 0 L 100 0 L 100 300 L 12 300"/>' + LEVELS), "open.svg")
 
 
-@pytest.mark.parametrize("size", [
-    'width="300" height="500" viewBox="0 0 300 500"',
-    'width="300px" height="500px"',
-    'width="30em" height="50em"',
-    'viewBox="0 0 300 500"',
-    'width="100%" height="100%" viewBox="0 0 300 500"',
-])
+@pytest.mark.parametrize(
+    "size",
+    [
+        'width="300" height="500" viewBox="0 0 300 500"',
+        'width="300px" height="500px"',
+        'width="30em" height="50em"',
+        'viewBox="0 0 300 500"',
+        'width="100%" height="100%" viewBox="0 0 300 500"',
+    ],
+)
 def test_it_refuses_an_svg_without_a_unit_of_length(size):
     with pytest.raises(UnknownUnitError, match="mm, cm or in"):
         import_block(_svg('<rect x="0" y="0" width="100" height="300"/>' + LEVELS, size), "x.svg")
@@ -288,8 +308,10 @@ def test_it_refuses_pieces_without_levels():
     with pytest.raises(LevelsError, match="no level lines"):
         import_block(_svg('<rect x="0" y="0" width="100" height="300"/>'), "x.svg")
     # A second piece that the level lines do not cross.
-    body = ('<rect x="0" y="0" width="100" height="300"/><rect x="200" y="0" width="80" height="300"/>'
-            '<line id="bust" x1="0" y1="50" x2="150" y2="50"/><line id="waist" x1="0" y1="200" x2="150" y2="200"/>')
+    body = (
+        '<rect x="0" y="0" width="100" height="300"/><rect x="200" y="0" width="80" height="300"/>'
+        '<line id="bust" x1="0" y1="50" x2="150" y2="50"/><line id="waist" x1="0" y1="200" x2="150" y2="200"/>'
+    )
     with pytest.raises(LevelsError, match="No bust line crosses"):
         import_block(_svg(body), "x.svg")
     # A piece too short to reach the waist.
@@ -299,13 +321,20 @@ def test_it_refuses_pieces_without_levels():
 
 
 def test_it_refuses_level_lines_at_different_heights_and_files_that_are_not_drawings():
-    body = ('<rect x="0" y="0" width="100" height="300"/><rect x="150" y="0" width="80" height="300"/>'
-            '<line id="bust" x1="0" y1="50" x2="300" y2="50"/><line id="waist" x1="0" y1="200" x2="120" y2="200"/>'
-            '<line class="waist" x1="140" y1="210" x2="300" y2="210"/>')
+    body = (
+        '<rect x="0" y="0" width="100" height="300"/><rect x="150" y="0" width="80" height="300"/>'
+        '<line id="bust" x1="0" y1="50" x2="300" y2="50"/><line id="waist" x1="0" y1="200" x2="120" y2="200"/>'
+        '<line class="waist" x1="140" y1="210" x2="300" y2="210"/>'
+    )
     with pytest.raises(LevelsError, match="different heights"):
         import_block(_svg(body), "x.svg")
-    for data, name in ((b"", "x.svg"), (b"not a drawing at all", "x.dxf"), (b"<svg", "x.svg"),
-                       (b"<html></html>", "x.svg"), (b"\x00\x01binary", "x.bin")):
+    for data, name in (
+        (b"", "x.svg"),
+        (b"not a drawing at all", "x.dxf"),
+        (b"<svg", "x.svg"),
+        (b"<html></html>", "x.svg"),
+        (b"\x00\x01binary", "x.bin"),
+    ):
         with pytest.raises(BlockImportError):
             import_block(data, name)
     bomb = b'<?xml version="1.0"?><!DOCTYPE svg [<!ENTITY a "aaaa">]><svg xmlns="http://www.w3.org/2000/svg">&a;</svg>'
@@ -325,10 +354,14 @@ def test_it_names_levels_by_code_label_or_layer_style():
 
 # --- property: straight-sided pieces of any shape read back at the widths of their corners ---------
 
+
 @settings(max_examples=40, deadline=None)
 @given(
-    pieces=st.lists(st.tuples(st.floats(40, 160), st.floats(40, 160), st.floats(-20, 20), st.floats(-20, 20)),
-                    min_size=1, max_size=4),
+    pieces=st.lists(
+        st.tuples(st.floats(40, 160), st.floats(40, 160), st.floats(-20, 20), st.floats(-20, 20)),
+        min_size=1,
+        max_size=4,
+    ),
     levels=st.tuples(st.floats(20, 120), st.floats(160, 260), st.floats(300, 380)),
 )
 def test_it_reads_straight_sided_pieces_at_the_widths_worked_out_from_their_corners(pieces, levels):
@@ -341,8 +374,10 @@ def test_it_reads_straight_sided_pieces_at_the_widths_worked_out_from_their_corn
         origin += 20 + max(a, b + d1 + d2) + 40 + 25
     names = ("bust", "waist", "hip")
     lines = "".join(f'<line id="{n}" x1="-50" y1="{y}" x2="{origin + 50}" y2="{y}"/>' for n, y in zip(names, levels))
-    svg = (f'<svg xmlns="http://www.w3.org/2000/svg" width="{origin + 100}mm" height="500mm" '
-           f'viewBox="0 0 {origin + 100} 500">{"".join(paths)}{lines}</svg>').encode()
+    svg = (
+        f'<svg xmlns="http://www.w3.org/2000/svg" width="{origin + 100}mm" height="500mm" '
+        f'viewBox="0 0 {origin + 100} 500">{"".join(paths)}{lines}</svg>'
+    ).encode()
     block = import_block(svg, "x.svg")
     assert len(block.panels) == len(pieces)
     for panel, (a, b, d1, d2) in zip(block.panels, pieces):
@@ -381,6 +416,9 @@ def test_it_says_where_a_dxf_outline_is_open_in_the_files_own_coordinates():
     msp.add_lwpolyline([(0, 0), (100, 0), (100, -300), (5, -300)])  # open: the last side is missing
     msp.add_line((-5, -50), (120, -50), dxfattribs={"layer": "BUST"})
     msp.add_line((-5, -250), (120, -250), dxfattribs={"layer": "WAIST"})
-    with pytest.raises(OpenOutlineError, match=r"LWPOLYLINE on layer 0 ends at x 0\.0 mm, y 0\.0 mm and at "
-                                               r"x 5\.0 mm, y -300\.0 mm, 300\.0 mm apart"):
+    with pytest.raises(
+        OpenOutlineError,
+        match=r"LWPOLYLINE on layer 0 ends at x 0\.0 mm, y 0\.0 mm and at "
+        r"x 5\.0 mm, y -300\.0 mm, 300\.0 mm apart",
+    ):
         import_block(_dxf(doc), "open.dxf")

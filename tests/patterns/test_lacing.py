@@ -26,8 +26,9 @@ from patterns.core.lacing import (
 from patterns.core.outline import base_outlines
 from tests.patterns.workroom_helpers import hand_block
 
-RULES = LacingRules(spacing_mm=25.0, waist_pair_mm=13.0, top_margin_mm=20.0, bottom_margin_mm=20.0,
-                    inset_mm=12.0, tail_mm=600.0)
+RULES = LacingRules(
+    spacing_mm=25.0, waist_pair_mm=13.0, top_margin_mm=20.0, bottom_margin_mm=20.0, inset_mm=12.0, tail_mm=600.0
+)
 
 
 def test_it_places_eyelets_on_the_hand_block():
@@ -73,8 +74,7 @@ def test_it_never_leaves_a_gap_wider_than_the_spacing():
 
 
 @settings(max_examples=200, deadline=None)
-@given(edge=st.floats(60, 900), waist_share=st.floats(0.0, 1.0), spacing=st.floats(10, 60),
-       pair=st.floats(8, 20))
+@given(edge=st.floats(60, 900), waist_share=st.floats(0.0, 1.0), spacing=st.floats(10, 60), pair=st.floats(8, 20))
 def test_it_keeps_its_spacing_rules_for_any_edge(edge, waist_share, spacing, pair):
     rules = LacingRules(spacing_mm=spacing, waist_pair_mm=pair, top_margin_mm=20, bottom_margin_mm=20)
     positions, pairs = eyelet_positions(edge, edge * waist_share, rules)
@@ -99,7 +99,9 @@ def test_it_spaces_evenly_without_a_waist():
 def test_it_laces_only_a_laced_back():
     block = hand_block(centre_back=CB_SEAMED)
     assert lacing(block, base_outlines(block), 50.0) is None
-    short = lacing(hand_block(), base_outlines(hand_block()), 50.0, LacingRules(top_margin_mm=200, bottom_margin_mm=200))
+    short = lacing(
+        hand_block(), base_outlines(hand_block()), 50.0, LacingRules(top_margin_mm=200, bottom_margin_mm=200)
+    )
     assert short.count == 0 and short.lace_mm == 0.0
     assert [f.code for f in short.findings] == ["back_too_short_for_eyelets"]
 

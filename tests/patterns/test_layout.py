@@ -17,9 +17,24 @@ from shapely.geometry import Polygon
 
 from patterns.core.block import Alteration
 from patterns.core.layout import (
-    BODICE_LAYERS, CORSET_LAYERS, SHELF, SOLVER, LayerRequest, LayoutError, Placement, Progress, best_of,
-    check_layers, cut_pieces, default_layers, layout_problems, placed_outline, shelf_layout, solve_layers,
-    solve_layers_apart, solver_layout,
+    BODICE_LAYERS,
+    CORSET_LAYERS,
+    SHELF,
+    SOLVER,
+    LayerRequest,
+    LayoutError,
+    Placement,
+    Progress,
+    best_of,
+    check_layers,
+    cut_pieces,
+    default_layers,
+    layout_problems,
+    placed_outline,
+    shelf_layout,
+    solve_layers,
+    solve_layers_apart,
+    solver_layout,
 )
 from patterns.core.outline import alter_block
 from patterns.demo import bodice_block, corset_block, drawn_underbust_block
@@ -66,14 +81,16 @@ def assert_valid(layout, pieces=None):
         # Grain kept: the placed piece is the piece as drafted, or turned half round, never at another angle.
         piece = Polygon(by_name[placement.piece].outline)
         expected = affinity.rotate(piece, placement.rotation, origin="centroid")
-        expected = affinity.translate(expected, poly.bounds[0] - expected.bounds[0], poly.bounds[1] - expected.bounds[1])
+        expected = affinity.translate(
+            expected, poly.bounds[0] - expected.bounds[0], poly.bounds[1] - expected.bounds[1]
+        )
         assert poly.symmetric_difference(expected).area < 1e-6 * piece.area
         x0, y0, x1, y1 = poly.bounds
         assert x0 >= -TOL and x1 <= layout.width_mm + TOL
         assert y0 >= -TOL and y1 <= layout.length_mm + TOL
         polys.append(poly)
     for i, a in enumerate(polys):
-        for b in polys[i + 1:]:
+        for b in polys[i + 1 :]:
             assert a.intersection(b).area == 0.0
             assert a.distance(b) >= layout.gap_mm - TOL
     assert layout_problems(layout) == []
@@ -156,8 +173,11 @@ def test_it_places_the_tallest_pieces_first():
     assert layout.length_mm == pytest.approx(300.0)
 
 
-@pytest.mark.parametrize("block", [corset_block("10"), corset_block("14"), bodice_block(), drawn_underbust_block()],
-                         ids=["corset-10", "corset-14", "bodice", "underbust-drawn"])
+@pytest.mark.parametrize(
+    "block",
+    [corset_block("10"), corset_block("14"), bodice_block(), drawn_underbust_block()],
+    ids=["corset-10", "corset-14", "bodice", "underbust-drawn"],
+)
 @pytest.mark.parametrize("width", [900.0, 1120.0, 1400.0])
 def test_it_lays_the_demo_pieces_in_rows_keeping_every_rule(block, width):
     pieces = demo_pieces(block)
@@ -170,9 +190,13 @@ def test_it_lays_the_demo_pieces_in_rows_keeping_every_rule(block, width):
 
 
 @settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(st.lists(st.tuples(st.floats(20, 150), st.floats(20, 150), st.floats(30, 400), st.integers(1, 4)),
-                min_size=1, max_size=8),
-       st.floats(0, 20), st.floats(160, 1500))
+@given(
+    st.lists(
+        st.tuples(st.floats(20, 150), st.floats(20, 150), st.floats(30, 400), st.integers(1, 4)), min_size=1, max_size=8
+    ),
+    st.floats(0, 20),
+    st.floats(160, 1500),
+)
 def test_it_never_overlaps_in_rows_whatever_the_pieces(shapes, gap, width):
     outlines = [Outline(f"P{i}", trapezoid(top, bottom, h), count) for i, (top, bottom, h, count) in enumerate(shapes)]
     pieces = cut_pieces(outlines)
@@ -183,14 +207,17 @@ def test_it_never_overlaps_in_rows_whatever_the_pieces(shapes, gap, width):
 # --- bad requests ------------------------------------------------------------------------
 
 
-@pytest.mark.parametrize("width, gap, words", [
-    (0.0, 5.0, "more than 0"),
-    (-10.0, 5.0, "more than 0"),
-    (float("nan"), 5.0, "must be a number"),
-    (1400.0, -1.0, "between 0 and"),
-    (1400.0, 500.0, "between 0 and"),
-    (80.0, 5.0, "wider than the fabric"),
-])
+@pytest.mark.parametrize(
+    "width, gap, words",
+    [
+        (0.0, 5.0, "more than 0"),
+        (-10.0, 5.0, "more than 0"),
+        (float("nan"), 5.0, "must be a number"),
+        (1400.0, -1.0, "between 0 and"),
+        (1400.0, 500.0, "between 0 and"),
+        (80.0, 5.0, "wider than the fabric"),
+    ],
+)
 def test_it_refuses_a_width_or_gap_no_layout_can_use(width, gap, words):
     pieces = cut_pieces([Outline("A", rect(100, 200))])
     with pytest.raises(LayoutError, match=words):
@@ -230,7 +257,9 @@ def test_it_turns_a_piece_half_round_about_its_box():
     poly = Polygon(turned)
     assert poly.bounds == pytest.approx((10.0, 20.0, 110.0, 220.0))
     # Wide end now at the top.
-    top_width = max(x for x, y in turned if y == pytest.approx(20.0)) - min(x for x, y in turned if y == pytest.approx(20.0))
+    top_width = max(x for x, y in turned if y == pytest.approx(20.0)) - min(
+        x for x, y in turned if y == pytest.approx(20.0)
+    )
     assert top_width == pytest.approx(100.0)
 
 
@@ -296,8 +325,9 @@ def test_it_solves_in_a_process_of_its_own_leaving_no_threads_behind():
     pieces = cut_pieces([Outline("A", rect(100, 100)), Outline("B", rect(100, 100))])
     before = _os_threads()
     seen = []
-    results = solve_layers_apart(pieces, [LayerRequest("fashion", 215.0)], 10.0, budget_s=1, seed=1,
-                                 progress=seen.append)
+    results = solve_layers_apart(
+        pieces, [LayerRequest("fashion", 215.0)], 10.0, budget_s=1, seed=1, progress=seen.append
+    )
     assert _os_threads() == before  # the solver's own threads lived and died in the child
     (result,) = results
     assert_valid(result.solver, pieces)

@@ -15,13 +15,23 @@ from shapely.geometry import LineString, Polygon
 
 from patterns.core.block import LEFT, MIN_PANEL_WIDTH_MM, RIGHT, Alteration, PanelShift
 from patterns.core.outline import (
-    MAX_TURN_DEGREES, TRUING_TOLERANCE_MM, alter_block, alter_pattern, base_outlines, pchip,
+    MAX_TURN_DEGREES,
+    TRUING_TOLERANCE_MM,
+    alter_block,
+    alter_pattern,
+    base_outlines,
+    pchip,
     seam_truing,
 )
 from patterns.core.units import MM_PER_INCH
 from patterns.demo import bodice_block, corset_block, corset_run
 from tests.patterns.geometry_helpers import (
-    ALL_LEVELS, allowance_distances, levels_on_both_edges, mirrored_pair_block, s_bend_block, uniform_alteration,
+    ALL_LEVELS,
+    allowance_distances,
+    levels_on_both_edges,
+    mirrored_pair_block,
+    s_bend_block,
+    uniform_alteration,
     width_at,
 )
 
@@ -44,10 +54,12 @@ FIXED_ALTERATIONS = {
     "uniform narrow": lambda b: uniform_alteration(b, -3.0, -2.5),
     "waist taken in": lambda b: _at_waist(b, -8.0),
     "waist let out": lambda b: _at_waist(b, 10.0),
-    "uneven": lambda b: Alteration(shifts={
-        b.panels[1].name: {"bust": PanelShift(5, -3), "waist": PanelShift(-7, 2)},
-        b.panels[2].name: {b.level_names[-1]: PanelShift(12, 0)},
-    }),
+    "uneven": lambda b: Alteration(
+        shifts={
+            b.panels[1].name: {"bust": PanelShift(5, -3), "waist": PanelShift(-7, 2)},
+            b.panels[2].name: {b.level_names[-1]: PanelShift(12, 0)},
+        }
+    ),
 }
 
 
@@ -67,7 +79,7 @@ def test_it_checks_that_pchip_never_overshoots_between_knots(values):
     yq = pchip(xk, values, xq)
     for i in range(len(xk) - 1):
         seg = yq[(xq >= xk[i]) & (xq <= xk[i + 1])]
-        lo, hi = sorted(values[i:i + 2])
+        lo, hi = sorted(values[i : i + 2])
         assert seg.min() >= lo - 1e-9 and seg.max() <= hi + 1e-9
 
 
@@ -141,8 +153,12 @@ def test_it_checks_that_a_level_below_a_panels_bottom_edge_gets_no_notch_and_no_
 
     block = corset_block("10")
     hip = block.level_y("hip")
-    short = [replace(p, bottom_left=Point(p.bottom_left.x, hip - 5), bottom_right=Point(p.bottom_right.x, hip - 5))
-             if p.name == "Side front" else p for p in block.panels]
+    short = [
+        replace(p, bottom_left=Point(p.bottom_left.x, hip - 5), bottom_right=Point(p.bottom_right.x, hip - 5))
+        if p.name == "Side front"
+        else p
+        for p in block.panels
+    ]
     block = replace(block, panels=tuple(short))  # the side front panel ends 5 mm above the hip line
     side_front = {o.name: o for o in base_outlines(block)}["Side front"]
     assert "hip" not in side_front.level_y
@@ -158,8 +174,13 @@ def test_it_checks_that_band_change_moves_levels_below_and_inside_the_band():
     alteration = Alteration(shifts={}, bands={("waist", "hip"): 20.0})
     outlines = alter_block(block, alteration)
     inside = 20.0 * (y["abdomen"] - y["waist"]) / (y["hip"] - y["waist"])
-    expected = {"bust": y["bust"], "underbust": y["underbust"], "waist": y["waist"],
-                "abdomen": y["abdomen"] + inside, "hip": y["hip"] + 20.0}
+    expected = {
+        "bust": y["bust"],
+        "underbust": y["underbust"],
+        "waist": y["waist"],
+        "abdomen": y["abdomen"] + inside,
+        "hip": y["hip"] + 20.0,
+    }
     for outline in outlines:
         for notch in outline.notches:
             assert notch.point[1] == pytest.approx(expected[notch.level], abs=1e-9)
@@ -188,7 +209,8 @@ def test_it_checks_that_widths_follow_the_levels_after_a_band_change():
     back = {o.name: o for o in alter_block(block, alteration)}["Back"]
     assert back.level_y["waist"] == pytest.approx(base["Back"].level_y["waist"] + 15.0)
     assert width_at(back, back.level_y["waist"]) == pytest.approx(
-        width_at(base["Back"], base["Back"].level_y["waist"]) + 10.0, abs=0.01)
+        width_at(base["Back"], base["Back"].level_y["waist"]) + 10.0, abs=0.01
+    )
 
 
 # --- seam allowance -------------------------------------------------------------------
@@ -196,12 +218,14 @@ def test_it_checks_that_widths_follow_the_levels_after_a_band_change():
 
 def _unbound(block):
     """The block with every edge taking a seam allowance (the demo corset is bound at top and bottom)."""
-    return dataclasses.replace(block, panels=tuple(
-        dataclasses.replace(p, top_bound=False, bottom_bound=False) for p in block.panels))
+    return dataclasses.replace(
+        block, panels=tuple(dataclasses.replace(p, top_bound=False, bottom_bound=False) for p in block.panels)
+    )
 
 
-@pytest.mark.parametrize("block", [_unbound(corset_block("10")), _unbound(corset_block("6")), bodice_block()],
-                         ids=["c10", "c6", "bodice"])
+@pytest.mark.parametrize(
+    "block", [_unbound(corset_block("10")), _unbound(corset_block("6")), bodice_block()], ids=["c10", "c6", "bodice"]
+)
 @pytest.mark.parametrize("allowance", [None, 10.0])  # block's 15 mm (corsetry, common practice); 1 cm industry
 def test_it_checks_that_cutting_line_is_the_allowance_away_from_the_stitch_line(block, allowance):
     alteration = _at_waist(block, -8.0)
@@ -291,10 +315,12 @@ def test_it_checks_that_the_same_shift_at_every_level_on_both_edges_keeps_every_
 )
 def test_it_checks_that_mirrored_raw_edges_shifted_alike_keep_their_difference(bend, shifts):
     block = mirrored_pair_block(bend)
-    alteration = Alteration(shifts={
-        "Front": {lv: PanelShift(right=s) for lv, s in shifts.items()},
-        "Back": {lv: PanelShift(left=s) for lv, s in shifts.items()},
-    })
+    alteration = Alteration(
+        shifts={
+            "Front": {lv: PanelShift(right=s) for lv, s in shifts.items()},
+            "Back": {lv: PanelShift(left=s) for lv, s in shifts.items()},
+        }
+    )
     pattern = alter_pattern(block, alteration)
     (t,) = pattern.seams
     assert t.base_difference_mm == pytest.approx(0.0, abs=0.01)
@@ -306,8 +332,9 @@ def test_it_checks_that_an_uneven_shift_is_flagged_with_the_edge_end_and_amount(
     block = corset_block("10")
     # Let out the side front's right edge at the bust and take it in at the underbust:
     # that edge alone bends into an S near the top.
-    alteration = Alteration(shifts={"Side front": {"bust": PanelShift(right=15.0),
-                                                   "underbust": PanelShift(right=-15.0)}})
+    alteration = Alteration(
+        shifts={"Side front": {"bust": PanelShift(right=15.0), "underbust": PanelShift(right=-15.0)}}
+    )
     pattern = alter_pattern(block, alteration)
     side = next(t for t in pattern.seams if t.seam == "Side seam")
     assert side.back_after_mm == pytest.approx(side.back_base_mm, abs=1e-9)
@@ -416,11 +443,14 @@ def test_it_checks_that_a_centre_front_moved_evenly_stays_on_the_fold():
     assert pattern.findings == ()
 
 
-@pytest.mark.parametrize("bad", [
-    Alteration(shifts={"Sleeve": {}}),
-    Alteration(shifts={"Front": {"knee": PanelShift(1, 1)}}),
-    Alteration(shifts={}, bands={("hip", "waist"): 5.0}),
-])
+@pytest.mark.parametrize(
+    "bad",
+    [
+        Alteration(shifts={"Sleeve": {}}),
+        Alteration(shifts={"Front": {"knee": PanelShift(1, 1)}}),
+        Alteration(shifts={}, bands={("hip", "waist"): 5.0}),
+    ],
+)
 def test_it_checks_that_names_the_block_does_not_have_are_refused(bad):
     with pytest.raises(ValueError):
         alter_block(corset_block("10"), bad)
@@ -431,9 +461,13 @@ def test_it_checks_that_names_the_block_does_not_have_are_refused(bad):
 def test_it_checks_that_wild_shifts_never_fail_and_every_crossed_outline_is_reported(data):
     block = corset_block("8")
     wild = st.floats(-60.0, 60.0, allow_nan=False)
-    shifts = {p.name: {lv: PanelShift(data.draw(wild), data.draw(wild))
-                       for lv in data.draw(st.lists(st.sampled_from(block.level_names), unique=True))}
-              for p in block.panels}
+    shifts = {
+        p.name: {
+            lv: PanelShift(data.draw(wild), data.draw(wild))
+            for lv in data.draw(st.lists(st.sampled_from(block.level_names), unique=True))
+        }
+        for p in block.panels
+    }
     pattern = alter_pattern(block, Alteration(shifts=shifts))
     crossed = {o.name for o in pattern.altered if not Polygon(o.stitch).is_valid}
     reported = {f.panel for f in pattern.findings if f.code == "outline_self_intersects"}

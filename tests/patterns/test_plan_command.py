@@ -16,8 +16,9 @@ EXAMPLES = sorted((ROOT / "patterns" / "examples").glob("*.json"))
 
 
 def run(*args, stdin=None):
-    return subprocess.run([sys.executable, "manage.py", "plan", *args], cwd=ROOT, capture_output=True, text=True,
-                          input=stdin, timeout=120)
+    return subprocess.run(
+        [sys.executable, "manage.py", "plan", *args], cwd=ROOT, capture_output=True, text=True, input=stdin, timeout=120
+    )
 
 
 def test_it_prints_json_valid_against_the_result_schema():
@@ -45,11 +46,14 @@ def negative_bust():
     return json.dumps(data)
 
 
-@pytest.mark.parametrize("text, field", [
-    ("{", "(file)"),
-    (negative_bust(), "measurements/bust_girth"),
-    ('{"format": "atelier-fitting", "version": 1, "measurements": {"bust_girth": 900}, "pattern": {}}', "pattern"),
-])
+@pytest.mark.parametrize(
+    "text, field",
+    [
+        ("{", "(file)"),
+        (negative_bust(), "measurements/bust_girth"),
+        ('{"format": "atelier-fitting", "version": 1, "measurements": {"bust_girth": 900}, "pattern": {}}', "pattern"),
+    ],
+)
 def test_it_names_the_field_of_a_bad_file_and_fails(text, field):
     done = run("-", stdin=text)
     assert done.returncode != 0
@@ -67,7 +71,9 @@ def test_it_answers_an_integer_of_thousands_of_digits_in_one_line():
     done = run("-", stdin=text)
     assert done.returncode != 0
     assert "Traceback" not in done.stderr
-    assert done.stderr.strip().splitlines() == ["CommandError: -: (file): A number of 4,400 digits is not a length in millimetres."]
+    assert done.stderr.strip().splitlines() == [
+        "CommandError: -: (file): A number of 4,400 digits is not a length in millimetres."
+    ]
 
 
 def test_it_does_not_print_a_huge_value_back():

@@ -12,7 +12,12 @@ from patterns.core.block import Alteration, PanelShift
 from patterns.core.measures import LEVEL_LABELS
 from patterns.core.outline import alter_pattern
 from patterns.core.preview import (
-    MINUS, OKABE_ITO, build_figure, markers_from_findings, preview_svg, shift_formatter,
+    MINUS,
+    OKABE_ITO,
+    build_figure,
+    markers_from_findings,
+    preview_svg,
+    shift_formatter,
 )
 from patterns.demo import bodice_block, corset_block
 
@@ -54,6 +59,7 @@ def test_it_renders_in_threads_give_the_same_svg():
     block = corset_block("10")
     expected = preview_svg(block, _alteration(block))
     results = []
+
     def render():
         results.append(preview_svg(block, _alteration(block)))
 
@@ -79,8 +85,9 @@ def test_it_checks_that_svg_names_every_level_and_writes_shifts_in_the_plan_unit
 def test_it_checks_that_the_printed_picture_leaves_the_amounts_to_the_tables():
     block = corset_block("10")
     with_amounts = _texts(preview_svg(block, _alteration(block), unit="cm"))
-    without = _texts(preview_svg(block, _alteration(block), unit="cm", amounts=False,
-                                 markers=[("Front", "waist", "seam not true")]))
+    without = _texts(
+        preview_svg(block, _alteration(block), unit="cm", amounts=False, markers=[("Front", "waist", "seam not true")])
+    )
     assert f"{MINUS}0.4" in with_amounts
     assert not [t for t in without if t[:1] in ("+", MINUS) or t.startswith("moved")]
     assert set(LEVEL_LABELS[lv] for lv in block.level_names) <= set(without)

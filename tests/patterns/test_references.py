@@ -3,7 +3,6 @@
 from fractions import Fraction
 
 from patterns.core.allot import Body, PlanOptions, allot
-
 from patterns.core.sizing import suggest_size
 from patterns.core.units import MM_PER_INCH
 from patterns.demo import CORSET_SIZES, LACING_GAP_MM, corset_run
@@ -41,10 +40,15 @@ def test_it_suggests_the_size_a_standard_body_was_drafted_for():
     # practice), the size drafted from that row needs no alteration at all.
     run = corset_run()
     for size, (bust, underbust, waist) in ASTM_D5585.items():
-        body = Body(girths={
-            "bust": inches(bust), "underbust": inches(underbust), "waist": inches(waist),
-            "abdomen": CORSET_SIZES[size]["abdomen"], "hip": CORSET_SIZES[size]["hip"],
-        })
+        body = Body(
+            girths={
+                "bust": inches(bust),
+                "underbust": inches(underbust),
+                "waist": inches(waist),
+                "abdomen": CORSET_SIZES[size]["abdomen"],
+                "hip": CORSET_SIZES[size]["hip"],
+            }
+        )
         choices = suggest_size(run, body, PlanOptions(lacing_gap_mm=LACING_GAP_MM))
         assert choices[0].block.size == size
         assert choices[0].largest_edge_mm <= 1.0
@@ -53,8 +57,6 @@ def test_it_suggests_the_size_a_standard_body_was_drafted_for():
 
 def test_it_moves_to_the_next_size_between_two_rows():
     # Half-way between sizes 10 and 12 of ASTM D5585-11 the ranking keeps both at the top.
-    body = Body(girths={
-        lv: (CORSET_SIZES["10"][lv] + CORSET_SIZES["12"][lv]) / 2 for lv in CORSET_SIZES["10"]
-    })
+    body = Body(girths={lv: (CORSET_SIZES["10"][lv] + CORSET_SIZES["12"][lv]) / 2 for lv in CORSET_SIZES["10"]})
     top_two = {c.block.size for c in suggest_size(corset_run(), body, PlanOptions())[:2]}
     assert top_two == {"10", "12"}

@@ -8,11 +8,11 @@ policy or unit in the core fails here until the schema says it too.
 
 import pytest
 
-from patterns.core.policies import POLICIES
 from patterns.core.block import BACK, CB_LACED, CB_SEAMED, CF_BUSK, CF_FOLD, FRONT, LEFT, RIGHT, SEAM_KINDS
 from patterns.core.findings import CAUTION, ERROR, WARNING
 from patterns.core.fitting import schema
 from patterns.core.measures import LEVEL_CODES, MEASURES
+from patterns.core.policies import POLICIES
 from patterns.core.units import UNITS
 
 LEVELS = list(LEVEL_CODES)

@@ -7,8 +7,19 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from patterns.core.tiling import (
-    LANDSCAPE, OVERLAP_MM, PAGE_MARGIN_MM, PAPER_SIZES, PORTRAIT, TilingError, grid_for, page_size, paper_size,
-    row_label, tile_grid, tile_label, tiles_needed,
+    LANDSCAPE,
+    OVERLAP_MM,
+    PAGE_MARGIN_MM,
+    PAPER_SIZES,
+    PORTRAIT,
+    TilingError,
+    grid_for,
+    page_size,
+    paper_size,
+    row_label,
+    tile_grid,
+    tile_label,
+    tiles_needed,
 )
 
 MM_PER_INCH = 25.4  # exact: 1959 international yard and pound agreement
@@ -36,16 +47,19 @@ def test_it_refuses_unknown_papers_and_orientations():
         page_size(paper_size("a4"), "sideways")
 
 
-@pytest.mark.parametrize(("extent", "printable", "overlap", "expected"), [
-    (100, 190, 10, 1),
-    (190, 190, 10, 1),  # exactly one page
-    (190.001, 190, 10, 2),
-    (370, 190, 10, 2),  # 190 + 180: two pages, the second exactly full
-    (370.5, 190, 10, 3),
-    (700, 190, 10, 4),  # 190 + 3 x 180 = 730 >= 700 > 550
-    (10, 190, 0, 1),
-    (1000, 100, 0, 10),
-])
+@pytest.mark.parametrize(
+    ("extent", "printable", "overlap", "expected"),
+    [
+        (100, 190, 10, 1),
+        (190, 190, 10, 1),  # exactly one page
+        (190.001, 190, 10, 2),
+        (370, 190, 10, 2),  # 190 + 180: two pages, the second exactly full
+        (370.5, 190, 10, 3),
+        (700, 190, 10, 4),  # 190 + 3 x 180 = 730 >= 700 > 550
+        (10, 190, 0, 1),
+        (1000, 100, 0, 10),
+    ],
+)
 def test_it_counts_the_tiles_a_length_needs(extent, printable, overlap, expected):
     assert tiles_needed(extent, printable, overlap) == expected
 
@@ -55,9 +69,20 @@ def test_it_refuses_an_overlap_as_large_as_the_page():
         tiles_needed(500, 10, 10)
 
 
-@pytest.mark.parametrize(("row", "label"), [
-    (0, "A"), (1, "B"), (25, "Z"), (26, "AA"), (27, "AB"), (51, "AZ"), (52, "BA"), (701, "ZZ"), (702, "AAA"),
-])
+@pytest.mark.parametrize(
+    ("row", "label"),
+    [
+        (0, "A"),
+        (1, "B"),
+        (25, "Z"),
+        (26, "AA"),
+        (27, "AB"),
+        (51, "AZ"),
+        (52, "BA"),
+        (701, "ZZ"),
+        (702, "AAA"),
+    ],
+)
 def test_it_letters_rows_like_a_spreadsheet(row, label):
     assert row_label(row) == label
 
@@ -110,7 +135,8 @@ def test_it_refuses_a_sheet_without_size(width, height):
 
 @settings(max_examples=200, deadline=None)
 @given(
-    width=st.floats(1, 3000, allow_nan=False), height=st.floats(1, 3000, allow_nan=False),
+    width=st.floats(1, 3000, allow_nan=False),
+    height=st.floats(1, 3000, allow_nan=False),
     paper=st.sampled_from(sorted(PAPER_SIZES)),
 )
 def test_it_covers_the_whole_sheet_with_the_fewest_tiles(width, height, paper):

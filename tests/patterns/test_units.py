@@ -13,25 +13,44 @@ def test_it_uses_the_exact_inch():
     assert parse_length("100", "in") == Decimal("2540")
 
 
-@pytest.mark.parametrize("text, mm", [
-    ("27 3/8", "695.3250"), ("27-3/8", "695.3250"), ("3/4", "19.0500"), ("27.375", "695.3250"),
-    ("1/16", "1.5875"), ('30"', "762.0000"), ("30 in", "762.0000"),
-])
+@pytest.mark.parametrize(
+    "text, mm",
+    [
+        ("27 3/8", "695.3250"),
+        ("27-3/8", "695.3250"),
+        ("3/4", "19.0500"),
+        ("27.375", "695.3250"),
+        ("1/16", "1.5875"),
+        ('30"', "762.0000"),
+        ("30 in", "762.0000"),
+    ],
+)
 def test_it_reads_inches_as_written_on_a_tape(text, mm):
     assert parse_length(text, "in") == Decimal(mm)
 
 
-@pytest.mark.parametrize("text, mm", [("68.5", "685.0000"), ("68,5", "685.0000"), ("70 cm", "700.0000"), ("0.1", "1.0000")])
+@pytest.mark.parametrize(
+    "text, mm", [("68.5", "685.0000"), ("68,5", "685.0000"), ("70 cm", "700.0000"), ("0.1", "1.0000")]
+)
 def test_it_reads_centimetres(text, mm):
     assert parse_length(text, "cm") == Decimal(mm)
 
 
-@pytest.mark.parametrize("text, unit, words", [
-    ("", "cm", "Enter"), ("abc", "cm", "not a length"), ("-5", "cm", "not a length"),
-    ("27 3/8", "cm", "Fractions are for inches"), ("nan", "in", "not a length"), ("inf", "cm", "not a length"),
-    ("1/0", "in", "0 below the line"), ("27 9/8", "in", "less than 1"), ("9" * 40, "cm", "too long"),
-    ("12", "yd", "Unknown unit"),
-])
+@pytest.mark.parametrize(
+    "text, unit, words",
+    [
+        ("", "cm", "Enter"),
+        ("abc", "cm", "not a length"),
+        ("-5", "cm", "not a length"),
+        ("27 3/8", "cm", "Fractions are for inches"),
+        ("nan", "in", "not a length"),
+        ("inf", "cm", "not a length"),
+        ("1/0", "in", "0 below the line"),
+        ("27 9/8", "in", "less than 1"),
+        ("9" * 40, "cm", "too long"),
+        ("12", "yd", "Unknown unit"),
+    ],
+)
 def test_it_refuses_what_is_not_a_tape_reading(text, unit, words):
     with pytest.raises(LengthError, match=words):
         parse_length(text, unit)
@@ -53,6 +72,7 @@ def test_it_round_trips_every_sixteenth(sixteenths):
     """mm -> inches -> mm returns the same tape mark (the inch side of a tape is marked in 1/16)."""
     whole, rest = divmod(sixteenths, 16)
     from fractions import Fraction
+
     frac = Fraction(rest, 16)
     text = f"{whole} {frac.numerator}/{frac.denominator}" if rest else str(whole)
     mm = parse_length(text, "in")
@@ -60,14 +80,24 @@ def test_it_round_trips_every_sixteenth(sixteenths):
     assert parse_length(format_inches(mm), "in") == mm
 
 
-@pytest.mark.parametrize("text, unit, mm", [("-5", "cm", "-50.0000"), ("+1/2", "in", "12.7000"), ("\u22120.5", "cm", "-5.0000"), ("- 1 1/4", "in", "-31.7500")])
+@pytest.mark.parametrize(
+    "text, unit, mm",
+    [
+        ("-5", "cm", "-50.0000"),
+        ("+1/2", "in", "12.7000"),
+        ("\u22120.5", "cm", "-5.0000"),
+        ("- 1 1/4", "in", "-31.7500"),
+    ],
+)
 def test_it_reads_signed_lengths(text, unit, mm):
     from patterns.core.units import parse_signed_length
+
     assert parse_signed_length(text, unit) == Decimal(mm)
 
 
 def test_it_refuses_a_double_sign():
     from patterns.core.units import parse_signed_length
+
     with pytest.raises(LengthError):
         parse_signed_length("--5", "cm")
 
@@ -83,10 +113,19 @@ def test_it_writes_any_stored_length_back_so_it_reads_as_the_same_millimetres(te
     assert parse_signed_length(format_exact(mm, unit, signed=signed), unit) == mm
 
 
-@pytest.mark.parametrize("mm, unit, text", [
-    (-7.5, "cm", "-0.75"), (682.5, "cm", "68.25"), (-60, "cm", "-6"), (0, "cm", "0"),
-    (695.325, "in", "27 3/8"), (7.62, "in", "0.3"), (-1.5875, "in", "-1/16"), (15.875, "in", "5/8"),  # 1 in = 25.4 mm
-])
+@pytest.mark.parametrize(
+    "mm, unit, text",
+    [
+        (-7.5, "cm", "-0.75"),
+        (682.5, "cm", "68.25"),
+        (-60, "cm", "-6"),
+        (0, "cm", "0"),
+        (695.325, "in", "27 3/8"),
+        (7.62, "in", "0.3"),
+        (-1.5875, "in", "-1/16"),
+        (15.875, "in", "5/8"),  # 1 in = 25.4 mm
+    ],
+)
 def test_it_writes_what_the_fitter_typed(mm, unit, text):
     from patterns.core.units import format_exact
 

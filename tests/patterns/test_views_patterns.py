@@ -19,8 +19,14 @@ pytestmark = pytest.mark.django_db
 def _new_block():
     """An invented four-panel underbust corset, different from the demo's."""
     base = demo.bodice_block()
-    return dataclasses.replace(base, name="Wrenfield underbust, four panels", size="38", garment="underbust corset",
-                               centre_front="busk", centre_back="laced")
+    return dataclasses.replace(
+        base,
+        name="Wrenfield underbust, four panels",
+        size="38",
+        garment="underbust corset",
+        centre_front="busk",
+        centre_back="laced",
+    )
 
 
 def _counts():
@@ -52,7 +58,8 @@ def test_it_saves_a_block_typed_by_widths(fitter_client, db):
     saved = BasePattern.objects.get(name=block.name)
     stored = block_for(saved)
     assert [p.width(lv) for p in stored.panels for lv in stored.level_names] == pytest.approx(
-        [p.width(lv) for p in block.panels for lv in block.level_names], abs=1e-4)
+        [p.width(lv) for p in block.panels for lv in block.level_names], abs=1e-4
+    )
     assert stored.level_names == block.level_names and stored.seams[0].alterable_at == block.seams[0].alterable_at
     assert saved.version == 1 and saved.previous is None
 
@@ -93,15 +100,18 @@ def test_it_puts_impossible_values_into_words_on_the_drawing(fitter_client, db):
     assert "<img" not in text
 
 
-@pytest.mark.parametrize("changes, words", [
-    ({"p2_waist_w": "-1.5"}, "Side front is -1.5 cm wide at the waist"),
-    ({"p3_top_l": "60"}, "The top and bottom edges of Side back cross"),
-    ({"level_waist": "90"}, "crosses none of the panels"),
-    ({"p1_waist_w": "abc"}, "not a length in centimetres"),
-    ({"name": ""}, "This field is required"),
-    ({"s1_moves": ["hip"]}, "Select a valid choice"),
-    ({"p2_grain": "80"}, "lies outside the panel"),
-])
+@pytest.mark.parametrize(
+    "changes, words",
+    [
+        ({"p2_waist_w": "-1.5"}, "Side front is -1.5 cm wide at the waist"),
+        ({"p3_top_l": "60"}, "The top and bottom edges of Side back cross"),
+        ({"level_waist": "90"}, "crosses none of the panels"),
+        ({"p1_waist_w": "abc"}, "not a length in centimetres"),
+        ({"name": ""}, "This field is required"),
+        ({"s1_moves": ["hip"]}, "Select a valid choice"),
+        ({"p2_grain": "80"}, "lies outside the panel"),
+    ],
+)
 def test_it_refuses_bad_values_with_words_and_saves_nothing(fitter_client, db, changes, words):
     response = fitter_client.post(reverse("patterns:block_new"), block_post(_new_block(), **changes))
     assert response.status_code == 400
@@ -136,8 +146,9 @@ def test_it_lets_the_workroom_read_but_not_edit(demo_atelier, workroom_client):
 
 
 def _plan_on(pattern, client_ref="WF-0101"):
-    from fittings.models import Client
     from django.contrib.auth import get_user_model
+
+    from fittings.models import Client
 
     client = Client.objects.get(reference=client_ref)
     session = client.sessions.first()
@@ -160,8 +171,9 @@ def test_it_keeps_old_plans_on_the_old_version_when_a_used_block_is_edited(demo_
     plan = _plan_on(pattern)
     first_inputs = plan.revisions.get(number=1).inputs["pattern"]
     wider = f"{(before.panels[2].width('waist') + 6) / 10:.2f}"
-    response = fitter_client.post(reverse("patterns:block_edit", args=[pattern.pk]),
-                                  block_post(before, p3_waist_w=wider))
+    response = fitter_client.post(
+        reverse("patterns:block_edit", args=[pattern.pk]), block_post(before, p3_waist_w=wider)
+    )
     assert response.status_code == 302
     new = BasePattern.objects.get(previous=pattern)
     pattern.refresh_from_db()
@@ -171,8 +183,12 @@ def test_it_keeps_old_plans_on_the_old_version_when_a_used_block_is_edited(demo_
     # The plan stays on version 1: its next revision is worked out on the old shapes.
     plan.refresh_from_db()
     assert plan.base_pattern_id == pattern.pk
-    revision = plan_services.save_revision(plan=plan, options=plan_services.revision_inputs(plan.revisions.get(number=1))[2],
-                                           user=None, expected_version=plan.version)
+    revision = plan_services.save_revision(
+        plan=plan,
+        options=plan_services.revision_inputs(plan.revisions.get(number=1))[2],
+        user=None,
+        expected_version=plan.version,
+    )
     assert type(revision).objects.get(pk=revision.pk).inputs["pattern"] == first_inputs
     assert block_for(pattern) == before
     # New plans are offered the new version only.
@@ -193,8 +209,9 @@ def test_it_refuses_a_bad_edit_and_leaves_the_block_and_its_plans_alone(demo_ate
     pattern = BasePattern.objects.get(name__startswith="Overbust", size_label="10")
     before = block_for(pattern)
     count = BasePattern.objects.count()
-    response = fitter_client.post(reverse("patterns:block_edit", args=[pattern.pk]),
-                                  block_post(before, p3_waist_w="-2"))
+    response = fitter_client.post(
+        reverse("patterns:block_edit", args=[pattern.pk]), block_post(before, p3_waist_w="-2")
+    )
     assert response.status_code == 400
     assert BasePattern.objects.count() == count and block_for(pattern) == before
 
@@ -205,8 +222,12 @@ def test_it_refuses_a_bad_edit_and_leaves_the_block_and_its_plans_alone(demo_ate
 def test_it_grades_a_size_run_and_the_size_suggestion_uses_it(demo_atelier, fitter_client):
     pattern = save_block(_new_block())
     url = reverse("patterns:pattern_grade", args=[pattern.pk])
-    data = {"run_name": "Underbust run", "sizes": "34, 36, 38, 40, 42", "unit": "cm",
-            **{f"girth_{lv}": "4" for lv in ("bust", "underbust", "waist", "abdomen")}}
+    data = {
+        "run_name": "Underbust run",
+        "sizes": "34, 36, 38, 40, 42",
+        "unit": "cm",
+        **{f"girth_{lv}": "4" for lv in ("bust", "underbust", "waist", "abdomen")},
+    }
     runs = SizeRun.objects.count()
     shown = fitter_client.post(url, data)
     assert shown.status_code == 200 and SizeRun.objects.count() == runs
@@ -223,22 +244,32 @@ def test_it_grades_a_size_run_and_the_size_suggestion_uses_it(demo_atelier, fitt
     # The size suggestion ranks the run's sizes: a client 4 cm bigger than size 38 everywhere is closest to 40.
     from patterns.core.allot import Body, PlanOptions
     from patterns.core.sizing import suggest_size
+
     body = Body(girths={lv: members["40"].girth(lv) for lv in members["40"].level_names})
     best = suggest_size(list(members.values()), body, PlanOptions(ease={}, lacing_gap_mm=0.0))[0]
     assert best.block.size == "40"
 
 
-@pytest.mark.parametrize("changes, words", [
-    ({"sizes": "36, 40"}, "must be one of the sizes"),
-    ({"sizes": "38"}, "at least two sizes"),
-    ({"sizes": "36, 38, 36"}, "appears twice"),
-    ({"girth_waist": "lots"}, "not a length"),
-    ({"girth_waist": "-400"}, "girth must be a positive length"),
-])
+@pytest.mark.parametrize(
+    "changes, words",
+    [
+        ({"sizes": "36, 40"}, "must be one of the sizes"),
+        ({"sizes": "38"}, "at least two sizes"),
+        ({"sizes": "36, 38, 36"}, "appears twice"),
+        ({"girth_waist": "lots"}, "not a length"),
+        ({"girth_waist": "-400"}, "girth must be a positive length"),
+    ],
+)
 def test_it_refuses_a_bad_grading_and_saves_nothing(fitter_client, db, changes, words):
     pattern = save_block(_new_block())
-    data = {"run_name": "R", "sizes": "36, 38, 40", "unit": "cm",
-            **{f"girth_{lv}": "4" for lv in ("bust", "underbust", "waist", "abdomen")}, "save": "1", **changes}
+    data = {
+        "run_name": "R",
+        "sizes": "36, 38, 40",
+        "unit": "cm",
+        **{f"girth_{lv}": "4" for lv in ("bust", "underbust", "waist", "abdomen")},
+        "save": "1",
+        **changes,
+    }
     response = fitter_client.post(reverse("patterns:pattern_grade", args=[pattern.pk]), data)
     assert response.status_code == 400 and words in response.content.decode()
     assert _counts() == (1, 0)
@@ -274,17 +305,46 @@ def _card_block():
     from patterns.core.drafting import BlockDraft, PanelDraft, SeamDraft, build_block
 
     panels = (
-        PanelDraft("Front", FRONT, {"waist": 120.0, "hip": 150.0}, top=(0.0, 10.0), bottom=(260.0, 255.0),
-                   top_bound=True, bottom_bound=True),
-        PanelDraft("Side", FRONT, {"waist": 100.0, "hip": 130.0}, top=(10.0, 25.0), bottom=(255.0, 255.0),
-                   top_bound=True, bottom_bound=True),
-        PanelDraft("Back", "back", {"waist": 110.0, "hip": 135.0}, top=(25.0, 15.0), bottom=(255.0, 265.0),
-                   top_bound=True, bottom_bound=True),
+        PanelDraft(
+            "Front",
+            FRONT,
+            {"waist": 120.0, "hip": 150.0},
+            top=(0.0, 10.0),
+            bottom=(260.0, 255.0),
+            top_bound=True,
+            bottom_bound=True,
+        ),
+        PanelDraft(
+            "Side",
+            FRONT,
+            {"waist": 100.0, "hip": 130.0},
+            top=(10.0, 25.0),
+            bottom=(255.0, 255.0),
+            top_bound=True,
+            bottom_bound=True,
+        ),
+        PanelDraft(
+            "Back",
+            "back",
+            {"waist": 110.0, "hip": 135.0},
+            top=(25.0, 15.0),
+            bottom=(255.0, 265.0),
+            top_bound=True,
+            bottom_bound=True,
+        ),
     )
-    seams = (SeamDraft("Front seam", "princess", frozenset({"waist", "hip"})),
-             SeamDraft("Side seam", "side", frozenset({"waist", "hip"})))
-    draft = BlockDraft(name="Card waist cincher", size="12", garment="underbust corset",
-                       levels=(Level("waist", 90.0), Level("hip", 230.0)), panels=panels, seams=seams)
+    seams = (
+        SeamDraft("Front seam", "princess", frozenset({"waist", "hip"})),
+        SeamDraft("Side seam", "side", frozenset({"waist", "hip"})),
+    )
+    draft = BlockDraft(
+        name="Card waist cincher",
+        size="12",
+        garment="underbust corset",
+        levels=(Level("waist", 90.0), Level("hip", 230.0)),
+        panels=panels,
+        seams=seams,
+    )
     return build_block(draft).block
 
 
@@ -292,9 +352,18 @@ def test_it_reads_a_card_pattern_step_by_step_into_the_same_block_as_the_form(fi
     block = _card_block()
     url = reverse("patterns:block_measure")
     assert "Levels marked on the card" in fitter_client.get(url).content.decode()
-    setup = {"unit": "cm", "name": block.name, "size_label": block.size, "garment": block.garment,
-             "centre_front": "busk", "centre_back": "laced", "levels": ["waist", "hip"],
-             "panel_names": "Front\nSide\nBack (back)", "bound": "on", "seam_allowance": "1.5"}
+    setup = {
+        "unit": "cm",
+        "name": block.name,
+        "size_label": block.size,
+        "garment": block.garment,
+        "centre_front": "busk",
+        "centre_back": "laced",
+        "levels": ["waist", "hip"],
+        "panel_names": "Front\nSide\nBack (back)",
+        "bound": "on",
+        "seam_allowance": "1.5",
+    }
     answers = _tape_answers(block)
     data = {**setup, "step": "0"}
     titles = []
@@ -310,7 +379,9 @@ def test_it_reads_a_card_pattern_step_by_step_into_the_same_block_as_the_form(fi
         data = {**data, **{k: answers[k] for k in shown}, "step": str(step)}
     assert titles == ["The top edge", "At the waist", "At the hip", "The bottom edge", "The seams", "Check and save"]
     assert BasePattern.objects.count() == 0
-    saved = fitter_client.post(url, {**data, "step": str(int(text.split('name="step" value="')[1].split('"')[0])), "save": "1"})
+    saved = fitter_client.post(
+        url, {**data, "step": str(int(text.split('name="step" value="')[1].split('"')[0])), "save": "1"}
+    )
     assert saved.status_code == 302
     stored = block_for(BasePattern.objects.get(name=block.name))
     # The same block the form makes from the same panels (widths laid out alike), to 1/100 mm as typed.
@@ -327,9 +398,21 @@ def test_it_reads_a_card_pattern_step_by_step_into_the_same_block_as_the_form(fi
 
 def test_it_asks_a_tape_step_again_when_a_reading_is_wrong(fitter_client, db):
     url = reverse("patterns:block_measure")
-    data = {"unit": "cm", "name": "Card", "size_label": "12", "garment": "underbust corset", "centre_front": "busk",
-            "centre_back": "laced", "levels": ["waist", "hip"], "panel_names": "Front\nBack (back)",
-            "seam_allowance": "1.5", "step": "1", "down0_0": "2", "down1_0": "lots", "down2_0": "3"}
+    data = {
+        "unit": "cm",
+        "name": "Card",
+        "size_label": "12",
+        "garment": "underbust corset",
+        "centre_front": "busk",
+        "centre_back": "laced",
+        "levels": ["waist", "hip"],
+        "panel_names": "Front\nBack (back)",
+        "seam_allowance": "1.5",
+        "step": "1",
+        "down0_0": "2",
+        "down1_0": "lots",
+        "down2_0": "3",
+    }
     page = fitter_client.post(url, data)
     text = page.content.decode()
     assert page.status_code == 400 and "<strong>The top edge</strong>" in text and "not a length" in text
@@ -346,9 +429,13 @@ def test_it_imports_a_fitting_file_made_on_an_older_version_against_that_version
     plan = _plan_on(pattern)
     text = json.dumps(plan.revisions.get(number=1).inputs)
     before = block_for(pattern)
-    wider = dataclasses.replace(before, panels=tuple(
-        dataclasses.replace(p, right={**p.right, "waist": p.right["waist"] + 5}) if i == 2 else p
-        for i, p in enumerate(before.panels)))
+    wider = dataclasses.replace(
+        before,
+        panels=tuple(
+            dataclasses.replace(p, right={**p.right, "waist": p.right["waist"] + 5}) if i == 2 else p
+            for i, p in enumerate(before.panels)
+        ),
+    )
     new = edit_block(pattern, wider)
     assert new.pk != pattern.pk
     imported = plan_services.import_fitting(client=Client.objects.get(reference="WF-0103"), text=text, user=fitter_user)
@@ -371,11 +458,17 @@ def test_it_offers_the_graded_sizes_to_the_size_suggestion_of_a_plan(demo_atelie
     from patterns.selectors import active_patterns
 
     pattern = save_block(_new_block())
-    data = {"run_name": "Underbust run", "sizes": "34, 36, 38, 40, 42", "unit": "cm", "save": "1",
-            **{f"girth_{lv}": "4" for lv in ("bust", "underbust", "waist", "abdomen")}}
+    data = {
+        "run_name": "Underbust run",
+        "sizes": "34, 36, 38, 40, 42",
+        "unit": "cm",
+        "save": "1",
+        **{f"girth_{lv}": "4" for lv in ("bust", "underbust", "waist", "abdomen")},
+    }
     assert fitter_client.post(reverse("patterns:pattern_grade", args=[pattern.pk]), data).status_code == 302
     session = Client.objects.get(reference="WF-0103").sessions.first()
     from fittings.selectors import suggestions_for_session
+
     suggestions = suggestions_for_session(session, active_patterns())
     graded = [s for s in suggestions if s.label.startswith(pattern.name)]
     assert len(graded) == 5

@@ -23,9 +23,14 @@ def _line(x_top: float, x_bottom: float) -> dict[str, float]:
 
 def _panel(name, side, left_top, left_bottom, right_top, right_bottom) -> Panel:
     return Panel(
-        name=name, side=side, left=_line(left_top, left_bottom), right=_line(right_top, right_bottom),
-        top_left=Point(left_top, 0.0), top_right=Point(right_top, 0.0),
-        bottom_left=Point(left_bottom, HEIGHT), bottom_right=Point(right_bottom, HEIGHT),
+        name=name,
+        side=side,
+        left=_line(left_top, left_bottom),
+        right=_line(right_top, right_bottom),
+        top_left=Point(left_top, 0.0),
+        top_right=Point(right_top, 0.0),
+        bottom_left=Point(left_bottom, HEIGHT),
+        bottom_right=Point(right_bottom, HEIGHT),
     )
 
 
@@ -39,8 +44,17 @@ def hand_block(channels=(), centre_front=CF_BUSK, centre_back=CB_LACED) -> Block
         Seam("Front seam", "princess", "Centre front", "Side", frozenset(NAMES)),
         Seam("Side seam", "side", "Side", "Back", frozenset(NAMES)),
     )
-    return Block("Hand block", "T", "test corset", LEVELS, panels, seams, centre_front=centre_front,
-                 centre_back=centre_back, channels=tuple(channels))
+    return Block(
+        "Hand block",
+        "T",
+        "test corset",
+        LEVELS,
+        panels,
+        seams,
+        centre_front=centre_front,
+        centre_back=centre_back,
+        channels=tuple(channels),
+    )
 
 
 MARKS = (ChannelMark("Side", fraction=0.5), ChannelMark("Back", edge="right", offset_mm=15.0, name="Lacing bone"))

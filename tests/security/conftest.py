@@ -11,9 +11,8 @@ from django.core.files.base import ContentFile
 from django.utils import timezone
 from PIL import Image
 
-from fittings.models import Client, Photo, Plan, PlanRevision, PrintFile, PrintJob, PrintStatus
-from tests.fittings.conftest import corset_12, plan, reducing_client  # noqa: F401  (shared fixtures)
 from fittings import selectors
+from fittings.models import Client, Photo, Plan, PlanRevision, PrintFile, PrintJob, PrintStatus
 
 # The tables a bad request must leave exactly as they were.
 MAIN_APPS = ("fittings", "patterns")
@@ -82,8 +81,15 @@ def world(demo_atelier):
     kept = PrintFile(job=job, document="work-order")
     kept.file.save("w.pdf", ContentFile(b"%PDF-1.4 test\n%%EOF\n"), save=True)
     return World(
-        client=client, other_client=other, session=session, plan=plan, issued=issued,
-        draft=plan.revisions.get(number=2), other_plan=Plan.objects.get(client=other), photo=photo, job=job,
+        client=client,
+        other_client=other,
+        session=session,
+        plan=plan,
+        issued=issued,
+        draft=plan.revisions.get(number=2),
+        other_plan=Plan.objects.get(client=other),
+        photo=photo,
+        job=job,
     )
 
 

@@ -96,16 +96,22 @@ RULES = {
     "fittings:revision_issue": Rule(lambda w: {"pk": w.plan.pk, "number": 2}, {**POST_ONLY, "POST": editors(302)}),
     "fittings:revision_pins": Rule(REV1, EDIT_PAGE),
     # A proof is drawn at once and issues nothing: for those who may change the plan.
-    "fittings:revision_proof": Rule(lambda w: {"pk": w.plan.pk, "number": 2, "document": "work-order"},
-                                    {"GET": editors(200), "POST": all_roles(405)}),
+    "fittings:revision_proof": Rule(
+        lambda w: {"pk": w.plan.pk, "number": 2, "document": "work-order"},
+        {"GET": editors(200), "POST": all_roles(405)},
+    ),
     "fittings:revision_apply_pins": Rule(REV1, {**POST_ONLY, "POST": editors(302)}),
     # Photos of clients' bodies: fitters and the owner only.
     "fittings:photo_file": Rule(lambda w: {"pk": w.photo.pk}, {"GET": editors(200)}),
     "fittings:photo_replace": Rule(lambda w: {"pk": w.photo.pk}, {**POST_ONLY, "POST": editors(400)}),  # no file sent
     # The fitter deletes the photo; the owner, asking next for the same one, finds it gone.
-    "fittings:photo_delete": Rule(lambda w: {"pk": w.photo.pk}, {**POST_ONLY, "POST": {WORKROOM: 403, FITTER: 302, OWNER: 404}}),
+    "fittings:photo_delete": Rule(
+        lambda w: {"pk": w.photo.pk}, {**POST_ONLY, "POST": {WORKROOM: 403, FITTER: 302, OWNER: 404}}
+    ),
     # Printing: the workroom prints issued revisions.
-    "fittings:print_start": Rule(lambda w: {"plan_id": w.plan.pk, "number": 1}, {"GET": all_roles(200), "POST": all_roles(400)}),
+    "fittings:print_start": Rule(
+        lambda w: {"plan_id": w.plan.pk, "number": 1}, {"GET": all_roles(200), "POST": all_roles(400)}
+    ),
     "fittings:print_status": Rule(lambda w: {"job_id": w.job.pk}, READ),
     "fittings:print_download": Rule(lambda w: {"job_id": w.job.pk, "document": "work-order"}, READ),
     "fittings:print_large": Rule(lambda w: {"job_id": w.job.pk, "fmt": "roll-610"}, READ_ONLY),
@@ -193,8 +199,14 @@ def _with_missing_ids(kwargs):
 def names_with_ids():
     from django.urls.converters import IntConverter
 
-    return sorted({name for name, pattern in leaf_patterns() if name in RULES and any(
-        isinstance(c, IntConverter) for c in getattr(pattern.pattern, "converters", {}).values())})
+    return sorted(
+        {
+            name
+            for name, pattern in leaf_patterns()
+            if name in RULES
+            and any(isinstance(c, IntConverter) for c in getattr(pattern.pattern, "converters", {}).values())
+        }
+    )
 
 
 @pytest.mark.parametrize("name", names_with_ids())
@@ -216,8 +228,14 @@ def test_it_answers_404_for_ids_that_do_not_exist_and_still_refuses_the_wrong_ro
 
 def test_it_answers_404_for_a_revision_number_beyond_the_plans(world, actors):
     beyond = world.plan.revisions.count() + 1
-    for name in ("fittings:revision_detail", "fittings:revision_preview", "fittings:revision_fitting_file",
-                 "fittings:revision_checks", "fittings:revision_pieces_svg", "fittings:revision_pieces_dxf"):
+    for name in (
+        "fittings:revision_detail",
+        "fittings:revision_preview",
+        "fittings:revision_fitting_file",
+        "fittings:revision_checks",
+        "fittings:revision_pieces_svg",
+        "fittings:revision_pieces_dxf",
+    ):
         response = actors[WORKROOM].get(reverse(name, args=[world.plan.pk, beyond]))
         assert response.status_code == 404, name
     response = actors[FITTER].post(reverse("fittings:revision_issue", args=[world.plan.pk, beyond]))
@@ -226,7 +244,11 @@ def test_it_answers_404_for_a_revision_number_beyond_the_plans(world, actors):
 
 
 def test_it_keeps_the_workroom_from_every_write_and_changes_nothing(world, actors):
-    before = (Client.all_objects.filter(is_deleted=False).count(), PlanRevision.objects.count(), AuditEntry.objects.count())
+    before = (
+        Client.all_objects.filter(is_deleted=False).count(),
+        PlanRevision.objects.count(),
+        AuditEntry.objects.count(),
+    )
     for name, rule in RULES.items():
         if "POST" in rule.methods and name not in WORKROOM_WRITES:
             try:
@@ -234,8 +256,11 @@ def test_it_keeps_the_workroom_from_every_write_and_changes_nothing(world, actor
             except Exception:  # noqa: BLE001 - a URL not (yet) in the resolver
                 continue
             assert actors[WORKROOM].post(url, {"reference": "Z-1", "name": "Z"}).status_code in (403, 405), name
-    assert (Client.all_objects.filter(is_deleted=False).count(), PlanRevision.objects.count(),
-            AuditEntry.objects.count()) == before
+    assert (
+        Client.all_objects.filter(is_deleted=False).count(),
+        PlanRevision.objects.count(),
+        AuditEntry.objects.count(),
+    ) == before
 
 
 # --- the admin ------------------------------------------------------------------------------

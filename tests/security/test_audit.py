@@ -25,11 +25,19 @@ def newest():
 
 
 def test_it_records_a_new_client_with_who_and_what(fitter_client, fitter_user):
-    fitter_client.post(reverse("fittings:client_new"), {"reference": "AU-1", "name": "Rosalind Vey", "contact": "01632 960001"})
+    fitter_client.post(
+        reverse("fittings:client_new"), {"reference": "AU-1", "name": "Rosalind Vey", "contact": "01632 960001"}
+    )
     entry = AuditEntry.objects.get()
     client = Client.objects.get(reference="AU-1")
     assert (entry.user, entry.username, entry.action, entry.object_type, entry.object_id, entry.client_reference) == (
-        fitter_user, fitter_user.username, "create", "client", str(client.pk), "AU-1")
+        fitter_user,
+        fitter_user.username,
+        "create",
+        "client",
+        str(client.pk),
+        "AU-1",
+    )
     assert entry.after["name"] == "Rosalind Vey" and entry.after["contact"] == "01632 960001"
     assert entry.before is None
 
@@ -45,12 +53,19 @@ def test_it_records_a_soft_delete_and_keeps_the_records(owner_client, owner_user
     assert Plan.objects.filter(client=client).count() == 1
     assert not Client.objects.filter(pk=client.pk).exists()
     entry = newest()
-    assert (entry.action, entry.object_type, entry.client_reference, entry.user) == ("delete", "client", "WF-0102", owner_user)
+    assert (entry.action, entry.object_type, entry.client_reference, entry.user) == (
+        "delete",
+        "client",
+        "WF-0102",
+        owner_user,
+    )
 
 
 def test_it_records_new_readings(fitter_client, demo_atelier):
     client = Client.objects.get(reference="WF-0101")
-    fitter_client.post(reverse("fittings:session_new", args=[client.pk]), session_post(bust_girth="95.5", waist_girth="71"))
+    fitter_client.post(
+        reverse("fittings:session_new", args=[client.pk]), session_post(bust_girth="95.5", waist_girth="71")
+    )
     entry = newest()
     session = MeasurementSession.objects.get(client=client, taken_on="2026-11-30")
     assert (entry.action, entry.object_type, entry.object_id) == ("create", "session", str(session.pk))
@@ -85,7 +100,12 @@ def test_it_writes_nothing_for_a_refused_edit(fitter_client, demo_atelier):
 def test_it_records_each_step_of_a_plan(fitter_client, fitter_user, plan):
     start = newest()
     assert (start.action, start.object_type, start.object_id) == ("create", "plan", str(plan.pk))
-    assert fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]), options_post(plan, ease_waist="-5")).status_code == 302
+    assert (
+        fitter_client.post(
+            reverse("fittings:plan_edit", args=[plan.pk]), options_post(plan, ease_waist="-5")
+        ).status_code
+        == 302
+    )
     saved = newest()
     revision = plan.revisions.get(number=2)
     assert (saved.action, saved.object_type, saved.object_id) == ("create", "revision", str(revision.pk))
@@ -93,7 +113,11 @@ def test_it_records_each_step_of_a_plan(fitter_client, fitter_user, plan):
     assert fitter_client.post(reverse("fittings:revision_issue", args=[plan.pk, 2])).status_code == 302
     issued = newest()
     assert (issued.action, issued.object_id, issued.before, issued.after) == (
-        "issue", str(revision.pk), {"status": "draft"}, {"status": "issued"})
+        "issue",
+        str(revision.pk),
+        {"status": "draft"},
+        {"status": "issued"},
+    )
     fitter_client.post(reverse("fittings:revision_issue", args=[plan.pk, 2]))  # again: nothing changes
     assert newest().pk == issued.pk
     pins = fitter_client.post(reverse("fittings:revision_pins", args=[plan.pk, 2]), {"pin-0-waist": "-1/4"})
@@ -111,8 +135,10 @@ def test_it_records_each_step_of_a_plan(fitter_client, fitter_user, plan):
 
 def test_it_records_an_import(fitter_client, plan):
     exported = fitter_client.get(reverse("fittings:revision_fitting_file", args=[plan.pk, 1])).content
-    response = fitter_client.post(reverse("fittings:fitting_import", args=[plan.client.pk]),
-                                  {"file": SimpleUploadedFile("f.json", exported), "garment": "Copy"})
+    response = fitter_client.post(
+        reverse("fittings:fitting_import", args=[plan.client.pk]),
+        {"file": SimpleUploadedFile("f.json", exported), "garment": "Copy"},
+    )
     assert response.status_code == 302
     entry = newest()
     copy = Plan.objects.get(garment="Copy")
@@ -148,8 +174,14 @@ def test_it_refuses_to_change_or_delete_an_entry(fitter_user, plan):
 
 
 def test_it_names_the_command_when_no_one_is_signed_in(db):
-    entry = audit.record(user=None, actor="manage.py erase_client (run as atelier)", action=audit.ERASE,
-                         object_type="client", object_id=7, summary="A client was erased on request.")
+    entry = audit.record(
+        user=None,
+        actor="manage.py erase_client (run as atelier)",
+        action=audit.ERASE,
+        object_type="client",
+        object_id=7,
+        summary="A client was erased on request.",
+    )
     assert (entry.user, entry.username, entry.object_id) == (None, "manage.py erase_client (run as atelier)", "7")
 
 
@@ -164,8 +196,10 @@ def superuser_client(client, make_user, demo_atelier):
 
 
 def _action(superuser_client, action, *clients):
-    return superuser_client.post(reverse("admin:fittings_client_changelist"), {
-        "action": action, "_selected_action": [str(c.pk) for c in clients], "index": "0"})
+    return superuser_client.post(
+        reverse("admin:fittings_client_changelist"),
+        {"action": action, "_selected_action": [str(c.pk) for c in clients], "index": "0"},
+    )
 
 
 def test_it_audits_removing_and_restoring_clients_from_the_admin(superuser_client):
@@ -187,9 +221,15 @@ def test_it_lets_no_one_change_a_reading_or_a_client_in_the_admin(superuser_clie
     reading = session.measurements.get(code="waist_girth")
     client = session.client
     before = (reading.value_mm, session.version, client.name, AuditEntry.objects.count())
-    pages = [("admin:fittings_measurement_change", reading.pk, {"session": session.pk, "code": "waist_girth", "value_mm": "1"}),
-             ("admin:fittings_measurementsession_change", session.pk, {"notes": "changed"}),
-             ("admin:fittings_client_change", client.pk, {"reference": client.reference, "name": "Someone Else"})]
+    pages = [
+        (
+            "admin:fittings_measurement_change",
+            reading.pk,
+            {"session": session.pk, "code": "waist_girth", "value_mm": "1"},
+        ),
+        ("admin:fittings_measurementsession_change", session.pk, {"notes": "changed"}),
+        ("admin:fittings_client_change", client.pk, {"reference": client.reference, "name": "Someone Else"}),
+    ]
     for name, pk, data in pages:
         response = superuser_client.post(reverse(name, args=[pk]), data)
         assert response.status_code == 403, name

@@ -12,13 +12,13 @@ from django.core.files.uploadedfile import SimpleUploadedFile
 from django.core.management import call_command
 from django.core.management.base import CommandError
 
+from fittings import selectors
 from fittings.models import Client, Photo, Plan, PlanRevision
+from fittings.services import backups
 from fittings.services import clients as client_services
 from fittings.services import plans as plan_services
-from fittings.services import backups
 from patterns.models import BasePattern
 from tests.security.conftest import jpeg_bytes, private_files, table_rows
-from fittings import selectors
 
 # Restoring replaces the whole database, so these tests commit for real (the database is emptied afterwards).
 pytestmark = pytest.mark.django_db(transaction=True)
@@ -42,13 +42,20 @@ def busy_atelier(demo_atelier, fitter_user):
     odalys = Client.objects.get(reference="WF-0102")
     pattern = BasePattern.objects.get(garment="overbust corset", size_label="12")
     session = client_services.record_session(
-        client=odalys, user=fitter_user, values={"bust_girth": 1000, "waist_girth": 800, "hip_girth": 1050},
-        form_data={"taken_on": "2026-11-30", "kind": "toile", "unit": "cm",
-                   "photo_front": SimpleUploadedFile("f.jpg", jpeg_bytes(colour=(1, 2, 3))),
-                   "photo_back": SimpleUploadedFile("b.jpg", jpeg_bytes(colour=(4, 5, 6)))},
+        client=odalys,
+        user=fitter_user,
+        values={"bust_girth": 1000, "waist_girth": 800, "hip_girth": 1050},
+        form_data={
+            "taken_on": "2026-11-30",
+            "kind": "toile",
+            "unit": "cm",
+            "photo_front": SimpleUploadedFile("f.jpg", jpeg_bytes(colour=(1, 2, 3))),
+            "photo_back": SimpleUploadedFile("b.jpg", jpeg_bytes(colour=(4, 5, 6))),
+        },
     )
-    plan = plan_services.start_plan(client=odalys, session=session, pattern=pattern, garment="Evening corset",
-                                    user=fitter_user)
+    plan = plan_services.start_plan(
+        client=odalys, session=session, pattern=pattern, garment="Evening corset", user=fitter_user
+    )
     for version in (1, 2):
         options = selectors.revision_inputs(selectors.latest_revision(plan))[2]
         plan_services.save_revision(plan=plan, options=options, user=fitter_user, expected_version=version)
@@ -60,7 +67,11 @@ def busy_atelier(demo_atelier, fitter_user):
 def test_it_restores_every_row_and_every_photo_after_a_wipe(busy_atelier, tmp_path, portable):
     archive = tmp_path / "backups" / "atelier.tar.gz"
     call_command("backup", str(archive), portable=portable)
-    member = "database.json" if portable or settings.DATABASES["default"]["ENGINE"].endswith("postgresql") else "database.sqlite3"
+    member = (
+        "database.json"
+        if portable or settings.DATABASES["default"]["ENGINE"].endswith("postgresql")
+        else "database.sqlite3"
+    )
     assert backups.read_manifest(archive)["database"] == member
     before, files = every_table(), private_files()
     assert Photo.objects.count() == 2 and len(files) == 2
@@ -84,10 +95,13 @@ def test_it_writes_what_the_manifest_says(busy_atelier, tmp_path):
     with tarfile.open(archive) as tar:
         names = set(tar.getnames())
     assert names == {"manifest.json", *manifest["files"]}
-    assert manifest["engine"] == ("sqlite" if settings.DATABASES["default"]["ENGINE"].endswith("sqlite3") else "postgresql")
+    assert manifest["engine"] == (
+        "sqlite" if settings.DATABASES["default"]["ENGINE"].endswith("sqlite3") else "postgresql"
+    )
     assert manifest["database"] in manifest["files"]
     assert sorted(n for n in names if n.startswith("private/")) == sorted(
-        "private/" + name for name in Photo.objects.values_list("image", flat=True))
+        "private/" + name for name in Photo.objects.values_list("image", flat=True)
+    )
     assert "fittings" in manifest["migrations"] and "0001_initial" in manifest["migrations"]["fittings"]
     assert not any("secret_key" in name for name in names)
 
@@ -136,8 +150,10 @@ def test_it_refuses_a_damaged_archive_before_touching_anything(busy_atelier, tmp
 def test_it_refuses_an_archive_with_an_unsafe_path(busy_atelier, tmp_path):
     archive = tmp_path / "evil.tar.gz"
     with tarfile.open(archive, "w:gz") as tar:
-        manifest = b'{"format": "atelier-backup", "version": 1, "created_at": "x", "engine": "sqlite",' \
-                   b' "database": "database.json", "migrations": {}, "files": {"../../escape.txt": "0"}}'
+        manifest = (
+            b'{"format": "atelier-backup", "version": 1, "created_at": "x", "engine": "sqlite",'
+            b' "database": "database.json", "migrations": {}, "files": {"../../escape.txt": "0"}}'
+        )
         for name, data in (("manifest.json", manifest), ("../../escape.txt", b"x")):
             info = tarfile.TarInfo(name)
             info.size = len(data)

@@ -9,9 +9,9 @@ from django.db.models import ProtectedError
 from django.test import Client as BrowserClient
 from django.urls import reverse
 
+from fittings import selectors
 from fittings.models import AuditEntry, Client, MeasurementSession, PlanRevision, RevisionLocked
 from tests.security.conftest import form_fields
-from fittings import selectors
 
 pytestmark = pytest.mark.django_db
 
@@ -26,7 +26,8 @@ def two_tablets(make_user):
 
 def input_value(html, name):
     match = re.search(rf'<input[^>]*name="{re.escape(name)}"[^>]*value="([^"]*)"', html) or re.search(
-        rf'<input[^>]*value="([^"]*)"[^>]*name="{re.escape(name)}"', html)
+        rf'<input[^>]*value="([^"]*)"[^>]*name="{re.escape(name)}"', html
+    )
     return match and match[1]
 
 
@@ -62,7 +63,9 @@ def test_it_refuses_the_later_of_two_session_edits_and_shows_its_readings_back(t
     assert b.post(url, {**again, "bust_girth": "97.5", "done": ""}).status_code == 302
     changes = AuditEntry.objects.filter(action="change", object_id=str(session.pk)).order_by("id")
     assert [(c.username, c.before["measurements_mm"]["bust_girth"]) for c in changes] == [
-        ("ada", str(original["bust_girth"])), ("bea", "960.0000")]
+        ("ada", str(original["bust_girth"])),
+        ("bea", "960.0000"),
+    ]
 
 
 def test_it_refuses_the_later_of_two_plan_saves_and_keeps_both_sets_of_values(two_tablets, plan):
@@ -81,7 +84,10 @@ def test_it_refuses_the_later_of_two_plan_saves_and_keeps_both_sets_of_values(tw
     assert input_value(refused.text, "lacing_gap") == "2"
 
     revisions = list(plan.revisions.order_by("number"))
-    assert [(r.number, r.author.username if r.author else None) for r in revisions] == [(1, revisions[0].author.username), (2, "ada")]
+    assert [(r.number, r.author.username if r.author else None) for r in revisions] == [
+        (1, revisions[0].author.username),
+        (2, "ada"),
+    ]
     assert revisions[1].inputs["plan"]["ease"]["waist"] == pytest.approx(-127.0)  # -5 in: this plan is in inches
 
     # Bea reloads and saves her values on top: a third revision, Ada's second stays as it was.
@@ -143,7 +149,12 @@ def test_it_can_still_reach_every_revision_after_many_saves(fitter_client, plan)
 
     for ease in ("-1", "-2", "-3"):
         plan.refresh_from_db()
-        assert fitter_client.post(reverse("fittings:plan_edit", args=[plan.pk]), options_post(plan, ease_waist=ease)).status_code == 302
+        assert (
+            fitter_client.post(
+                reverse("fittings:plan_edit", args=[plan.pk]), options_post(plan, ease_waist=ease)
+            ).status_code
+            == 302
+        )
     numbers = list(plan.revisions.order_by("number").values_list("number", flat=True))
     assert numbers == [1, 2, 3, 4]
     for number in numbers:

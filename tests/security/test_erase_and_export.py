@@ -14,7 +14,15 @@ from django.core.management.base import CommandError
 from django.db import connection
 
 from fittings.models import (
-    AuditEntry, Client, Measurement, MeasurementSession, Photo, PinAdjustment, Plan, PlanRevision, PrintJob,
+    AuditEntry,
+    Client,
+    Measurement,
+    MeasurementSession,
+    Photo,
+    PinAdjustment,
+    Plan,
+    PlanRevision,
+    PrintJob,
 )
 from fittings.services.client_records import ERASED_SUMMARY
 from tests.security.conftest import private_files, snapshot, table_rows
@@ -33,8 +41,12 @@ def every_text_in_the_database() -> str:
 def her(world, owner_user):
     """WF-0102 with a photo, a printed work order, pins, audit entries and an admin history line."""
     LogEntry.objects.create(
-        user=owner_user, content_type=ContentType.objects.get_for_model(Client), object_id=str(world.client.pk),
-        object_repr=str(world.client), action_flag=CHANGE, change_message="Contact changed",
+        user=owner_user,
+        content_type=ContentType.objects.get_for_model(Client),
+        object_id=str(world.client.pk),
+        object_repr=str(world.client),
+        action_flag=CHANGE,
+        change_message="Contact changed",
     )
     assert AuditEntry.objects.filter(client_reference="WF-0102").count() >= 4
     assert PinAdjustment.objects.filter(revision__plan=world.plan).count() == 1
@@ -156,8 +168,12 @@ def test_it_exports_everything_about_the_client_into_a_zip(her, tmp_path):
     assert [r["number"] for r in plan["revisions"]] == [1, 2]
     assert plan["revisions"][0]["inputs"] == her.issued.inputs and plan["revisions"][0]["result"] == her.issued.result
     assert plan["revisions"][0]["pins"][0] == {
-        "seam": "Back princess seam", "level": "waist", "mm": "-6.3500",
-        "note": "Toile gaped at the back waist; pinned out 1/4 in.", "by": "demo", "at": plan["revisions"][0]["pins"][0]["at"],
+        "seam": "Back princess seam",
+        "level": "waist",
+        "mm": "-6.3500",
+        "note": "Toile gaped at the back waist; pinned out 1/4 in.",
+        "by": "demo",
+        "at": plan["revisions"][0]["pins"][0]["at"],
     }
     assert "Hester" not in json.dumps(data)  # nobody else's records
     assert {h["action"] for h in data["history"]} >= {"create", "issue"}

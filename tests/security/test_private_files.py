@@ -29,8 +29,9 @@ def upload(data: bytes, name="front.jpg"):
 
 def post_photo(fitter_client, data, name="front.jpg"):
     client = Client.objects.get(reference="WF-0101")
-    return fitter_client.post(reverse("fittings:session_new", args=[client.pk]),
-                              session_post(photo_front=upload(data, name)))
+    return fitter_client.post(
+        reverse("fittings:session_new", args=[client.pk]), session_post(photo_front=upload(data, name))
+    )
 
 
 def stored_bytes():
@@ -49,9 +50,9 @@ def png_claiming(width, height) -> bytes:
     Image.new("L", (1, 1)).save(out, format="PNG")
     data = bytearray(out.getvalue())
     ihdr = data.index(b"IHDR")
-    data[ihdr + 4:ihdr + 12] = struct.pack(">II", width, height)
-    crc = zlib.crc32(bytes(data[ihdr:ihdr + 17]))
-    data[ihdr + 17:ihdr + 21] = struct.pack(">I", crc)
+    data[ihdr + 4 : ihdr + 12] = struct.pack(">II", width, height)
+    crc = zlib.crc32(bytes(data[ihdr : ihdr + 17]))
+    data[ihdr + 17 : ihdr + 21] = struct.pack(">I", crc)
     return bytes(data)
 
 
@@ -78,8 +79,15 @@ def test_it_serves_no_photo_by_its_file_name(client, fitter_client, demo_atelier
     assert post_photo(fitter_client, jpeg_bytes()).status_code == 302
     name = Photo.objects.get().image.name
     content = stored_bytes()
-    guesses = [f"/{name}", f"/private/{name}", f"/media/{name}", f"/data/private/{name}",
-               f"/static/{name}", f"/static/../data/private/{name}", f"/static/%2e%2e/data/private/{name}"]
+    guesses = [
+        f"/{name}",
+        f"/private/{name}",
+        f"/media/{name}",
+        f"/data/private/{name}",
+        f"/static/{name}",
+        f"/static/../data/private/{name}",
+        f"/static/%2e%2e/data/private/{name}",
+    ]
     for url in guesses:
         for who in (client, fitter_client):
             response = who.get(url)
@@ -135,13 +143,16 @@ def test_it_keeps_only_the_pixels_of_a_picture_with_something_appended(fitter_cl
     assert payload not in stored_bytes()
 
 
-@pytest.mark.parametrize("data, name, words", [
-    (png_claiming(10_000, 6_000), "front.png", "too many pixels"),  # 60 million: over MAX_PHOTO_PIXELS
-    (png_claiming(20_000, 20_000), "front.png", "too many pixels"),  # 400 million: Pillow's own bomb limit
-    (jpeg_bytes(size=(400, 300))[:300], "front.jpg", "not a photo that can be read"),  # cut off
-    (b"GIF89a" + b"\x00" * 64, "front.gif", "not a photo that can be read"),
-    (b'<svg xmlns="http://www.w3.org/2000/svg"><script>alert(1)</script></svg>', "front.svg", "not a photo"),
-])
+@pytest.mark.parametrize(
+    "data, name, words",
+    [
+        (png_claiming(10_000, 6_000), "front.png", "too many pixels"),  # 60 million: over MAX_PHOTO_PIXELS
+        (png_claiming(20_000, 20_000), "front.png", "too many pixels"),  # 400 million: Pillow's own bomb limit
+        (jpeg_bytes(size=(400, 300))[:300], "front.jpg", "not a photo that can be read"),  # cut off
+        (b"GIF89a" + b"\x00" * 64, "front.gif", "not a photo that can be read"),
+        (b'<svg xmlns="http://www.w3.org/2000/svg"><script>alert(1)</script></svg>', "front.svg", "not a photo"),
+    ],
+)
 def test_it_refuses_pictures_that_cannot_be_decoded_safely(fitter_client, demo_atelier, data, name, words):
     before = MeasurementSession.objects.count()
     response = post_photo(fitter_client, data, name)

@@ -123,9 +123,11 @@ def test_it_checks_htmx_requests_by_the_header_from_the_page(strict, demo_atelie
 def test_it_refuses_an_htmx_save_with_a_wrong_token_and_saves_nothing(strict, demo_atelier):
     client = Client.objects.get(reference="WF-0101")
     before = MeasurementSession.objects.count()
-    response = strict.post(reverse("fittings:session_new", args=[client.pk]),
-                           {"taken_on": "2026-11-30", "kind": "first", "unit": "cm", "bust_girth": "90"},
-                           headers={"HX-Request": "true", "X-CSRFToken": "x" * 32})
+    response = strict.post(
+        reverse("fittings:session_new", args=[client.pk]),
+        {"taken_on": "2026-11-30", "kind": "first", "unit": "cm", "bust_girth": "90"},
+        headers={"HX-Request": "true", "X-CSRFToken": "x" * 32},
+    )
     assert response.status_code == 403
     assert MeasurementSession.objects.count() == before
 

@@ -71,20 +71,30 @@ print(json.dumps({"saved": saved, "errors": errors, "plan": plan.pk if plan else
 
 
 def env_for(data_dir):
-    base = {k: v for k, v in os.environ.items()
-            if not k.startswith("ATELIER_") and k not in ("DATABASE_URL", "DJANGO_SETTINGS_MODULE")}
+    base = {
+        k: v
+        for k, v in os.environ.items()
+        if not k.startswith("ATELIER_") and k not in ("DATABASE_URL", "DJANGO_SETTINGS_MODULE")
+    }
     return {**base, "ATELIER_DATA_DIR": str(data_dir)}  # SQLite, even when the suite runs on PostgreSQL
 
 
 def test_it_queues_concurrent_writers_without_locking_errors_or_lost_rows(tmp_path):
     env = env_for(tmp_path)
-    setup = subprocess.run([sys.executable, "-c", SETUP], cwd=settings.BASE_DIR, env=env,
-                           capture_output=True, text=True, timeout=180)
+    setup = subprocess.run(
+        [sys.executable, "-c", SETUP], cwd=settings.BASE_DIR, env=env, capture_output=True, text=True, timeout=180
+    )
     assert setup.returncode == 0, setup.stderr
     go = tmp_path / "go"
     workers = [
-        subprocess.Popen([sys.executable, "-c", WORKER, str(n), str(SESSIONS_EACH), str(SAVES_EACH), str(go)],
-                         cwd=settings.BASE_DIR, env=env, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+        subprocess.Popen(
+            [sys.executable, "-c", WORKER, str(n), str(SESSIONS_EACH), str(SAVES_EACH), str(go)],
+            cwd=settings.BASE_DIR,
+            env=env,
+            stdout=subprocess.PIPE,
+            stderr=subprocess.PIPE,
+            text=True,
+        )
         for n in range(WORKERS)
     ]
     # Let every worker start Django and make its client, then release them together.
@@ -110,14 +120,21 @@ def test_it_queues_concurrent_writers_without_locking_errors_or_lost_rows(tmp_pa
     assert len(saved) == len(set(saved)) == WORKERS * SESSIONS_EACH
     with sqlite3.connect(db_path) as db:
         found = db.execute(
-            f"SELECT COUNT(*) FROM fittings_measurementsession WHERE id IN ({','.join(map(str, saved))})").fetchone()[0]
+            f"SELECT COUNT(*) FROM fittings_measurementsession WHERE id IN ({','.join(map(str, saved))})"
+        ).fetchone()[0]
         readings = db.execute(
-            f"SELECT COUNT(*) FROM fittings_measurement WHERE session_id IN ({','.join(map(str, saved))})").fetchone()[0]
-        revisions = dict(db.execute(
-            "SELECT plan_id, COUNT(*) FROM fittings_planrevision WHERE plan_id IN (%s) GROUP BY plan_id"
-            % ",".join(str(r["plan"]) for r in results)).fetchall())
-        audit = db.execute("SELECT COUNT(*) FROM fittings_auditentry WHERE object_type = 'session' AND action = 'create' "
-                           f"AND object_id IN ({','.join(repr(str(pk)) for pk in saved)})").fetchone()[0]
+            f"SELECT COUNT(*) FROM fittings_measurement WHERE session_id IN ({','.join(map(str, saved))})"
+        ).fetchone()[0]
+        revisions = dict(
+            db.execute(
+                "SELECT plan_id, COUNT(*) FROM fittings_planrevision WHERE plan_id IN (%s) GROUP BY plan_id"
+                % ",".join(str(r["plan"]) for r in results)
+            ).fetchall()
+        )
+        audit = db.execute(
+            "SELECT COUNT(*) FROM fittings_auditentry WHERE object_type = 'session' AND action = 'create' "
+            f"AND object_id IN ({','.join(repr(str(pk)) for pk in saved)})"
+        ).fetchone()[0]
         mode = db.execute("PRAGMA journal_mode").fetchone()[0]
     assert found == WORKERS * SESSIONS_EACH
     assert readings == WORKERS * SESSIONS_EACH * 5

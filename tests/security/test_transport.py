@@ -38,11 +38,24 @@ print(json.dumps({
 
 
 def run(env, tmp_path):
-    base = {k: v for k, v in os.environ.items() if not k.startswith("ATELIER_") and k not in ("DATABASE_URL", "DJANGO_SETTINGS_MODULE")}
+    base = {
+        k: v
+        for k, v in os.environ.items()
+        if not k.startswith("ATELIER_") and k not in ("DATABASE_URL", "DJANGO_SETTINGS_MODULE")
+    }
     result = subprocess.run(
-        [sys.executable, "-c", CHECK], cwd=settings.BASE_DIR, capture_output=True, text=True, timeout=120,
-        env={**base, "ATELIER_DATA_DIR": str(tmp_path), "ATELIER_STATIC_ROOT": str(tmp_path / "static"),
-             "ATELIER_ALLOWED_HOSTS": "atelier.example.org", **env},
+        [sys.executable, "-c", CHECK],
+        cwd=settings.BASE_DIR,
+        capture_output=True,
+        text=True,
+        timeout=120,
+        env={
+            **base,
+            "ATELIER_DATA_DIR": str(tmp_path),
+            "ATELIER_STATIC_ROOT": str(tmp_path / "static"),
+            "ATELIER_ALLOWED_HOSTS": "atelier.example.org",
+            **env,
+        },
     )
     assert result.returncode == 0, result.stderr
     return json.loads(result.stdout.strip().splitlines()[-1])
@@ -51,14 +64,24 @@ def run(env, tmp_path):
 def test_it_serves_production_over_https_only_with_secure_cookies(tmp_path):
     seen = run({"ATELIER_PRODUCTION": "1"}, tmp_path)
     assert seen == {
-        "plain_status": 301, "plain_location": "https://atelier.example.org/login/",
+        "plain_status": 301,
+        "plain_location": "https://atelier.example.org/login/",
         "hsts": "max-age=31536000; includeSubDomains; preload",
-        "csrf_secure": True, "csrf_httponly": True,
-        "signed_status": 302, "session_secure": True, "session_httponly": True,
-        "referrer": "same-origin", "coop": "same-origin",
+        "csrf_secure": True,
+        "csrf_httponly": True,
+        "signed_status": 302,
+        "session_secure": True,
+        "session_httponly": True,
+        "referrer": "same-origin",
+        "coop": "same-origin",
     }
 
 
 def test_it_keeps_plain_http_working_on_a_home_network_without_production_mode(tmp_path):
     seen = run({}, tmp_path)
-    assert (seen["plain_status"], seen["hsts"], seen["session_secure"], seen["session_httponly"]) == (200, None, "", True)
+    assert (seen["plain_status"], seen["hsts"], seen["session_secure"], seen["session_httponly"]) == (
+        200,
+        None,
+        "",
+        True,
+    )

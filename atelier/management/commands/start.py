@@ -64,14 +64,18 @@ class Command(BaseCommand):
 
     def add_arguments(self, parser):
         parser.add_argument(
-            "--bind", default=DEFAULT_BIND,
+            "--bind",
+            default=DEFAULT_BIND,
             help="Address and port to serve on (default 127.0.0.1:8000; 0.0.0.0:8000 lets tablets on the network in).",
         )
         parser.add_argument("--workers", type=int, default=2, help="Worker processes (default 2).")
         parser.add_argument("--threads", type=int, default=4, help="Threads per worker (default 4).")
-        parser.add_argument("--no-demo", action="store_true", help="Do not load the demo atelier into an empty database.")
         parser.add_argument(
-            "--inline-tasks", action="store_true",
+            "--no-demo", action="store_true", help="Do not load the demo atelier into an empty database."
+        )
+        parser.add_argument(
+            "--inline-tasks",
+            action="store_true",
             help="Render documents inside the web workers instead of a background worker process.",
         )
 
@@ -99,14 +103,23 @@ class Command(BaseCommand):
         if env.get("ATELIER_TASKS") == "db":
             self.start_task_worker([sys.executable, str(settings.BASE_DIR / "manage.py"), "task_worker"], env)
         argv = [
-            sys.executable, "-m", "gunicorn", "atelier.wsgi:application",
-            "--bind", bind,
-            "--workers", str(workers),
-            "--threads", str(threads),
-            "--chdir", str(settings.BASE_DIR),
-            "--timeout", "120",
+            sys.executable,
+            "-m",
+            "gunicorn",
+            "atelier.wsgi:application",
+            "--bind",
+            bind,
+            "--workers",
+            str(workers),
+            "--threads",
+            str(threads),
+            "--chdir",
+            str(settings.BASE_DIR),
+            "--timeout",
+            "120",
             "--preload",
-            "--access-logfile", "-",
+            "--access-logfile",
+            "-",
         ]
         if gunicorn_has_setting("control_socket_disable"):
             # Newer gunicorn opens a control socket in the home folder; this app does not use it.
@@ -114,10 +127,12 @@ class Command(BaseCommand):
         for name in ["127.0.0.1", *extra_hosts] if host in WILDCARDS else extra_hosts:
             self.stdout.write(self.style.SUCCESS(f"Open http://{name}:{port}/"))
         if not settings.HTTPS and host not in ("127.0.0.1", "localhost", "::1"):
-            self.stdout.write(self.style.WARNING(
-                "Passwords and client data cross the network unencrypted. Put an HTTPS proxy in front "
-                "and set ATELIER_PRODUCTION=1 before using this beyond a trusted home network."
-            ))
+            self.stdout.write(
+                self.style.WARNING(
+                    "Passwords and client data cross the network unencrypted. Put an HTTPS proxy in front "
+                    "and set ATELIER_PRODUCTION=1 before using this beyond a trusted home network."
+                )
+            )
         sys.stdout.flush()
         sys.stderr.flush()
         self.exec_server(argv, env)

@@ -12,7 +12,9 @@ class Command(BaseCommand):
 
     def add_arguments(self, parser):
         parser.add_argument(
-            "--interval", type=float, default=0.25,
+            "--interval",
+            type=float,
+            default=0.25,
             help="Seconds between looks at an empty queue (default 0.25: a print starts at once).",
         )
 

@@ -10,16 +10,23 @@ class Command(BaseCommand):
     )
 
     def add_arguments(self, parser):
-        parser.add_argument("out", help="The archive to write, e.g. /media/usb/atelier-2026-12-02.tar.gz (must not exist).")
-        parser.add_argument("--portable", action="store_true",
-                            help="Write the database as JSON even from SQLite, to restore it into PostgreSQL.")
+        parser.add_argument(
+            "out", help="The archive to write, e.g. /media/usb/atelier-2026-12-02.tar.gz (must not exist)."
+        )
+        parser.add_argument(
+            "--portable",
+            action="store_true",
+            help="Write the database as JSON even from SQLite, to restore it into PostgreSQL.",
+        )
 
     def handle(self, *args, out, portable, **options):
         try:
             receipt = backups.backup(out, portable=portable)
         except backups.SafetyError as exc:
             raise CommandError(str(exc)) from None
-        self.stdout.write(self.style.SUCCESS(
-            f"Backed up the {receipt.engine} database and {receipt.files} private file(s) to {receipt.path} "
-            f"({receipt.bytes / 1024 / 1024:.1f} MB)."
-        ))
+        self.stdout.write(
+            self.style.SUCCESS(
+                f"Backed up the {receipt.engine} database and {receipt.files} private file(s) to {receipt.path} "
+                f"({receipt.bytes / 1024 / 1024:.1f} MB)."
+            )
+        )

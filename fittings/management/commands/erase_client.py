@@ -35,9 +35,11 @@ class Command(BaseCommand):
                 "run again with --yes to erase (export_client first if the client wants a copy)."
             )
         erasure = client_records.erase_client(reference=reference, actor=actor("erase_client"))
-        self.stdout.write(self.style.SUCCESS(
-            f"Erased {reference}: {listed}; {erasure.files_removed} file(s) deleted from the data folder."
-        ))
+        self.stdout.write(
+            self.style.SUCCESS(
+                f"Erased {reference}: {listed}; {erasure.files_removed} file(s) deleted from the data folder."
+            )
+        )
         if erasure.files_missing:
             self.stdout.write(self.style.WARNING(f"{len(erasure.files_missing)} file(s) were already missing."))
         self.stdout.write("Backups made before today still hold this client; delete them as they age out.")

@@ -8,9 +8,9 @@ def report_demo(stdout, style, loaded):
     if loaded is None:
         stdout.write("The atelier already has clients or patterns; the demo was not loaded.")
         return
-    stdout.write(style.SUCCESS(
-        f"Demo atelier loaded: {len(loaded.patterns)} base patterns, {len(loaded.clients)} clients."
-    ))
+    stdout.write(
+        style.SUCCESS(f"Demo atelier loaded: {len(loaded.patterns)} base patterns, {len(loaded.clients)} clients.")
+    )
     login = loaded.login
     if login and login.password:
         stdout.write(style.WARNING(f"Demo login: user {login.username!r}, password {login.password!r}"))
@@ -21,7 +21,9 @@ class Command(BaseCommand):
     help = "Load the invented demo atelier (patterns, clients, a demo fitter login) into an empty database."
 
     def add_arguments(self, parser):
-        parser.add_argument("--password", help="Password for the demo login (default: ATELIER_DEMO_PASSWORD or random).")
+        parser.add_argument(
+            "--password", help="Password for the demo login (default: ATELIER_DEMO_PASSWORD or random)."
+        )
 
     def handle(self, *args, password=None, **options):
         report_demo(self.stdout, self.style, load_demo_atelier(password=password))

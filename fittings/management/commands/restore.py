@@ -31,7 +31,9 @@ class Command(BaseCommand):
             receipt = backups.restore(archive)
         except backups.SafetyError as exc:
             raise CommandError(str(exc)) from None
-        self.stdout.write(self.style.SUCCESS(
-            f"Restored the backup made {receipt.created_at} into the {receipt.engine} database, "
-            f"with {receipt.files} private file(s). Start the app again."
-        ))
+        self.stdout.write(
+            self.style.SUCCESS(
+                f"Restored the backup made {receipt.created_at} into the {receipt.engine} database, "
+                f"with {receipt.files} private file(s). Start the app again."
+            )
+        )

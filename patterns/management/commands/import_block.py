@@ -27,8 +27,11 @@ class Command(BaseCommand):
         except OSError as exc:
             raise CommandError(f"Cannot read {path}: {exc}") from exc
         import_options = ImportOptions(
-            name=options["name"], size=options["size"], garment=options["garment"],
-            front_panels=options["front_panels"], centre_back=options["centre_back"],
+            name=options["name"],
+            size=options["size"],
+            garment=options["garment"],
+            front_panels=options["front_panels"],
+            centre_back=options["centre_back"],
             seam_allowance_mm=options["seam_allowance_mm"],
         )
         try:

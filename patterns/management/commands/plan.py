@@ -13,7 +13,9 @@ class Command(BaseCommand):
 
     def add_arguments(self, parser):
         parser.add_argument("file", help="a fitting file (JSON); '-' reads standard input")
-        parser.add_argument("--json", action="store_true", help="print the result as JSON (see patterns/schemas/result.schema.json)")
+        parser.add_argument(
+            "--json", action="store_true", help="print the result as JSON (see patterns/schemas/result.schema.json)"
+        )
 
     def handle(self, *args, **options):
         path = options["file"]
