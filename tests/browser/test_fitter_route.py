@@ -71,6 +71,20 @@ def test_it_walks_the_fitting_with_every_message_where_the_fitter_looks(held, li
     page.wait_for_selector("#advice-bust_girth >> text=Bust is smaller than underbust")
     assert "Bust girth:" in page.inner_text("#session-notes")
     page.snap("advice-beside-field")
+    # The longest kind of session reads whole in its box ("First measuremen" was cut off): the
+    # option's text, measured in the select's own font, fits inside the box less its padding and arrow.
+    room = page.eval_on_selector(
+        "#id_kind",
+        """select => {
+        const style = getComputedStyle(select);
+        const ctx = document.createElement("canvas").getContext("2d");
+        ctx.font = `${style.fontWeight} ${style.fontSize} ${style.fontFamily}`;
+        const widest = Math.max(...[...select.options].map(o => ctx.measureText(o.text).width));
+        const inner = select.clientWidth - parseFloat(style.paddingLeft) - parseFloat(style.paddingRight);
+        return inner - widest;
+    }""",
+    )
+    assert room >= 0, f"the session kind is cut by {-room:.0f} px"
 
     # The plan page: a mistyped ease and a mistyped cell are swapped in with their messages.
     plan = client.plans.order_by("-created_at").first()
