@@ -2,14 +2,15 @@
 
 from django import forms
 from django.core.exceptions import PermissionDenied
-from django.shortcuts import get_object_or_404, redirect, render
+from django.http import Http404
+from django.shortcuts import redirect, render
 from django.utils import timezone
 from django.views.decorators.http import require_GET, require_POST
 
 from atelier.roles import ROLES, WORKROOM, role_of, role_required
 from fittings import selectors
 from fittings.fabric import job_layers, latest_layout, layer_rows
-from fittings.models import LayoutStatus, Plan, PlanRevision
+from fittings.models import LayoutStatus
 from fittings.services.layouts import request_layout, settle_abandoned
 from fittings.services.printing import NO_WORKER_AFTER
 from patterns.core.layout import (
@@ -71,8 +72,10 @@ class LayoutForm(forms.Form):
 
 
 def _revision(request, pk, number):
-    plan = get_object_or_404(Plan.objects.select_related("client", "base_pattern"), pk=pk, client__is_deleted=False)
-    revision = get_object_or_404(PlanRevision.objects.defer("inputs", "result"), plan=plan, number=number)
+    plan = selectors.plan_for_page(pk)
+    revision = selectors.plan_revision(plan, number) if plan is not None else None
+    if revision is None:
+        raise Http404("No such revision.")
     if not revision.is_issued and role_of(request.user) == WORKROOM:
         raise PermissionDenied("This revision is a draft: the workroom lays out a revision once it is issued.")
     return plan, revision

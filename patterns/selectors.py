@@ -12,6 +12,16 @@ def active_patterns():
     return BasePattern.objects.filter(is_active=True).select_related("size_run")
 
 
+def pattern(pk) -> BasePattern | None:
+    """One base pattern with its size run and the version it was edited from; None where there is none
+    (``pk`` as an int, or as typed in a form: digits only)."""
+    if isinstance(pk, str):
+        if not (pk.isascii() and pk.isdigit() and len(pk) < 19):
+            return None
+        pk = int(pk)
+    return BasePattern.objects.select_related("size_run", "previous").filter(pk=pk).first()
+
+
 def block_for(pattern) -> Block:
     """The plain Block of a stored pattern (an instance or a primary key).
 

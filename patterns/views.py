@@ -8,7 +8,7 @@ import re
 from django.contrib import messages
 from django.core.cache import caches
 from django.http import Http404, HttpResponse
-from django.shortcuts import get_object_or_404, redirect, render
+from django.shortcuts import redirect, render
 from django.urls import reverse
 from django.views.decorators.http import require_GET, require_POST
 
@@ -20,7 +20,6 @@ from patterns.core.fitting import block_to_dict
 from patterns.core.grading import grade_run
 from patterns.core.preview import block_svg, markers_from_findings
 from patterns.forms import BlockForm, GradeForm, Shape, ShapeFields, TapeForm, TapeSetupForm
-from patterns.models import BasePattern
 
 DRAWING_SECONDS = 24 * 3600
 _KEY = re.compile(r"^[0-9a-f]{64}$")
@@ -31,7 +30,10 @@ def _can_edit(user):
 
 
 def _pattern(pk):
-    return get_object_or_404(BasePattern.objects.select_related("size_run", "previous"), pk=pk)
+    found = selectors.pattern(pk)
+    if found is None:
+        raise Http404("No such base pattern.")
+    return found
 
 
 # --- reading -----------------------------------------------------------------------------
@@ -227,7 +229,7 @@ def block_draw(request):
         return render(request, "patterns/block_form.html#block-drawing", context)
     status = 200 if drafted is not None and drafted.ok else 400
     editing = request.POST.get("editing", "")
-    pattern = BasePattern.objects.filter(pk=int(editing)).first() if editing.isascii() and editing.isdigit() else None
+    pattern = selectors.pattern(editing)
     return _block_page(request, form, pattern=pattern, drafted=drafted, status=status)
 
 

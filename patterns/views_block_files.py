@@ -1,15 +1,16 @@
 """Blocks in and out as drawing files: the import page, and a base pattern's pieces as SVG or DXF."""
 
 from django.contrib import messages
-from django.shortcuts import get_object_or_404, redirect, render
+from django.http import Http404
+from django.shortcuts import redirect, render
 from django.views.decorators.http import require_GET
 
 from atelier.roles import EDITORS, ROLES, role_required
 from fittings import piece_files
 from fittings.views_pieces import file_response
+from patterns import selectors
 from patterns.core.measures import LEVEL_LABELS
 from patterns.forms import BlockImportForm
-from patterns.models import BasePattern
 from patterns.selectors import block_for
 from patterns.services import BlockInvalid, save_block
 
@@ -36,7 +37,7 @@ def block_import(request):
 def pattern_files(request, pk):
     """A base pattern's levels and panel widths, with its pieces to download (``block`` is taken by the
     template language inside ``{% block %}``, hence ``pattern_block``)."""
-    pattern = get_object_or_404(BasePattern, pk=pk)
+    pattern = _pattern(pk)
     block = block_for(pattern)
     rows = [
         (LEVEL_LABELS.get(lv.name, lv.name), lv.y, [round(p.width(lv.name), 1) for p in block.panels])
@@ -48,4 +49,11 @@ def pattern_files(request, pk):
 @require_GET
 @role_required(*ROLES)
 def pattern_pieces(request, pk, fmt):
-    return file_response(piece_files.pattern_pieces(get_object_or_404(BasePattern, pk=pk), fmt))
+    return file_response(piece_files.pattern_pieces(_pattern(pk), fmt))
+
+
+def _pattern(pk):
+    found = selectors.pattern(pk)
+    if found is None:
+        raise Http404("No such base pattern.")
+    return found
