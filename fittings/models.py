@@ -381,7 +381,21 @@ def print_upload_to(job, filename):
     return f"print/{timezone.now():%Y/%m}/{uuid.uuid4().hex}.pdf"
 
 
-class PrintJob(models.Model):
+class BackgroundJob(models.Model):
+    """What every piece of background work records: its task, who asked, when it ran, why it failed."""
+
+    task_id = models.CharField(max_length=64, blank=True)
+    created_by = models.ForeignKey(settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+")
+    created_at = models.DateTimeField(default=timezone.now)
+    started_at = models.DateTimeField(null=True, blank=True)
+    finished_at = models.DateTimeField(null=True, blank=True)
+    error = models.TextField(blank=True)
+
+    class Meta:
+        abstract = True
+
+
+class PrintJob(BackgroundJob):
     """One request to print a revision: drawn in the background, kept privately."""
 
     revision = models.ForeignKey(PlanRevision, models.PROTECT, related_name="print_jobs")
@@ -394,12 +408,6 @@ class PrintJob(models.Model):
         blank=True,
         help_text="The app's address when printing was asked for (for the QR code).",
     )
-    task_id = models.CharField(max_length=64, blank=True)
-    created_by = models.ForeignKey(settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+")
-    created_at = models.DateTimeField(default=timezone.now)
-    started_at = models.DateTimeField(null=True, blank=True)
-    finished_at = models.DateTimeField(null=True, blank=True)
-    error = models.TextField(blank=True)
 
     class Meta:
         ordering = ["-created_at", "-id"]
@@ -548,7 +556,7 @@ class LayoutStatus(models.TextChoices):
     FAILED = "failed", "Failed"
 
 
-class FabricLayout(models.Model):
+class FabricLayout(BackgroundJob):
     revision = models.ForeignKey("fittings.PlanRevision", models.PROTECT, related_name="fabric_layouts")
     layers = models.JSONField(
         help_text='The fabric layers and their widths: [{"layer": "fashion", "width_mm": 1400.0}].'
@@ -560,12 +568,6 @@ class FabricLayout(models.Model):
     best_length_mm = models.FloatField(null=True, blank=True, help_text="The shortest length found so far.")
     shelf = models.JSONField(help_text="The row layout per layer, made at once.")
     solved = models.JSONField(null=True, blank=True, help_text="The solver's layout per layer, when done.")
-    task_id = models.CharField(max_length=64, blank=True)
-    created_by = models.ForeignKey(settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+")
-    created_at = models.DateTimeField(default=timezone.now)
-    started_at = models.DateTimeField(null=True, blank=True)
-    finished_at = models.DateTimeField(null=True, blank=True)
-    error = models.TextField(blank=True)
 
     class Meta:
         ordering = ["-created_at", "-id"]
