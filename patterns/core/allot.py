@@ -310,7 +310,7 @@ def _allot_level(block, body, options, level, gap, cf_shift, fixed, panels):
             findings.append(overshoot_finding(where, level, fixed_change, need, options.unit))
         exact = distribute(level, to_spread / 2, free, options.policy, panels) if free and abs(to_spread) > EPS else {}
         work.append(
-            (
+            _Part(
                 side,
                 part_target,
                 part_pattern,
@@ -327,22 +327,13 @@ def _allot_level(block, body, options, level, gap, cf_shift, fixed, panels):
 
     # The level is rounded once, then shared between front and back, so the level's residual is at
     # most one step however the girth is split.
-    steps = _part_steps([sum(w[10].values()) if w[10] else None for w in work], step)
+    steps = _part_steps([sum(w.exact.values()) if w.exact else None for w in work], step)
 
     parts = {}
-    for (
-        side,
-        part_target,
-        part_pattern,
-        cf_change,
-        part_edges,
-        free,
-        part_difference,
-        fixed_change,
-        to_spread,
-        where,
-        exact,
-    ), part_steps in zip(work, steps):
+    for part, part_steps in zip(work, steps):
+        side, part_target, part_pattern, cf_change = part.side, part.target, part.pattern, part.cf_change
+        part_edges, free, part_difference, fixed_change = part.edges, part.free, part.difference, part.fixed_change
+        to_spread, where, exact = part.to_spread, part.where, part.exact
         spread: dict[tuple[str, str, str], float] = {}
         if exact:
             caps = {(seam.name, level, p): seam.cap_mm for seam, p in free}
@@ -413,6 +404,23 @@ def _allot_level(block, body, options, level, gap, cf_shift, fixed, panels):
         back=back,
     )
     return result, out, findings
+
+
+@dataclass(frozen=True)
+class _Part:
+    """The whole level, or its front or its back, as worked out before rounding."""
+
+    side: str | None
+    target: float
+    pattern: float
+    cf_change: float
+    edges: list
+    free: list
+    difference: float
+    fixed_change: float
+    to_spread: float
+    where: str
+    exact: dict
 
 
 def _part_steps(halves: list[float | None], step: float) -> list[int]:
