@@ -154,6 +154,18 @@ def _segments(outlines) -> list[np.ndarray]:
     return [np.asarray(o.stitch + o.stitch[:1]) for o in outlines]
 
 
+def _canvas(x0: float, x1: float, y0: float, y1: float):
+    """A figure and axes drawing the box (x0, y0)-(x1, y1) in mm at true proportion, y downwards."""
+    width_in = max(MIN_WIDTH_IN, (x1 - x0) / MM_PER_FIGURE_INCH)
+    fig = Figure(figsize=(width_in, width_in * (y1 - y0) / (x1 - x0)))
+    ax = fig.add_axes((0, 0, 1, 1))
+    ax.set_axis_off()
+    ax.set_xlim(x0, x1)
+    ax.set_ylim(y1, y0)
+    ax.set_aspect("equal")
+    return fig, ax
+
+
 def build_figure(
     block: Block,
     alteration: Alteration,
@@ -179,15 +191,7 @@ def build_figure(
     x1 = float(every[:, 0].max()) + MARGIN_MM
     y0 = float(every[:, 1].min()) - LEGEND_ROOM_MM
     y1 = float(every[:, 1].max()) + MARGIN_MM
-    width_in = max(MIN_WIDTH_IN, (x1 - x0) / MM_PER_FIGURE_INCH)
-    height_in = width_in * (y1 - y0) / (x1 - x0)
-
-    fig = Figure(figsize=(width_in, height_in))
-    ax = fig.add_axes((0, 0, 1, 1))
-    ax.set_axis_off()
-    ax.set_xlim(x0, x1)
-    ax.set_ylim(y1, y0)
-    ax.set_aspect("equal")
+    fig, ax = _canvas(x0, x1, y0, y1)
 
     row = y0 + 8
     legend_altered = np.array([[x0 + 3, row], [x0 + 23, row]])
@@ -366,15 +370,9 @@ def block_svg(block: Block, markers: Sequence[Marker] = ()) -> str:
     x1 = float(every[:, 0].max()) + MARGIN_MM
     y0 = float(every[:, 1].min()) - LEGEND_ROOM_MM
     y1 = float(every[:, 1].max()) + MARGIN_MM
-    width_in = max(MIN_WIDTH_IN, (x1 - x0) / MM_PER_FIGURE_INCH)
     buf = io.BytesIO()
     with _RC_LOCK, matplotlib.rc_context(_RC):
-        fig = Figure(figsize=(width_in, width_in * (y1 - y0) / (x1 - x0)))
-        ax = fig.add_axes((0, 0, 1, 1))
-        ax.set_axis_off()
-        ax.set_xlim(x0, x1)
-        ax.set_ylim(y1, y0)
-        ax.set_aspect("equal")
+        fig, ax = _canvas(x0, x1, y0, y1)
         row = y0 + 8
         legend_stitch = np.array([[x0 + 3, row], [x0 + 23, row]])
         legend_cut = np.array([[x0 + 3, row + 12], [x0 + 23, row + 12]])
