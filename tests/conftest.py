@@ -1,7 +1,11 @@
 """Shared fixtures: staff users per role, signed-in test clients, the demo atelier."""
 
+import threading
+
 import pytest
 from django.contrib.auth.models import Group
+from django.core.servers.basehttp import ThreadedWSGIServer
+from django.test.testcases import LiveServerThread
 
 from atelier.roles import FITTER, OWNER, WORKROOM
 from fittings.models import Client
@@ -116,3 +120,29 @@ def plan(reducing_client, corset_12, fitter_user):
     return plan_services.start_plan(
         client=reducing_client, session=session, pattern=corset_12, garment="Daily corset", user=fitter_user
     )
+
+
+# --- the live server answers one request at a time ------------------------------------------------
+# Django's live server hands every request thread the test run's one in-memory SQLite connection; a
+# page whose htmx requests arrive together (a revision's preview, checks and fabric-layout card) then
+# used it from two threads at once (sqlite3.InterfaceError, a 500 the browser tests waited on).
+
+
+class _OneRequestAtATime(ThreadedWSGIServer):
+    _lock = threading.Lock()
+
+    def set_app(self, application):
+        def serial(environ, start_response):
+            with self._lock:
+                result = application(environ, start_response)
+                try:
+                    return [b"".join(result)]
+                finally:
+                    close = getattr(result, "close", None)
+                    if close is not None:
+                        close()
+
+        super().set_app(serial)
+
+
+LiveServerThread.server_class = _OneRequestAtATime
