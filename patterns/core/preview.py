@@ -82,6 +82,15 @@ SHORT_TEXT = {
 
 # SVG ids of the finding markers' parts (the labels go in under them).
 _MARKER_ID = "finding-marker-"
+# A finding's place: a warning-coloured triangle, outlined so it shows on any line.
+_MARKER_LOOK: dict[str, Any] = {
+    "linestyle": "none",
+    "marker": "^",
+    "markersize": 10,
+    "color": WARNING_COLOUR,
+    "markeredgecolor": TEXT_COLOUR,
+    "markeredgewidth": 0.8,
+}
 
 # rcParams are global: hold this while they are changed for one drawing.
 _RC_LOCK = threading.Lock()
@@ -331,17 +340,7 @@ def _draw_markers(ax, pattern: AlteredPattern, markers: Sequence[Marker]) -> Non
             bbox={"boxstyle": "round,pad=0.2", "facecolor": "white", "edgecolor": WARNING_COLOUR, "linewidth": 1.2},
         )
     if xs:
-        ax.plot(
-            xs,
-            ys,
-            linestyle="none",
-            marker="^",
-            markersize=10,
-            color=WARNING_COLOUR,
-            markeredgecolor=TEXT_COLOUR,
-            markeredgewidth=0.8,
-            gid=f"{_MARKER_ID}points",
-        )
+        ax.plot(xs, ys, **_MARKER_LOOK, gid=f"{_MARKER_ID}points")
 
 
 def _as_svg(draw: Callable[P, tuple[Figure, tuple[Label, ...]]]) -> Callable[P, str]:
