@@ -4,26 +4,28 @@ from django.db.models import Count
 from patterns.models import BasePattern, PanelLine, PatternLevel, PatternPanel, PatternSeam, SizeRun
 
 
-class PatternLevelInline(admin.TabularInline):
+class PartInline(admin.TabularInline):
+    """The rows of a pattern or a panel, shown in its page with no empty rows to fill."""
+
+    extra = 0
+
+
+class PatternLevelInline(PartInline):
     model = PatternLevel
-    extra = 0
 
 
-class PatternPanelInline(admin.TabularInline):
+class PatternPanelInline(PartInline):
     model = PatternPanel
-    extra = 0
     show_change_link = True
     fields = ["order", "name", "side", "cut_count", "on_fold"]
 
 
-class PatternSeamInline(admin.TabularInline):
+class PatternSeamInline(PartInline):
     model = PatternSeam
-    extra = 0
 
 
-class PanelLineInline(admin.TabularInline):
+class PanelLineInline(PartInline):
     model = PanelLine
-    extra = 0
 
 
 @admin.register(SizeRun)

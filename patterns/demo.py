@@ -12,19 +12,7 @@ adds the reduction or ease per level.
 from fractions import Fraction
 from pathlib import Path
 
-from patterns.core.block import (
-    BACK,
-    CB_LACED,
-    CB_SEAMED,
-    CF_BUSK,
-    CF_FOLD,
-    FRONT,
-    Block,
-    Level,
-    Panel,
-    Point,
-    Seam,
-)
+from patterns.core.block import BACK, CB_LACED, CB_SEAMED, CF_BUSK, CF_FOLD, FRONT, Block, Level, Panel, Point, Seam
 from patterns.core.units import MM_PER_INCH
 
 ATELIER_NAME = "Wrenfield Stays & Bodices"
@@ -160,6 +148,28 @@ def _panels(
     return tuple(panels)
 
 
+def _demo_block(
+    name: str,
+    size: str,
+    garment: str,
+    levels: tuple[Level, ...],
+    panels: tuple[Panel, ...],
+    seam_specs,
+    *,
+    centre_front: str = CF_BUSK,
+    centre_back: str = CB_LACED,
+    size_order: int = 0,
+) -> Block:
+    """A demo block with a seam (name, kind, levels it may move at) between each pair of neighbouring
+    panels; the demo sews with a 1.5 cm seam allowance and lets each raw edge move 1.5 cm at most."""
+    seams = tuple(
+        Seam(name=seam, kind=kind, front_panel=a.name, back_panel=b.name, alterable_at=at, cap_mm=15.0)
+        for (seam, kind, at), a, b in zip(seam_specs, panels, panels[1:])
+    )
+    # Every name here is the Block field it fills, in the field order.
+    return Block(name, size, garment, levels, panels, seams, centre_front, centre_back, 15.0, size_order)
+
+
 def corset_block(size: str) -> Block:
     body = CORSET_SIZES[size]
     order = list(CORSET_SIZES).index(size)
@@ -184,21 +194,8 @@ def corset_block(size: str) -> Block:
     bottom = [hip_y + 20, hip_y + 15, hip_y + 10, hip_y + 10, hip_y + 15, hip_y + 20, hip_y + 20]
     # Bound at top and bottom, as corsets usually are (common practice): no seam allowance there.
     panels = _panels(widths, levels, cf_fold=False, top=top, bottom=bottom, names=_CORSET_PANELS, bound=True)
-    seams = tuple(
-        Seam(name=name, kind=kind, front_panel=a.name, back_panel=b.name, alterable_at=at, cap_mm=15.0)
-        for (name, kind, at), a, b in zip(_CORSET_SEAMS, panels, panels[1:])
-    )
-    return Block(
-        name="Overbust corset, six panels",
-        size=size,
-        garment="overbust corset",
-        levels=levels,
-        panels=panels,
-        seams=seams,
-        centre_front=CF_BUSK,
-        centre_back=CB_LACED,
-        seam_allowance_mm=15.0,
-        size_order=order,
+    return _demo_block(
+        "Overbust corset, six panels", size, "overbust corset", levels, panels, _CORSET_SEAMS, size_order=order
     )
 
 
@@ -230,21 +227,15 @@ def bodice_block() -> Block:
         ("Side seam", "side", frozenset(("bust", "underbust", "waist", "abdomen"))),
         ("Back princess seam", "princess", frozenset(("bust", "underbust", "waist", "abdomen"))),
     )
-    seams = tuple(
-        Seam(name=name, kind=kind, front_panel=a.name, back_panel=b.name, alterable_at=at, cap_mm=15.0)
-        for (name, kind, at), a, b in zip(seam_specs, panels, panels[1:])
-    )
-    return Block(
-        name="Fitted evening bodice, four panels",
-        size="12",
-        garment="bodice",
-        levels=levels,
-        panels=panels,
-        seams=seams,
+    return _demo_block(
+        "Fitted evening bodice, four panels",
+        "12",
+        "bodice",
+        levels,
+        panels,
+        seam_specs,
         centre_front=CF_FOLD,
         centre_back=CB_SEAMED,
-        seam_allowance_mm=15.0,
-        size_order=0,
     )
 
 
@@ -273,6 +264,18 @@ def drawn_underbust_block() -> Block:
 
 
 # Invented clients.  Measurements in mm.
+_ODALYS_FIRST = {
+    "bust_girth": _in("39 1/2"),
+    "underbust_girth": _in("33"),
+    "waist_girth": _in("32"),
+    "abdomen_girth": _in("38"),
+    "hip_girth": _in("42"),
+    "bust_to_underbust": _in("3 1/2"),
+    "underbust_to_waist": _in("4 1/8"),
+    "waist_to_abdomen": _in("3 5/8"),
+    "waist_to_hip": _in("7 3/4"),
+    "bust_span": _in("7 1/2"),
+}
 DEMO_CLIENTS = (
     {
         "reference": "WF-0101",
@@ -311,35 +314,14 @@ DEMO_CLIENTS = (
                 "kind": "first",
                 "unit": "in",
                 "days_ago": 30,
-                "values": {
-                    "bust_girth": _in("39 1/2"),
-                    "underbust_girth": _in("33"),
-                    "waist_girth": _in("32"),
-                    "abdomen_girth": _in("38"),
-                    "hip_girth": _in("42"),
-                    "bust_to_underbust": _in("3 1/2"),
-                    "underbust_to_waist": _in("4 1/8"),
-                    "waist_to_abdomen": _in("3 5/8"),
-                    "waist_to_hip": _in("7 3/4"),
-                    "bust_span": _in("7 1/2"),
-                },
+                "values": _ODALYS_FIRST,
             },
             {
                 "kind": "toile",
                 "unit": "in",
                 "days_ago": 9,
-                "values": {
-                    "bust_girth": _in("39 3/8"),
-                    "underbust_girth": _in("33"),
-                    "waist_girth": _in("31 3/4"),
-                    "abdomen_girth": _in("38"),
-                    "hip_girth": _in("42"),
-                    "bust_to_underbust": _in("3 1/2"),
-                    "underbust_to_waist": _in("4 1/8"),
-                    "waist_to_abdomen": _in("3 5/8"),
-                    "waist_to_hip": _in("7 3/4"),
-                    "bust_span": _in("7 1/2"),
-                },
+                # At the toile fitting only the bust and waist had changed.
+                "values": {**_ODALYS_FIRST, "bust_girth": _in("39 3/8"), "waist_girth": _in("31 3/4")},
             },
         ],
     },

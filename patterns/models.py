@@ -132,6 +132,15 @@ class BasePattern(models.Model):
         return is_corset(self.garment)
 
 
+def numbered_in_pattern(part: str) -> list[models.BaseConstraint]:
+    """A pattern's panels and seams count 1, 2, ... from centre front, each number and name once per pattern."""
+    return [
+        models.UniqueConstraint(fields=["pattern", "order"], name=f"{part}_order_unique"),
+        models.UniqueConstraint(fields=["pattern", "name"], name=f"{part}_name_unique"),
+        models.CheckConstraint(condition=Q(order__gte=1), name=f"{part}_order_from_one"),
+    ]
+
+
 class PatternLevel(models.Model):
     """A horizontal level of the block (bust, waist, ...) at its height."""
 
@@ -182,9 +191,7 @@ class PatternPanel(models.Model):
     class Meta:
         ordering = ["pattern", "order"]
         constraints = [
-            models.UniqueConstraint(fields=["pattern", "order"], name="panel_order_unique"),
-            models.UniqueConstraint(fields=["pattern", "name"], name="panel_name_unique"),
-            models.CheckConstraint(condition=Q(order__gte=1), name="panel_order_from_one"),
+            *numbered_in_pattern("panel"),
             models.CheckConstraint(condition=Q(cut_count__gte=1), name="panel_cut_at_least_once"),
             models.CheckConstraint(condition=Q(side__in=PanelSide.values), name="panel_side_known"),
         ]
@@ -226,9 +233,7 @@ class PatternSeam(models.Model):
     class Meta:
         ordering = ["pattern", "order"]
         constraints = [
-            models.UniqueConstraint(fields=["pattern", "order"], name="seam_order_unique"),
-            models.UniqueConstraint(fields=["pattern", "name"], name="seam_name_unique"),
-            models.CheckConstraint(condition=Q(order__gte=1), name="seam_order_from_one"),
+            *numbered_in_pattern("seam"),
             models.CheckConstraint(condition=Q(cap_mm__gte=0), name="seam_cap_not_negative"),
             models.CheckConstraint(condition=Q(kind__in=core.SEAM_KINDS), name="seam_kind_known"),
         ]

@@ -13,6 +13,7 @@ plan's step, then any toile pin adjustments on top.
 
 import math
 from dataclasses import asdict, dataclass, field, replace
+from functools import partial
 
 from patterns.core.block import BACK, CB_LACED, FRONT, Alteration, Block, PanelShift
 from patterns.core.checks import input_findings, overshoot_finding, overshoots, shape_findings
@@ -33,13 +34,18 @@ class Body:
 
 
 @dataclass(frozen=True)
-class Override:
-    """A cell the fitter fixed by hand: one raw edge of one seam at one level."""
+class EdgeAmount:
+    """A shift of one raw edge of one seam (the edge on ``panel``) at one level: positive lets out."""
 
     seam: str
     level: str
     panel: str
     shift_mm: float
+
+
+@dataclass(frozen=True)
+class Override(EdgeAmount):
+    """A cell the fitter fixed by hand."""
 
 
 @dataclass(frozen=True)
@@ -96,13 +102,9 @@ class LevelResult:
 
 
 @dataclass(frozen=True)
-class EdgeShift:
-    """How far one raw edge moves at one level: positive lets out, negative takes in."""
+class EdgeShift(EdgeAmount):
+    """How far one raw edge moves at one level, everything together (pins included)."""
 
-    seam: str
-    level: str
-    panel: str
-    shift_mm: float  # everything together, pins included
     fixed: bool = False
     pin_mm: float = 0.0
 
@@ -266,20 +268,17 @@ def _allot_level(block, body, options, level, gap, cf_shift, fixed, panels):
     fixed_here = {k: v for k, v in fixed.items() if k[1] == level}
     out: dict[tuple[str, str, str], float] = dict(fixed_here)
 
+    level_result = partial(LevelResult, level=level, body=girth, ease=ease, lacing_gap=gap, pattern=pattern)
+
     if girth is None or girth <= 0 or not math.isfinite(girth):
-        result = LevelResult(
-            level=level,
-            body=girth,
-            ease=ease,
-            lacing_gap=gap,
+        unmeasured = level_result(
             target=None,
-            pattern=pattern,
             difference=None,
             centre_front=2 * cf_shift,
             allotted=2 * sum(fixed_here.values()),
             residual=None,
         )
-        return result, out, findings
+        return unmeasured, out, findings
 
     target = girth + ease - gap
     difference = target - pattern
@@ -389,13 +388,8 @@ def _allot_level(block, body, options, level, gap, cf_shift, fixed, panels):
     if FRONT in parts:
         front, back = parts[FRONT], parts[BACK]
     seam_change = sum(p.allotted for p in parts.values()) - 2 * cf_shift
-    result = LevelResult(
-        level=level,
-        body=girth,
-        ease=ease,
-        lacing_gap=gap,
+    result = level_result(
         target=target,
-        pattern=pattern,
         difference=difference,
         centre_front=_clean(2 * cf_shift),
         allotted=_clean(seam_change),

@@ -2,10 +2,13 @@
 
 Names follow ISO 8559-1 (anthropometric definitions for body measurement).
 Plausibility ranges only produce advice; the hard limits refuse what cannot
-be a human measurement at all.  Sources are named beside each figure.
+be a human measurement at all.  The catalogue lives in measures.toml, with the sources of its figures.
 """
 
+import tomllib
 from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
 
 
 @dataclass(frozen=True)
@@ -30,7 +33,7 @@ LEVEL_LABELS = {level.code: level.label for level in LEVELS}
 class MeasureDef:
     code: str
     label: str  # ISO 8559-1 name where the standard has one
-    kind: str  # "girth", "front_arc", "length", "span"
+    kind: str  # one of MEASURE_KINDS
     hint: str
     level: str | None = None
     # Advice range in mm: outside it the form shows a plausibility message.
@@ -41,163 +44,49 @@ class MeasureDef:
     between: tuple[str, str] | None = None
 
 
-# Advice ranges for girths: ANSUR II female (2012, public release) minimum
-# and maximum widened by 10 %, and NHANES 2017-2020 p95 for waist and hip,
-# so that real clients are never refused.  Underbust has no survey figure
-# here: its range is from memory (a band size 26-48 in).  Hard limits are
-# generous round numbers of our own.
-MEASURES: tuple[MeasureDef, ...] = (
-    MeasureDef(
-        "bust_girth",
-        "Bust girth",
-        "girth",
-        "Level round the fullest part of the bust, under the arms, breathing normally.",
-        level="bust",
-        plausible=(620, 1500),
-        limits=(300, 2500),
-    ),
-    MeasureDef(
-        "underbust_girth",
-        "Underbust girth",
-        "girth",
-        "Level round the ribcage just below the breasts, snug but not tight.",
-        level="underbust",
-        plausible=(600, 1300),
-        limits=(300, 2500),
-    ),
-    MeasureDef(
-        "waist_girth",
-        "Waist girth",
-        "girth",
-        "Round the natural waist, midway between the lowest rib and the top of the hip bone.",
-        level="waist",
-        plausible=(500, 1450),
-        limits=(300, 2500),
-    ),
-    MeasureDef(
-        "abdomen_girth",
-        "Abdomen girth (high hip)",
-        "girth",
-        "Level round the fullest part of the abdomen, about 10 cm below the waist.",
-        level="abdomen",
-        plausible=(600, 1500),
-        limits=(300, 2500),
-    ),
-    MeasureDef(
-        "hip_girth",
-        "Hip girth",
-        "girth",
-        "Level round the fullest part of the seat, feet together.",
-        level="hip",
-        plausible=(710, 1600),
-        limits=(300, 2500),
-    ),
-    MeasureDef(
-        "bust_front_arc",
-        "Bust front arc",
-        "front_arc",
-        "Across the front at bust level, from side seam line to side seam line.",
-        level="bust",
-        plausible=(300, 800),
-        limits=(100, 1300),
-    ),
-    MeasureDef(
-        "underbust_front_arc",
-        "Underbust front arc",
-        "front_arc",
-        "Across the front at underbust level, side to side.",
-        level="underbust",
-        plausible=(280, 700),
-        limits=(100, 1300),
-    ),
-    MeasureDef(
-        "waist_front_arc",
-        "Waist front arc",
-        "front_arc",
-        "Across the front at the waist, side to side.",
-        level="waist",
-        plausible=(230, 750),
-        limits=(100, 1300),
-    ),
-    MeasureDef(
-        "abdomen_front_arc",
-        "Abdomen front arc",
-        "front_arc",
-        "Across the front at abdomen level, side to side.",
-        level="abdomen",
-        plausible=(280, 800),
-        limits=(100, 1300),
-    ),
-    MeasureDef(
-        "hip_front_arc",
-        "Hip front arc",
-        "front_arc",
-        "Across the front at hip level, side to side.",
-        level="hip",
-        plausible=(320, 800),
-        limits=(100, 1300),
-    ),
-    MeasureDef(
-        "bust_to_underbust",
-        "Bust to underbust length",
-        "length",
-        "Straight down the front from the bust point to the underbust line.",
-        plausible=(40, 180),
-        limits=(10, 400),
-        between=("bust", "underbust"),
-    ),
-    MeasureDef(
-        "underbust_to_waist",
-        "Underbust to waist length",
-        "length",
-        "Down the side of the front, from the underbust line to the waist.",
-        plausible=(50, 200),
-        limits=(10, 400),
-        between=("underbust", "waist"),
-    ),
-    MeasureDef(
-        "waist_to_abdomen",
-        "Waist to abdomen length",
-        "length",
-        "Down the side from the waist to the abdomen level.",
-        plausible=(50, 160),
-        limits=(10, 400),
-        between=("waist", "abdomen"),
-    ),
-    MeasureDef(
-        "waist_to_hip",
-        "Waist to hip length",
-        "length",
-        "Down the side from the waist to the hip level.",
-        plausible=(140, 280),
-        limits=(30, 500),
-        between=("waist", "hip"),
-    ),
-    MeasureDef(
-        "centre_front_length",
-        "Centre front length",
-        "length",
-        "From the top of the breastbone straight down the centre front to the waist.",
-        plausible=(250, 450),
-        limits=(100, 800),
-    ),
-    MeasureDef(
-        "centre_back_length",
-        "Centre back waist length",
-        "length",
-        "From the nape of the neck down the spine to the waist.",
-        plausible=(330, 480),
-        limits=(100, 800),
-    ),
-    MeasureDef(
-        "bust_span",
-        "Bust point to bust point",
-        "span",
-        "Straight across from one bust point to the other.",
-        plausible=(140, 260),
-        limits=(50, 500),
-    ),
-)
+MEASURE_KINDS = ("girth", "front_arc", "length", "span")
+
+# The catalogue is data (with the sources of its figures beside them), kept in order of the form.
+MEASURES_FILE = Path(__file__).resolve().with_name("measures.toml")
+
+
+def _pair(row: dict[str, Any], key: str) -> tuple[Any, Any]:
+    value = row[key]
+    if not isinstance(value, list) or len(value) != 2:
+        raise ValueError(f"{MEASURES_FILE.name}: {row['code']}.{key} must be a pair, not {value!r}")
+    return (value[0], value[1])
+
+
+def load_measures(path: Path = MEASURES_FILE) -> tuple[MeasureDef, ...]:
+    """Read the measurement catalogue, refusing a level, kind or range the rest of the core would trip over."""
+    with path.open("rb") as handle:
+        rows = tomllib.load(handle)["measure"]
+    measures = []
+    for row in rows:
+        measure = MeasureDef(
+            code=row["code"],
+            label=row["label"],
+            kind=row["kind"],
+            hint=row["hint"],
+            level=row.get("level"),
+            plausible=_pair(row, "plausible"),
+            limits=_pair(row, "limits"),
+            between=_pair(row, "between") if "between" in row else None,
+        )
+        levels = [measure.level] if measure.level else []
+        levels += list(measure.between or ())
+        if measure.kind not in MEASURE_KINDS or any(level not in LEVEL_CODES for level in levels):
+            raise ValueError(f"{path.name}: {measure.code} names an unknown kind or level")
+        (lo, hi), (floor, ceiling) = measure.plausible, measure.limits
+        if not floor <= lo < hi <= ceiling:
+            raise ValueError(f"{path.name}: {measure.code} needs limits round its plausible range")
+        measures.append(measure)
+    if len({m.code for m in measures}) != len(measures):
+        raise ValueError(f"{path.name}: a measurement code stands twice")
+    return tuple(measures)
+
+
+MEASURES: tuple[MeasureDef, ...] = load_measures()
 MEASURE_BY_CODE = {m.code: m for m in MEASURES}
 GIRTH_BY_LEVEL = {m.level: m.code for m in MEASURES if m.kind == "girth" and m.level is not None}
 FRONT_ARC_BY_LEVEL = {m.level: m.code for m in MEASURES if m.kind == "front_arc" and m.level is not None}

@@ -20,7 +20,7 @@ import re
 import threading
 from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass
-from typing import Any
+from typing import Any, ParamSpec
 from xml.sax.saxutils import escape
 
 import matplotlib
@@ -82,6 +82,15 @@ SHORT_TEXT = {
 
 # SVG ids of the finding markers' parts (the labels go in under them).
 _MARKER_ID = "finding-marker-"
+# A finding's place: a warning-coloured triangle, outlined so it shows on any line.
+_MARKER_LOOK: dict[str, Any] = {
+    "linestyle": "none",
+    "marker": "^",
+    "markersize": 10,
+    "color": WARNING_COLOUR,
+    "markeredgecolor": TEXT_COLOUR,
+    "markeredgewidth": 0.8,
+}
 
 # rcParams are global: hold this while they are changed for one drawing.
 _RC_LOCK = threading.Lock()
@@ -94,6 +103,7 @@ _RC: dict[RcKeyType, Any] = {
 }
 
 Marker = tuple[str | None, "str | float | None", str]
+P = ParamSpec("P")
 
 # Where the baseline sits for a label aligned at its top or middle, in ems of
 # its size: DejaVu Sans capitals stand 0.73 em tall (the font's own metrics,
@@ -154,16 +164,67 @@ def _segments(outlines) -> list[np.ndarray]:
     return [np.asarray(o.stitch + o.stitch[:1]) for o in outlines]
 
 
-def _canvas(x0: float, x1: float, y0: float, y1: float):
-    """A figure and axes drawing the box (x0, y0)-(x1, y1) in mm at true proportion, y downwards."""
-    width_in = max(MIN_WIDTH_IN, (x1 - x0) / MM_PER_FIGURE_INCH)
-    fig = Figure(figsize=(width_in, width_in * (y1 - y0) / (x1 - x0)))
-    ax = fig.add_axes((0, 0, 1, 1))
-    ax.set_axis_off()
-    ax.set_xlim(x0, x1)
-    ax.set_ylim(y1, y0)
-    ax.set_aspect("equal")
-    return fig, ax
+@dataclass(frozen=True)
+class _Frame:
+    """The figure round a drawing at true proportion, y downwards, with room for the level names on the
+    left and for the legend above."""
+
+    fig: Figure
+    ax: Any
+    x0: float
+    x1: float
+    y0: float
+    level_names: dict[str, str]
+
+    @classmethod
+    def around(cls, pattern: AlteredPattern, drawn: list[np.ndarray]) -> _Frame:
+        every = np.concatenate(drawn)
+        level_names = {name: LEVEL_LABELS.get(name, name) for name in pattern.level_y}
+        room = max(map(len, level_names.values()), default=0) * _EM * LABEL_FONT_PT / 72 * MM_PER_FIGURE_INCH
+        x0 = float(every[:, 0].min()) - room - MARGIN_MM
+        x1 = float(every[:, 0].max()) + MARGIN_MM
+        y0 = float(every[:, 1].min()) - LEGEND_ROOM_MM
+        y1 = float(every[:, 1].max()) + MARGIN_MM
+        width_in = max(MIN_WIDTH_IN, (x1 - x0) / MM_PER_FIGURE_INCH)
+        fig = Figure(figsize=(width_in, width_in * (y1 - y0) / (x1 - x0)))
+        ax = fig.add_axes((0, 0, 1, 1))
+        ax.set_axis_off()
+        ax.set_xlim(x0, x1)
+        ax.set_ylim(y1, y0)
+        ax.set_aspect("equal")
+        return cls(fig, ax, x0, x1, y0, level_names)
+
+    @property
+    def legend_row(self) -> float:
+        return self.y0 + 8
+
+    def lines(self, solid: list[np.ndarray], dashed: list[np.ndarray], dashed_colour: str, dashed_width: float) -> None:
+        """The two kinds of outline, each with its sample in the legend: solid in the first row, dashed below."""
+        x0, row = self.x0, self.legend_row
+        sample_solid = np.array([[x0 + 3, row], [x0 + 23, row]])
+        sample_dashed = np.array([[x0 + 3, row + 12], [x0 + 23, row + 12]])
+        self.ax.add_collection(
+            LineCollection(
+                dashed + [sample_dashed], colors=dashed_colour, linewidths=dashed_width, linestyles=(0, (4, 2.5))
+            )
+        )
+        self.ax.add_collection(LineCollection(solid + [sample_solid], colors=ALTERED_COLOUR, linewidths=1.8))
+
+    def legend(self, solid_text: str, dashed_text: str) -> list[Label]:
+        x, row = self.x0 + 26, self.legend_row
+        return [
+            Label(x, row, solid_text, LABEL_FONT_PT, va="center"),
+            Label(x, row + 12, dashed_text, LABEL_FONT_PT, va="center"),
+        ]
+
+    def level_lines(self, level_y: dict[str, float]) -> list[Label]:
+        """A dotted line across the drawing at every level, and its name above it on the left."""
+        x0, x1 = self.x0, self.x1
+        across = [np.array([[x0 + 2, y], [x1 - 2, y]]) for y in level_y.values()]
+        self.ax.add_collection(LineCollection(across, colors=LEVEL_COLOUR, linewidths=0.8, linestyles=(0, (1, 2))))
+        return [
+            Label(x0 + 3, y - 1.5, self.level_names[name], LABEL_FONT_PT, va="bottom") for name, y in level_y.items()
+        ]
 
 
 def build_figure(
@@ -184,28 +245,14 @@ def build_figure(
     pattern = pattern or alter_pattern(block, alteration)
     fmt = formatter or shift_formatter(unit)
     base, altered = _segments(pattern.base), _segments(pattern.altered)
-    every = np.concatenate(base + altered)
-    level_names = {name: LEVEL_LABELS.get(name, name) for name in pattern.level_y}
-    room = max(map(len, level_names.values()), default=0) * _EM * LABEL_FONT_PT / 72 * MM_PER_FIGURE_INCH
-    x0 = float(every[:, 0].min()) - room - MARGIN_MM
-    x1 = float(every[:, 0].max()) + MARGIN_MM
-    y0 = float(every[:, 1].min()) - LEGEND_ROOM_MM
-    y1 = float(every[:, 1].max()) + MARGIN_MM
-    fig, ax = _canvas(x0, x1, y0, y1)
-
-    row = y0 + 8
-    legend_altered = np.array([[x0 + 3, row], [x0 + 23, row]])
-    legend_base = np.array([[x0 + 3, row + 12], [x0 + 23, row + 12]])
-    ax.add_collection(
-        LineCollection(base + [legend_base], colors=BASE_COLOUR, linewidths=1.2, linestyles=(0, (4, 2.5)))
-    )
-    ax.add_collection(LineCollection(altered + [legend_altered], colors=ALTERED_COLOUR, linewidths=1.8))
-    labels = [
-        Label(x0 + 26, row, "altered", LABEL_FONT_PT, va="center"),
-        Label(x0 + 26, row + 12, "base pattern", LABEL_FONT_PT, va="center"),
+    frame = _Frame.around(pattern, base + altered)
+    x0 = frame.x0
+    frame.lines(altered, base, BASE_COLOUR, 1.2)
+    labels = frame.legend("altered", "base pattern")
+    labels.append(
         Label(
             x0 + 110,
-            row,
+            frame.legend_row,
             (
                 f"Shifts in {unit}: + widens the panel at that edge, or lowers a level."
                 if amounts
@@ -213,13 +260,10 @@ def build_figure(
             ),
             LABEL_FONT_PT,
             va="center",
-        ),
-    ]
-
-    level_lines = [np.array([[x0 + 2, y], [x1 - 2, y]]) for y in pattern.level_y.values()]
-    ax.add_collection(LineCollection(level_lines, colors=LEVEL_COLOUR, linewidths=0.8, linestyles=(0, (1, 2))))
-    for name, y in pattern.level_y.items():
-        labels.append(Label(x0 + 3, y - 1.5, level_names[name], LABEL_FONT_PT, va="bottom"))
+        )
+    )
+    for name_label, (name, y) in zip(frame.level_lines(pattern.level_y), pattern.level_y.items()):
+        labels.append(name_label)
         moved = _label_text(fmt, y - pattern.base_level_y[name]) if amounts else ""
         if moved:
             labels.append(Label(x0 + 3, y + 1.5, f"moved {moved}", SHIFT_FONT_PT, va="top"))
@@ -245,8 +289,8 @@ def build_figure(
                 else:
                     labels.append(Label(x - 2, y + 1.5, text, SHIFT_FONT_PT, ha="right", va="top"))
 
-    _draw_markers(ax, pattern, markers)
-    return fig, tuple(labels)
+    _draw_markers(frame.ax, pattern, markers)
+    return frame.fig, tuple(labels)
 
 
 def _points_at_levels(outline, edge):
@@ -296,38 +340,28 @@ def _draw_markers(ax, pattern: AlteredPattern, markers: Sequence[Marker]) -> Non
             bbox={"boxstyle": "round,pad=0.2", "facecolor": "white", "edgecolor": WARNING_COLOUR, "linewidth": 1.2},
         )
     if xs:
-        ax.plot(
-            xs,
-            ys,
-            linestyle="none",
-            marker="^",
-            markersize=10,
-            color=WARNING_COLOUR,
-            markeredgecolor=TEXT_COLOUR,
-            markeredgewidth=0.8,
-            gid=f"{_MARKER_ID}points",
-        )
+        ax.plot(xs, ys, **_MARKER_LOOK, gid=f"{_MARKER_ID}points")
 
 
-def preview_svg(
-    block: Block,
-    alteration: Alteration,
-    markers: Sequence[Marker] = (),
-    unit: str = "cm",
-    formatter: Callable[[float], str] | None = None,
-    pattern: AlteredPattern | None = None,
-    amounts: bool = True,
-) -> str:
-    """The preview as SVG text; the same input gives the same bytes."""
-    buf = io.BytesIO()
-    with _RC_LOCK, matplotlib.rc_context(_RC):
-        fig, labels = build_figure(block, alteration, markers, unit, formatter, pattern, amounts)
-        FigureCanvasSVG(fig).print_svg(buf, metadata={"Date": None})
-    svg = buf.getvalue().decode("utf-8")
-    # Under the markers, which must stay readable over everything.
-    at = svg.find(f'<g id="{_MARKER_ID}')
-    at = svg.rindex("</svg>") if at < 0 else at
-    return svg[:at] + _labels_svg(fig, labels) + svg[at:]
+def _as_svg(draw: Callable[P, tuple[Figure, tuple[Label, ...]]]) -> Callable[P, str]:
+    """``draw``'s figure as SVG text, its labels written in under the markers (which must stay readable over
+    everything); the same input gives the same bytes."""
+
+    def svg(*args: P.args, **kwargs: P.kwargs) -> str:
+        buf = io.BytesIO()
+        with _RC_LOCK, matplotlib.rc_context(_RC):
+            fig, labels = draw(*args, **kwargs)
+            FigureCanvasSVG(fig).print_svg(buf, metadata={"Date": None})
+        text = buf.getvalue().decode("utf-8")
+        at = text.find(f'<g id="{_MARKER_ID}')
+        at = text.rindex("</svg>") if at < 0 else at
+        return text[:at] + _labels_svg(fig, labels) + text[at:]
+
+    svg.__doc__ = f"The figure of ``{draw.__name__}`` as SVG text."
+    return svg
+
+
+preview_svg = _as_svg(build_figure)
 
 
 _ANCHOR = {"left": "start", "center": "middle", "right": "end"}
@@ -356,59 +390,34 @@ def _labels_svg(fig: Figure, labels: Sequence[Label]) -> str:
 CUTTING_COLOUR = OKABE_ITO["bluish_green"]
 
 
-def block_svg(block: Block, markers: Sequence[Marker] = ()) -> str:
+def _block_figure(block: Block, markers: Sequence[Marker] = ()) -> tuple[Figure, tuple[Label, ...]]:
     """A base pattern as drawn while it is typed in: stitch lines solid, cutting lines dashed
-    (they meet the stitch line along a bound edge or a fold), levels, grainlines and names.
-    The same input gives the same bytes."""
+    (they meet the stitch line along a bound edge or a fold), levels, grainlines and names."""
     pattern = alter_pattern(block, Alteration(shifts={}))
     stitch = _segments(pattern.base)
     cutting = [np.asarray(o.cutting + o.cutting[:1]) for o in pattern.base]
-    every = np.concatenate(stitch + cutting)
-    level_names = {name: LEVEL_LABELS.get(name, name) for name in pattern.level_y}
-    room = max(map(len, level_names.values()), default=0) * _EM * LABEL_FONT_PT / 72 * MM_PER_FIGURE_INCH
-    x0 = float(every[:, 0].min()) - room - MARGIN_MM
-    x1 = float(every[:, 0].max()) + MARGIN_MM
-    y0 = float(every[:, 1].min()) - LEGEND_ROOM_MM
-    y1 = float(every[:, 1].max()) + MARGIN_MM
-    buf = io.BytesIO()
-    with _RC_LOCK, matplotlib.rc_context(_RC):
-        fig, ax = _canvas(x0, x1, y0, y1)
-        row = y0 + 8
-        legend_stitch = np.array([[x0 + 3, row], [x0 + 23, row]])
-        legend_cut = np.array([[x0 + 3, row + 12], [x0 + 23, row + 12]])
-        ax.add_collection(
-            LineCollection(cutting + [legend_cut], colors=CUTTING_COLOUR, linewidths=1.0, linestyles=(0, (4, 2.5)))
-        )
-        ax.add_collection(LineCollection(stitch + [legend_stitch], colors=ALTERED_COLOUR, linewidths=1.8))
-        grains = [np.asarray(o.grainline) for o in pattern.base]
-        ax.add_collection(LineCollection(grains, colors=TEXT_COLOUR, linewidths=0.8))
-        level_lines = [np.array([[x0 + 2, y], [x1 - 2, y]]) for y in pattern.level_y.values()]
-        ax.add_collection(LineCollection(level_lines, colors=LEVEL_COLOUR, linewidths=0.8, linestyles=(0, (1, 2))))
-        labels = [
-            Label(x0 + 26, row, "stitch line", LABEL_FONT_PT, va="center"),
-            Label(
-                x0 + 26,
-                row + 12,
-                f"cutting line ({block.seam_allowance_mm / 10:g} cm seam allowance; none along a bound edge or a fold)",
-                LABEL_FONT_PT,
-                va="center",
-            ),
-        ]
-        for name, y in pattern.level_y.items():
-            labels.append(Label(x0 + 3, y - 1.5, level_names[name], LABEL_FONT_PT, va="bottom"))
-        for outline, panel in zip(pattern.base, block.panels):
-            top = min(y for _, y in outline.cutting)
-            centre = 0.5 * (outline.left_line[0][0] + outline.right_line[0][0])
-            labels.append(Label(centre, top - 3, outline.name, LABEL_FONT_PT, ha="center", va="bottom", bold=True))
-            bound = [edge for edge, on in (("top", panel.top_bound), ("bottom", panel.bottom_bound)) if on]
-            (gx, gy0), (_, gy1) = outline.grainline
-            middle = 0.5 * (gy0 + gy1)
-            labels.append(Label(gx + 2, middle - 2, outline.labels[-1], SHIFT_FONT_PT, va="bottom"))
-            if bound:
-                labels.append(Label(gx + 2, middle + 2, "bound " + ", ".join(bound), SHIFT_FONT_PT, va="top"))
-        _draw_markers(ax, pattern, markers)
-        FigureCanvasSVG(fig).print_svg(buf, metadata={"Date": None})
-    svg = buf.getvalue().decode("utf-8")
-    at = svg.find(f'<g id="{_MARKER_ID}')
-    at = svg.rindex("</svg>") if at < 0 else at
-    return svg[:at] + _labels_svg(fig, labels) + svg[at:]
+    frame = _Frame.around(pattern, stitch + cutting)
+    frame.lines(stitch, cutting, CUTTING_COLOUR, 1.0)
+    grains = [np.asarray(o.grainline) for o in pattern.base]
+    frame.ax.add_collection(LineCollection(grains, colors=TEXT_COLOUR, linewidths=0.8))
+    level_labels = frame.level_lines(pattern.level_y)
+    labels = frame.legend(
+        "stitch line",
+        f"cutting line ({block.seam_allowance_mm / 10:g} cm seam allowance; none along a bound edge or a fold)",
+    )
+    labels += level_labels
+    for outline, panel in zip(pattern.base, block.panels):
+        top = min(y for _, y in outline.cutting)
+        centre = 0.5 * (outline.left_line[0][0] + outline.right_line[0][0])
+        labels.append(Label(centre, top - 3, outline.name, LABEL_FONT_PT, ha="center", va="bottom", bold=True))
+        bound = [edge for edge, on in (("top", panel.top_bound), ("bottom", panel.bottom_bound)) if on]
+        (gx, gy0), (_, gy1) = outline.grainline
+        middle = 0.5 * (gy0 + gy1)
+        labels.append(Label(gx + 2, middle - 2, outline.labels[-1], SHIFT_FONT_PT, va="bottom"))
+        if bound:
+            labels.append(Label(gx + 2, middle + 2, "bound " + ", ".join(bound), SHIFT_FONT_PT, va="top"))
+    _draw_markers(frame.ax, pattern, markers)
+    return frame.fig, tuple(labels)
+
+
+block_svg = _as_svg(_block_figure)

@@ -103,18 +103,14 @@ class Tile:
     height_mm: float
 
 
-@dataclass(frozen=True)
-class TileGrid:
-    paper: PaperSize
+@dataclass(frozen=True, kw_only=True)
+class PrintedPage:
+    """A page as it is printed: its size in its orientation, and the area inside its margins."""
+
     orientation: str
     page_width_mm: float
     page_height_mm: float
     margin_mm: float
-    overlap_mm: float
-    sheet_width_mm: float
-    sheet_height_mm: float
-    rows: int
-    columns: int
 
     @property
     def printable_width_mm(self) -> float:
@@ -123,6 +119,16 @@ class TileGrid:
     @property
     def printable_height_mm(self) -> float:
         return self.page_height_mm - 2 * self.margin_mm
+
+
+@dataclass(frozen=True, kw_only=True)
+class TileGrid(PrintedPage):
+    paper: PaperSize
+    overlap_mm: float
+    sheet_width_mm: float
+    sheet_height_mm: float
+    rows: int
+    columns: int
 
     @property
     def step_x_mm(self) -> float:
@@ -261,23 +267,11 @@ def shelf_rows(
     return offsets, used_w, (y + row_h if sizes else 0.0)
 
 
-@dataclass(frozen=True)
-class LargeSheet:
+@dataclass(frozen=True, kw_only=True)
+class LargeSheet(PrintedPage):
     format: LargeFormat
-    orientation: str
-    page_width_mm: float
-    page_height_mm: float
-    margin_mm: float
     header_mm: float  # room at the top of the printable area for the title and test squares
     offsets: tuple[tuple[float, float], ...]  # each box's top-left, in the printable area
-
-    @property
-    def printable_width_mm(self) -> float:
-        return self.page_width_mm - 2 * self.margin_mm
-
-    @property
-    def printable_height_mm(self) -> float:
-        return self.page_height_mm - 2 * self.margin_mm
 
 
 def large_sheet(
@@ -296,18 +290,22 @@ def large_sheet(
     """
     if isinstance(fmt, str):
         fmt = large_format(fmt)
+
+    def sheet(orientation: str, page_w: float, page_h: float, offsets: list[tuple[float, float]]) -> LargeSheet:
+        return LargeSheet(
+            format=fmt,
+            orientation=orientation,
+            page_width_mm=page_w,
+            page_height_mm=page_h,
+            margin_mm=margin_mm,
+            header_mm=header_mm,
+            offsets=tuple((x, header_mm + gap_mm + y) for x, y in offsets),
+        )
+
     if fmt.height_mm is None:
         offsets, _, used_h = shelf_rows(sizes, fmt.width_mm - 2 * margin_mm, gap_mm)
         length = math.ceil(header_mm + gap_mm + used_h + 2 * margin_mm - 1e-9)
-        return LargeSheet(
-            fmt,
-            PORTRAIT,
-            fmt.width_mm,
-            float(length),
-            margin_mm,
-            header_mm,
-            tuple((x, header_mm + gap_mm + y) for x, y in offsets),
-        )
+        return sheet(PORTRAIT, fmt.width_mm, float(length), offsets)
     for orientation in (PORTRAIT, LANDSCAPE):
         page_w, page_h = page_size(PaperSize(fmt.code, fmt.label, fmt.width_mm, fmt.height_mm), orientation)
         try:
@@ -315,13 +313,5 @@ def large_sheet(
         except TilingError:
             continue
         if header_mm + gap_mm + used_h <= page_h - 2 * margin_mm + 1e-9:
-            return LargeSheet(
-                fmt,
-                orientation,
-                page_w,
-                page_h,
-                margin_mm,
-                header_mm,
-                tuple((x, header_mm + gap_mm + y) for x, y in offsets),
-            )
+            return sheet(orientation, page_w, page_h, offsets)
     raise TilingError(f"The pieces do not fit on one {fmt.label.split(',')[0]} sheet; print them on a plotter roll.")
