@@ -214,14 +214,7 @@ class SessionForm(UnitFormMixin, forms.Form):
 
     @classmethod
     def initial_for(cls, session: MeasurementSession):
-        initial = {
-            "taken_on": session.taken_on,
-            "kind": session.kind,
-            "unit": session.unit,
-            "posture_notes": session.posture_notes,
-            "notes": session.notes,
-            "version": session.version,
-        }
+        initial = {name: getattr(session, name) for name in (*session.ENTERED_FIELDS, "version")}
         for m in session.measurements.all():
             initial[m.code] = format_exact(m.value_mm, session.unit)
         return initial

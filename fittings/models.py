@@ -118,6 +118,9 @@ class MeasurementSession(models.Model):
             models.CheckConstraint(condition=Q(version__gte=1), name="session_version_from_one"),
         ]
 
+    # What the fitter types for a sitting besides the readings: saved, shown back and audited alike.
+    ENTERED_FIELDS = ("taken_on", "kind", "unit", "posture_notes", "notes")
+
     def __str__(self):
         return f"{self.get_kind_display()}, {self.taken_on}"
 
