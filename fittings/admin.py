@@ -1,17 +1,10 @@
 from django.contrib import admin, messages
 from django.db.models import Count
 from django.urls import reverse
-from django.utils.html import format_html
+from django.utils.html import format_html, format_html_join
 
-from fittings.models import (
-    Client,
-    Measurement,
-    MeasurementSession,
-    Photo,
-    PinAdjustment,
-    Plan,
-    PlanRevision,
-)
+from fittings import models
+from fittings.printing.registry import DOCUMENTS
 from fittings.services import clients as client_services
 
 
@@ -28,7 +21,7 @@ class ReadOnlyAdmin(admin.ModelAdmin):
         return False
 
 
-@admin.register(Client)
+@admin.register(models.Client)
 class ClientAdmin(ReadOnlyAdmin):
     """Clients are added and changed in the app, where every change is audited and version-checked;
     here the owner finds them, removed ones included, and removes or restores them through the same
@@ -42,7 +35,7 @@ class ClientAdmin(ReadOnlyAdmin):
 
     def get_queryset(self, request):
         # Deleted clients stay visible here so the owner can restore them.
-        return Client.all_objects.annotate(session_count=Count("sessions"))
+        return models.Client.all_objects.annotate(session_count=Count("sessions"))
 
     def has_manage_permission(self, request):
         return request.user.is_superuser
@@ -53,21 +46,23 @@ class ClientAdmin(ReadOnlyAdmin):
 
     @admin.action(description="Mark the selected clients as deleted", permissions=["manage"])
     def mark_deleted(self, request, queryset):
-        clients = list(queryset.filter(is_deleted=False))
-        for client in clients:
-            client_services.soft_delete_client(client=client, user=request.user)
-        self.message_user(request, f"{len(clients)} client(s) marked as deleted.", messages.SUCCESS)
+        self._each(request, queryset.filter(is_deleted=False), client_services.soft_delete_client, "marked as deleted")
 
     @admin.action(description="Restore the selected clients", permissions=["manage"])
     def restore(self, request, queryset):
-        clients = list(queryset.filter(is_deleted=True))
+        self._each(request, queryset.filter(is_deleted=True), client_services.restore_client, "restored")
+
+    def _each(self, request, queryset, service, done: str):
+        """One service call per client, so each change is audited as it is in the app."""
+        clients = list(queryset)
         for client in clients:
-            client_services.restore_client(client=client, user=request.user)
-        self.message_user(request, f"{len(clients)} client(s) restored.", messages.SUCCESS)
+            service(client=client, user=request.user)
+        self.message_user(request, f"{len(clients)} client(s) {done}.", messages.SUCCESS)
 
 
-class MeasurementInline(admin.TabularInline):
-    model = Measurement
+class ReadOnlyInline(admin.TabularInline):
+    """The rows a record holds, listed under it and never added, changed or deleted there."""
+
     extra = 0
     can_delete = False
 
@@ -78,7 +73,11 @@ class MeasurementInline(admin.TabularInline):
         return False
 
 
-@admin.register(MeasurementSession)
+class MeasurementInline(ReadOnlyInline):
+    model = models.Measurement
+
+
+@admin.register(models.MeasurementSession)
 class MeasurementSessionAdmin(ReadOnlyAdmin):
     list_display = ["client", "taken_on", "kind", "unit", "measured_by", "version"]
     list_filter = ["kind", "unit", "taken_on"]
@@ -90,20 +89,23 @@ class MeasurementSessionAdmin(ReadOnlyAdmin):
     inlines = [MeasurementInline]
 
 
-@admin.register(Measurement)
-class MeasurementAdmin(ReadOnlyAdmin):
+class SessionPartAdmin(ReadOnlyAdmin):
+    """What a session holds (readings, photos): found by the client's reference or name."""
+
+    search_fields = ["session__client__reference", "session__client__name"]
+    list_select_related = ["session", "session__client"]
+
+
+@admin.register(models.Measurement)
+class MeasurementAdmin(SessionPartAdmin):
     list_display = ["session", "code", "value_mm"]
     list_filter = ["code"]
-    search_fields = ["session__client__reference", "session__client__name"]
-    list_select_related = ["session", "session__client"]
 
 
-@admin.register(Photo)
-class PhotoAdmin(ReadOnlyAdmin):
+@admin.register(models.Photo)
+class PhotoAdmin(SessionPartAdmin):
     list_display = ["session", "view", "taken_at"]
     list_filter = ["view"]
-    search_fields = ["session__client__reference", "session__client__name"]
-    list_select_related = ["session", "session__client"]
 
     def get_fields(self, request, obj=None):
         # A photo, once taken, is a record: show it through the private view.
@@ -117,22 +119,14 @@ class PhotoAdmin(ReadOnlyAdmin):
         return format_html('<a href="{}">Open the photo</a>', reverse("fittings:photo_file", args=[photo.pk]))
 
 
-class PlanRevisionInline(admin.TabularInline):
-    model = PlanRevision
-    extra = 0
+class PlanRevisionInline(ReadOnlyInline):
+    model = models.PlanRevision
     fields = ["number", "status", "based_on", "author", "created_at", "issued_at", "issued_by"]
     readonly_fields = fields
-    can_delete = False
     show_change_link = True
 
-    def has_add_permission(self, request, obj=None):
-        return False
 
-    def has_change_permission(self, request, obj=None):
-        return False
-
-
-@admin.register(Plan)
+@admin.register(models.Plan)
 class PlanAdmin(ReadOnlyAdmin):
     list_display = ["garment", "client", "base_pattern", "session", "created_by", "created_at", "version"]
     list_filter = ["base_pattern__garment", "created_at"]
@@ -143,7 +137,7 @@ class PlanAdmin(ReadOnlyAdmin):
     inlines = [PlanRevisionInline]
 
 
-@admin.register(PlanRevision)
+@admin.register(models.PlanRevision)
 class PlanRevisionAdmin(ReadOnlyAdmin):
     """Read only: revisions are made and issued by the app, never edited."""
 
@@ -153,7 +147,7 @@ class PlanRevisionAdmin(ReadOnlyAdmin):
     list_select_related = ["plan", "plan__client", "author"]
 
 
-@admin.register(PinAdjustment)
+@admin.register(models.PinAdjustment)
 class PinAdjustmentAdmin(ReadOnlyAdmin):
     list_display = ["revision", "seam", "level", "amount_mm", "created_by", "created_at"]
     list_filter = ["level", "created_at"]
@@ -161,13 +155,7 @@ class PinAdjustmentAdmin(ReadOnlyAdmin):
     list_select_related = ["revision", "revision__plan", "revision__plan__client", "created_by"]
 
 
-from django.utils.html import format_html_join  # noqa: E402  (printing, appended below)
-
-from fittings.models import PrintJob  # noqa: E402
-from fittings.printing.registry import DOCUMENTS  # noqa: E402
-
-
-@admin.register(PrintJob)
+@admin.register(models.PrintJob)
 class PrintJobAdmin(ReadOnlyAdmin):
     """Read only: jobs are made by printing from the app, and their files are served by the app."""
 
@@ -191,12 +179,6 @@ class PrintJobAdmin(ReadOnlyAdmin):
     ]
     readonly_fields = fields
 
-    def has_add_permission(self, request):
-        return False
-
-    def has_change_permission(self, request, obj=None):
-        return False
-
     @admin.display(description="Files")
     def downloads(self, job):
         links = [
@@ -212,10 +194,8 @@ class PrintJobAdmin(ReadOnlyAdmin):
 
 # --- audit trail (read only) ------------------------------------------------------------
 
-from fittings.models import AuditEntry  # noqa: E402
 
-
-@admin.register(AuditEntry)
+@admin.register(models.AuditEntry)
 class AuditEntryAdmin(ReadOnlyAdmin):
     """Read only: entries are written by the app's services and kept as written."""
 

@@ -7,7 +7,7 @@ blanks the personal parts of the entries that mention that client
 (``fittings.services.client_records.erase_client``).
 """
 
-from fittings.models import AuditAction, AuditEntry
+from fittings.models import AuditAction, AuditEntry, Client, MeasurementSession, Photo, Plan, PlanRevision
 
 CREATE = AuditAction.CREATE
 CHANGE = AuditAction.CHANGE
@@ -18,6 +18,15 @@ ERASE = AuditAction.ERASE
 EXPORT = AuditAction.EXPORT
 
 SUMMARY_MAX = 500
+
+# What an entry calls each kind of row, and how to reach the client whose records the row is part of.
+ROW_KINDS = {
+    Client: ("client", lambda client: client),
+    MeasurementSession: ("session", lambda session: session.client),
+    Photo: ("photo", lambda photo: photo.session.client),
+    Plan: ("plan", lambda plan: plan.client),
+    PlanRevision: ("revision", lambda revision: revision.plan.client),
+}
 
 
 def _who(user, actor):
@@ -31,7 +40,8 @@ def record(
     *,
     user,
     action,
-    object_type: str,
+    row=None,
+    object_type: str = "",
     object_id="",
     client=None,
     client_reference: str = "",
@@ -40,8 +50,15 @@ def record(
     after=None,
     actor: str = "",
 ) -> AuditEntry:
-    """Add one entry.  ``client`` (or ``client_reference``) says whose records these are."""
+    """Add one entry.  ``client`` (or ``client_reference``) says whose records these are.
+
+    ``row``, one stored row of a client's records, gives the kind, id and client at once
+    (``object_type`` still names the kind where the entry is about part of the row).
+    """
     linked, username = _who(user, actor)
+    if row is not None:
+        kind, owner = ROW_KINDS[type(row)]
+        object_type, object_id, client = object_type or kind, row.pk, owner(row)
     if client is not None and not client_reference:
         client_reference = client.reference
     return AuditEntry.objects.create(
@@ -57,14 +74,17 @@ def record(
     )
 
 
+CLIENT_FIELDS = ("reference", "name", "contact", "notes", "consent_given_on")
+
+
+def fields_of(row, names) -> dict:
+    return {name: getattr(row, name) for name in names}
+
+
 def session_snapshot(session) -> dict:
     """Everything a fitter entered in a session, read fresh from the database (mm as strings)."""
     return {
-        "taken_on": session.taken_on,
-        "kind": session.kind,
-        "unit": session.unit,
-        "posture_notes": session.posture_notes,
-        "notes": session.notes,
+        **fields_of(session, MeasurementSession.ENTERED_FIELDS),
         "version": session.version,
         "measurements_mm": {
             code: str(value) for code, value in session.measurements.order_by("code").values_list("code", "value_mm")
@@ -74,11 +94,4 @@ def session_snapshot(session) -> dict:
 
 
 def client_snapshot(client) -> dict:
-    return {
-        "reference": client.reference,
-        "name": client.name,
-        "contact": client.contact,
-        "notes": client.notes,
-        "consent_given_on": client.consent_given_on,
-        "is_deleted": client.is_deleted,
-    }
+    return {**fields_of(client, CLIENT_FIELDS), "is_deleted": client.is_deleted}

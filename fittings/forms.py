@@ -136,6 +136,13 @@ class UnitFormMixin:
             if isinstance(field, LengthField):
                 field.unit = self.unit
 
+    def add_level_lengths(self, levels, name: str, label: str, **options):
+        """A signed length per level; ``name`` and ``label`` take the level's code and its label at ``{}``."""
+        for level in levels:
+            self.fields[name.format(level)] = LengthField(
+                label=label.format(LEVEL_LABELS[level]), signed=True, **options
+            )
+
 
 class ClientForm(forms.ModelForm):
     class Meta:
@@ -214,14 +221,7 @@ class SessionForm(UnitFormMixin, forms.Form):
 
     @classmethod
     def initial_for(cls, session: MeasurementSession):
-        initial = {
-            "taken_on": session.taken_on,
-            "kind": session.kind,
-            "unit": session.unit,
-            "posture_notes": session.posture_notes,
-            "notes": session.notes,
-            "version": session.version,
-        }
+        initial = {name: getattr(session, name) for name in (*session.ENTERED_FIELDS, "version")}
         for m in session.measurements.all():
             initial[m.code] = format_exact(m.value_mm, session.unit)
         return initial
@@ -259,14 +259,14 @@ class PlanOptionsForm(UnitFormMixin, forms.Form):
     def __init__(self, *args, block: Block, unit: str, **kwargs):
         super().__init__(*args, **kwargs)
         self.block = block
-        for level in block.level_names:
-            self.fields[f"ease_{level}"] = LengthField(
-                label=f"{LEVEL_LABELS[level]} ease",
-                signed=True,
-                required=False,
-                limits=(-400, 400),
-                help_text="Negative reduces (a corset's waist).",
-            )
+        self.add_level_lengths(
+            block.level_names,
+            "ease_{}",
+            "{} ease",
+            required=False,
+            limits=(-400, 400),
+            help_text="Negative reduces (a corset's waist).",
+        )
         for i, seam in enumerate(block.seams):
             for level in block.level_names:
                 for edge in (0, 1):

@@ -25,6 +25,11 @@ from patterns.core.units import UNIT_CHOICES, UNITS
 from patterns.models import LEVEL_CHOICES, BasePattern, mm_field
 
 
+def user_link():
+    """Who entered or changed a row: optional; a user named in a client's records cannot be deleted."""
+    return models.ForeignKey(settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+")
+
+
 class ActiveClientManager(models.Manager):
     def get_queryset(self):
         return super().get_queryset().filter(is_deleted=False)
@@ -44,13 +49,7 @@ class Client(models.Model):
     deleted_at = models.DateTimeField(null=True, blank=True)
     created_at = models.DateTimeField(auto_now_add=True)
     updated_at = models.DateTimeField(auto_now=True)
-    created_by = models.ForeignKey(
-        settings.AUTH_USER_MODEL,
-        models.PROTECT,
-        null=True,
-        blank=True,
-        related_name="+",
-    )
+    created_by = user_link()
 
     objects = ActiveClientManager()
     all_objects = models.Manager()
@@ -91,13 +90,7 @@ class MeasurementSession(models.Model):
 
     client = models.ForeignKey(Client, models.CASCADE, related_name="sessions")
     taken_on = models.DateField(default=timezone.localdate)
-    measured_by = models.ForeignKey(
-        settings.AUTH_USER_MODEL,
-        models.PROTECT,
-        null=True,
-        blank=True,
-        related_name="+",
-    )
+    measured_by = user_link()
     kind = models.CharField(max_length=10, choices=SessionKind.choices, default=SessionKind.FIRST)
     unit = models.CharField(
         max_length=2, choices=UNIT_CHOICES, default="cm", help_text="The unit the tape was read in."
@@ -117,6 +110,9 @@ class MeasurementSession(models.Model):
             models.CheckConstraint(condition=Q(unit__in=UNITS), name="session_unit_known"),
             models.CheckConstraint(condition=Q(version__gte=1), name="session_version_from_one"),
         ]
+
+    # What the fitter types for a sitting besides the readings: saved, shown back and audited alike.
+    ENTERED_FIELDS = ("taken_on", "kind", "unit", "posture_notes", "notes")
 
     def __str__(self):
         return f"{self.get_kind_display()}, {self.taken_on}"
@@ -190,13 +186,7 @@ class Plan(models.Model):
         related_name="plans",
         help_text="The readings this plan answers.",
     )
-    created_by = models.ForeignKey(
-        settings.AUTH_USER_MODEL,
-        models.PROTECT,
-        null=True,
-        blank=True,
-        related_name="+",
-    )
+    created_by = user_link()
     created_at = models.DateTimeField(auto_now_add=True)
     version = models.PositiveIntegerField(default=1, help_text="Raised on every edit, to catch two edits at once.")
 
@@ -224,12 +214,24 @@ class RevisionStatus(models.TextChoices):
     ISSUED = "issued", "Issued to the workroom"
 
 
-class PlanRevisionQuerySet(models.QuerySet):
+class KeptForGoodQuerySet(models.QuerySet):
+    """Rows that are only ever added: deleting or updating many at once is refused with ``refusal``."""
+
+    refusal: type[Exception]
+    on_delete: str
+    on_update: str
+
     def delete(self):
-        raise RevisionLocked("Plan revisions are kept for good; they cannot be deleted.")
+        raise self.refusal(self.on_delete)
 
     def update(self, **kwargs):
-        raise RevisionLocked("Plan revisions cannot be changed in bulk; save each revision instead.")
+        raise self.refusal(self.on_update)
+
+
+class PlanRevisionQuerySet(KeptForGoodQuerySet):
+    refusal = RevisionLocked
+    on_delete = "Plan revisions are kept for good; they cannot be deleted."
+    on_update = "Plan revisions cannot be changed in bulk; save each revision instead."
 
 
 # Fields fixed once a revision is saved, draft or issued.
@@ -255,17 +257,11 @@ class PlanRevision(models.Model):
     based_on = models.ForeignKey("self", models.PROTECT, null=True, blank=True, related_name="followed_by")
     inputs = models.JSONField()
     result = models.JSONField()
-    author = models.ForeignKey(settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+")
+    author = user_link()
     created_at = models.DateTimeField(default=timezone.now)
     status = models.CharField(max_length=10, choices=RevisionStatus.choices, default=RevisionStatus.DRAFT)
     issued_at = models.DateTimeField(null=True, blank=True)
-    issued_by = models.ForeignKey(
-        settings.AUTH_USER_MODEL,
-        models.PROTECT,
-        null=True,
-        blank=True,
-        related_name="+",
-    )
+    issued_by = user_link()
 
     objects = PlanRevisionQuerySet.as_manager()
 
@@ -338,7 +334,7 @@ class PinAdjustment(models.Model):
     level = models.CharField(max_length=20, choices=LEVEL_CHOICES)
     amount_mm = mm_field(help_text="Positive lets the seam out, negative takes it in (one body half).")
     note = models.TextField(blank=True)
-    created_by = models.ForeignKey(settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+")
+    created_by = user_link()
     created_at = models.DateTimeField(default=timezone.now)
 
     class Meta:
@@ -385,7 +381,7 @@ class BackgroundJob(models.Model):
     """What every piece of background work records: its task, who asked, when it ran, why it failed."""
 
     task_id = models.CharField(max_length=64, blank=True)
-    created_by = models.ForeignKey(settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+")
+    created_by = user_link()
     created_at = models.DateTimeField(default=timezone.now)
     started_at = models.DateTimeField(null=True, blank=True)
     finished_at = models.DateTimeField(null=True, blank=True)
@@ -491,12 +487,10 @@ class AuditAction(models.TextChoices):
     EXPORT = "export", "Exported"
 
 
-class AuditEntryQuerySet(models.QuerySet):
-    def delete(self):
-        raise AuditLocked("The audit trail is kept for good; entries cannot be deleted.")
-
-    def update(self, **kwargs):
-        raise AuditLocked("The audit trail cannot be changed.")
+class AuditEntryQuerySet(KeptForGoodQuerySet):
+    refusal = AuditLocked
+    on_delete = "The audit trail is kept for good; entries cannot be deleted."
+    on_update = "The audit trail cannot be changed."
 
 
 class AuditEntry(models.Model):
@@ -508,7 +502,7 @@ class AuditEntry(models.Model):
     """
 
     at = models.DateTimeField(default=timezone.now, db_index=True)
-    user = models.ForeignKey(settings.AUTH_USER_MODEL, models.PROTECT, null=True, blank=True, related_name="+")
+    user = user_link()
     username = models.CharField(max_length=150, blank=True, help_text="Kept as written, or the command that did it.")
     action = models.CharField(max_length=10, choices=AuditAction.choices)
     object_type = models.CharField(max_length=40)

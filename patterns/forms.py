@@ -438,13 +438,9 @@ class GradeForm(UnitFormMixin, forms.Form):
     def __init__(self, *args, block, **kwargs):
         super().__init__(*args, **kwargs)
         self.block = block
-        for code in block.level_names:
-            self.fields[f"girth_{code}"] = LengthField(
-                label=f"{LEVEL_LABELS[code]}: girth per size step",
-                signed=True,
-                limits=None,
-                help_text="The whole girth, both body halves.",
-            )
+        self.add_level_lengths(
+            block.level_names, "girth_{}", "{}: girth per size step", help_text="The whole girth, both body halves."
+        )
         for upper, lower in zip(block.level_names, block.level_names[1:]):
             self.fields[f"band_{upper}_{lower}"] = LengthField(
                 label=f"{LEVEL_LABELS[upper]} to {LEVEL_LABELS[lower].lower()}: length per size step",

@@ -344,9 +344,7 @@ def export_client(*, reference: str, out, actor: str) -> ExportReceipt:
             user=None,
             actor=actor,
             action=audit.EXPORT,
-            object_type="client",
-            object_id=records.client.pk,
-            client=records.client,
+            row=records.client,
             summary=f"Records exported for the client ({out.name}).",
             after=counts,
         )

@@ -34,11 +34,9 @@ def create_client(*, user, reference, name, contact="", notes="", consent_given_
         created_by=user,
     )
     audit.record(
+        row=client,
         user=user,
         action=audit.CREATE,
-        object_type="client",
-        object_id=client.pk,
-        client=client,
         summary=f"Client {client.reference} added.",
         after=audit.client_snapshot(client),
     )
@@ -52,47 +50,32 @@ def update_client(*, client: Client, user, reference, name, contact="", notes=""
     client.reference, client.name, client.contact = reference, name, contact
     client.notes, client.consent_given_on = notes, consent_given_on
     client.save()
+    summary = f"Details of client {client.reference} changed."
     audit.record(
-        user=user,
-        action=audit.CHANGE,
-        object_type="client",
-        object_id=client.pk,
-        client=client,
-        summary=f"Details of client {client.reference} changed.",
-        before=before,
-        after=audit.client_snapshot(client),
+        row=client, user=user, action=audit.CHANGE, summary=summary, before=before, after=audit.client_snapshot(client)
     )
     return client
 
 
-@transaction.atomic
 def soft_delete_client(*, client: Client, user) -> None:
-    client.is_deleted = True
-    client.deleted_at = timezone.now()
-    client.save(update_fields=["is_deleted", "deleted_at", "updated_at"])
-    audit.record(
-        user=user,
-        action=audit.DELETE,
-        object_type="client",
-        object_id=client.pk,
-        client=client,
-        summary=f"Client {client.reference} removed from the lists (records kept).",
-    )
+    _set_listed(client, user, listed=False)
+
+
+def restore_client(*, client: Client, user) -> None:
+    _set_listed(client, user, listed=True)
 
 
 @transaction.atomic
-def restore_client(*, client: Client, user) -> None:
-    client.is_deleted = False
-    client.deleted_at = None
+def _set_listed(client: Client, user, *, listed: bool) -> None:
+    """Take a client off the lists or back on; the records stay either way."""
+    client.is_deleted = not listed
+    client.deleted_at = None if listed else timezone.now()
     client.save(update_fields=["is_deleted", "deleted_at", "updated_at"])
-    audit.record(
-        user=user,
-        action=audit.CHANGE,
-        object_type="client",
-        object_id=client.pk,
-        client=client,
-        summary=f"Client {client.reference} restored to the lists.",
-    )
+    if listed:
+        action, summary = audit.CHANGE, f"Client {client.reference} restored to the lists."
+    else:
+        action, summary = audit.DELETE, f"Client {client.reference} removed from the lists (records kept)."
+    audit.record(row=client, user=user, action=action, summary=summary)
 
 
 def clean_photo(upload) -> ContentFile:
@@ -131,15 +114,8 @@ def record_session(*, client: Client, user, form_data: dict, values: dict) -> Me
         [Measurement(session=session, code=code, value_mm=mm) for code, mm in values.items()]
     )
     _save_photos(session, form_data)
-    audit.record(
-        user=user,
-        action=audit.CREATE,
-        object_type="session",
-        object_id=session.pk,
-        client=client,
-        summary=f"Measurements of {session.taken_on} recorded ({len(values)} readings).",
-        after=audit.session_snapshot(session),
-    )
+    summary = f"Measurements of {session.taken_on} recorded ({len(values)} readings)."
+    audit.record(row=session, user=user, action=audit.CREATE, summary=summary, after=audit.session_snapshot(session))
     return session
 
 
@@ -168,53 +144,34 @@ def update_session(*, session: MeasurementSession, user, form_data: dict, values
     for code, mm in values.items():
         Measurement.objects.update_or_create(session=session, code=code, defaults={"value_mm": mm})
     _save_photos(session, form_data)
-    audit.record(
-        user=user,
-        action=audit.CHANGE,
-        object_type="session",
-        object_id=session.pk,
-        client_reference=session.client.reference,
-        summary=f"Measurements of {session.taken_on} changed (version {expected_version} to {session.version}).",
-        before=before,
-        after=audit.session_snapshot(session),
-    )
+    summary = f"Measurements of {session.taken_on} changed (version {expected_version} to {session.version})."
+    after = audit.session_snapshot(session)
+    audit.record(row=session, user=user, action=audit.CHANGE, summary=summary, before=before, after=after)
     return session
 
 
 @transaction.atomic
 def delete_photo(*, photo: Photo, user) -> None:
     """Remove one photo of a session (the file too); the audit trail says which and when."""
-    session = photo.session
-    audit.record(
-        user=user,
-        action=audit.DELETE,
-        object_type="photo",
-        object_id=photo.pk,
-        client_reference=session.client.reference,
-        summary=f"{photo.get_view_display()} photo of the readings of {session.taken_on} deleted.",
-    )
-    name = photo.image.name
-    storage = photo.image.storage
-    photo.delete()
-    transaction.on_commit(lambda: storage.delete(name))
+    summary = f"{photo.get_view_display()} photo of the readings of {photo.session.taken_on} deleted."
+    audit.record(row=photo, user=user, action=audit.DELETE, summary=summary)
+    _delete_with_file(photo)
 
 
 @transaction.atomic
 def replace_photo(*, photo: Photo, upload, user) -> Photo:
     """A new picture for the same view of the same session, in place of ``photo``."""
-    session = photo.session
-    new = Photo.objects.create(session=session, view=photo.view, image=clean_photo(upload))
+    new = Photo.objects.create(session=photo.session, view=photo.view, image=clean_photo(upload))
+    summary = f"{photo.get_view_display()} photo of the readings of {photo.session.taken_on} replaced."
     audit.record(
-        user=user,
-        action=audit.CHANGE,
-        object_type="photo",
-        object_id=new.pk,
-        client_reference=session.client.reference,
-        summary=f"{photo.get_view_display()} photo of the readings of {session.taken_on} replaced.",
-        before={"photo": photo.pk},
-        after={"photo": new.pk},
+        row=new, user=user, action=audit.CHANGE, summary=summary, before={"photo": photo.pk}, after={"photo": new.pk}
     )
+    _delete_with_file(photo)
+    return new
+
+
+def _delete_with_file(photo: Photo) -> None:
+    """The row at once, the picture's file once the transaction is kept (a rolled-back delete keeps it)."""
     name, storage = photo.image.name, photo.image.storage
     photo.delete()
     transaction.on_commit(lambda: storage.delete(name))
-    return new

@@ -63,21 +63,15 @@ def start_plan(
     block = block_for_unit(block, options.unit)
     plan = Plan.objects.create(client=client, session=session, base_pattern=pattern, garment=garment, created_by=user)
     first = _append(plan, block, session_values(session), options, user)
-    audit.record(
-        user=user,
-        action=audit.CREATE,
-        object_type="plan",
-        object_id=plan.pk,
-        client=client,
-        summary=f"Plan “{garment}” started on {pattern.name}, size {pattern.size_label}, with revision 1.",
-        after={
-            "garment": garment,
-            "base_pattern": pattern.pk,
-            "session": session.pk,
-            "revision": first.pk,
-            "based_on": based_on.pk if based_on else None,
-        },
-    )
+    summary = f"Plan “{garment}” started on {pattern.name}, size {pattern.size_label}, with revision 1."
+    after = {
+        "garment": garment,
+        "base_pattern": pattern.pk,
+        "session": session.pk,
+        "revision": first.pk,
+        "based_on": based_on.pk if based_on else None,
+    }
+    audit.record(row=plan, user=user, action=audit.CREATE, summary=summary, after=after)
     return plan
 
 
@@ -107,17 +101,10 @@ def save_revision(*, plan: Plan, options: PlanOptions, user, expected_version: i
 
 
 def _audit_revision(revision: PlanRevision, user, expected_version: int, how: str) -> None:
-    plan = revision.plan
-    audit.record(
-        user=user,
-        action=audit.CREATE,
-        object_type="revision",
-        object_id=revision.pk,
-        client_reference=plan.client.reference,
-        summary=f"Plan {plan.pk} revision {revision.number} {how}.",
-        before={"plan_version": expected_version},
-        after={"plan_version": expected_version + 1, "revision": revision.number, "based_on": revision.based_on_id},
-    )
+    summary = f"Plan {revision.plan_id} revision {revision.number} {how}."
+    before = {"plan_version": expected_version}
+    after = {"plan_version": expected_version + 1, "revision": revision.number, "based_on": revision.based_on_id}
+    audit.record(row=revision, user=user, action=audit.CREATE, summary=summary, before=before, after=after)
 
 
 @transaction.atomic
@@ -130,16 +117,9 @@ def issue_revision(*, revision: PlanRevision, user) -> PlanRevision:
     revision.issued_at = timezone.now()
     revision.issued_by = user
     revision.save()
-    audit.record(
-        user=user,
-        action=audit.ISSUE,
-        object_type="revision",
-        object_id=revision.pk,
-        client_reference=revision.plan.client.reference,
-        summary=f"Plan {revision.plan_id} revision {revision.number} issued to the workroom.",
-        before={"status": RevisionStatus.DRAFT},
-        after={"status": RevisionStatus.ISSUED},
-    )
+    summary = f"Plan {revision.plan_id} revision {revision.number} issued to the workroom."
+    before, after = {"status": RevisionStatus.DRAFT}, {"status": RevisionStatus.ISSUED}
+    audit.record(row=revision, user=user, action=audit.ISSUE, summary=summary, before=before, after=after)
     return revision
 
 
@@ -166,15 +146,9 @@ def record_pins(*, revision: PlanRevision, pins, note: str, user) -> list[PinAdj
             for seam, level, amount in pins
         ]
     )
-    audit.record(
-        user=user,
-        action=audit.CREATE,
-        object_type="pins",
-        object_id=revision.pk,
-        client_reference=revision.plan.client.reference,
-        summary=f"{len(made)} pin adjustment(s) recorded on plan {revision.plan_id} revision {revision.number}.",
-        after={"pins": [{"seam": p.seam, "level": p.level, "amount_mm": str(p.amount_mm)} for p in made], "note": note},
-    )
+    summary = f"{len(made)} pin adjustment(s) recorded on plan {revision.plan_id} revision {revision.number}."
+    after = {"pins": [{"seam": p.seam, "level": p.level, "amount_mm": str(p.amount_mm)} for p in made], "note": note}
+    audit.record(row=revision, object_type="pins", user=user, action=audit.CREATE, summary=summary, after=after)
     return made
 
 
@@ -232,13 +206,7 @@ def import_fitting(*, client, text: str, user, garment: str = "") -> Plan:
     plan = start_plan(
         client=client, session=session, pattern=pattern, garment=garment or "Imported plan", user=user, options=options
     )
-    audit.record(
-        user=user,
-        action=audit.IMPORT,
-        object_type="plan",
-        object_id=plan.pk,
-        client=client,
-        summary=f"Fitting file imported as session {session.pk} and plan {plan.pk}.",
-        after={"session": session.pk, "plan": plan.pk, "measurements_mm": {c: str(v) for c, v in values.items()}},
-    )
+    summary = f"Fitting file imported as session {session.pk} and plan {plan.pk}."
+    after = {"session": session.pk, "plan": plan.pk, "measurements_mm": {c: str(v) for c, v in values.items()}}
+    audit.record(row=plan, user=user, action=audit.IMPORT, summary=summary, after=after)
     return plan

@@ -1,9 +1,8 @@
-from django.core.management.base import BaseCommand, CommandError
-
+from fittings.management.records import RecordsCommand
 from fittings.services import backups
 
 
-class Command(BaseCommand):
+class Command(RecordsCommand):
     help = (
         "Copy the database and the private files (photos, printed documents) into one new archive (.tar.gz). "
         "Safe while the app is running. The archive holds clients' personal data: keep it as safe as the data folder."
@@ -20,10 +19,7 @@ class Command(BaseCommand):
         )
 
     def handle(self, *args, out, portable, **options):
-        try:
-            receipt = backups.backup(out, portable=portable)
-        except backups.SafetyError as exc:
-            raise CommandError(str(exc)) from None
+        receipt = backups.backup(out, portable=portable)
         self.stdout.write(
             self.style.SUCCESS(
                 f"Backed up the {receipt.engine} database and {receipt.files} private file(s) to {receipt.path} "
