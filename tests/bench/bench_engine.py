@@ -16,8 +16,9 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
 from patterns.core.allot import Body, PlanOptions, allot  # noqa: E402
-from patterns.core.block import BACK, FRONT, Block, Level, Panel, Point, Seam  # noqa: E402
-from patterns.core.policies import SIDES_FIRST
+from patterns.core.block import BACK, FRONT, Block, Level, Panel, Point  # noqa: E402
+from patterns.core.policies import SIDES_FIRST  # noqa: E402
+from tests.patterns.block_parts import seams_in_a_row  # noqa: E402
 
 
 def big_block(panels=12, levels=9) -> Block:
@@ -39,17 +40,7 @@ def big_block(panels=12, levels=9) -> Block:
             )
         )
         x += 100
-    seams = tuple(
-        Seam(
-            f"Seam {i + 1}",
-            "side" if i == panels // 2 - 1 else ("princess" if i % 2 else "other"),
-            a.name,
-            b.name,
-            frozenset(names[2:] if i == 0 else names),
-            15.0,
-        )
-        for i, (a, b) in enumerate(zip(out, out[1:]))
-    )
+    seams = seams_in_a_row(out, lambda i: frozenset(names[2:] if i == 0 else names))
     return Block("Bench block", "B", "bench", lv, tuple(out), seams)
 
 

@@ -34,6 +34,7 @@ import statistics
 import sys
 import time
 import tracemalloc
+from dataclasses import replace
 from datetime import date
 from pathlib import Path
 
@@ -52,10 +53,10 @@ from fittings.printing.engine import html_to_pdf  # noqa: E402
 from fittings.printing.registry import render_documents  # noqa: E402
 from fittings.printing.work_order import work_order_html  # noqa: E402
 from patterns import demo  # noqa: E402
-from patterns.core.allot import allot  # noqa: E402
-from patterns.core.block import BACK, CB_LACED, CF_BUSK, FRONT, Block, Panel, Point, Seam  # noqa: E402
+from patterns.core.block import BACK, FRONT, Block  # noqa: E402
 from patterns.core.defaults import default_options  # noqa: E402
-from patterns.core.fitting import body_from_measurements  # noqa: E402
+from tests.fittings.print_data import document  # noqa: E402
+from tests.patterns.block_parts import level_panel, seams_in_a_row  # noqa: E402
 
 MINIMAL_HTML = "<!doctype html><title>x</title><p style='font-family: DejaVu Sans'>One line on one page.</p>"
 
@@ -82,11 +83,11 @@ def bare_weasyprint(pages: tuple[str, str]) -> tuple[bytes, bytes]:
 
 
 def twelve_panel_block() -> Block:
-    """An invented overbust block, size 10 girths, cut in twelve panels per half."""
+    """The demo's size 10 overbust corset re-cut in twelve panels per half (an invented block)."""
     base = demo.corset_block("10")
     count = 12
     half = {lv.name: base.half_girth(lv.name) for lv in base.levels}
-    first, last = base.levels[0].name, base.levels[-1].name
+    last = base.levels[-1].name
     panels, x = [], 0.0
     for i in range(count):
         share = (1 + 0.04 * ((i % 3) - 1)) / count
@@ -96,63 +97,27 @@ def twelve_panel_block() -> Block:
         left = {lv: centre - w / 2 for lv, w in widths.items()}
         right = {lv: centre + w / 2 for lv, w in widths.items()}
         top, bottom = 10.0 * (i % 4), base.level_y(last) + 20 - 5 * (i % 3)
-        panels.append(
-            Panel(
-                name=f"Panel {i + 1}",
-                side=FRONT if i < count // 2 else BACK,
-                left=left,
-                right=right,
-                top_left=Point(left[first], top),
-                top_right=Point(right[first], top),
-                bottom_left=Point(left[last], bottom),
-                bottom_right=Point(right[last], bottom),
-            )
-        )
+        side = FRONT if i < count // 2 else BACK
+        panels.append(level_panel(f"Panel {i + 1}", side, left, right, top, bottom, base.levels))
         x += widest + 50
-    levels = frozenset(lv.name for lv in base.levels)
-    seams = tuple(
-        Seam(
-            f"Seam {i + 1}",
-            "side" if i == count // 2 - 1 else ("princess" if i % 2 else "other"),
-            a.name,
-            b.name,
-            levels,
-            15.0,
-        )
-        for i, (a, b) in enumerate(zip(panels, panels[1:]))
-    )
-    return Block(
-        "Bench corset, twelve panels",
-        "10",
-        "overbust corset",
-        base.levels,
-        tuple(panels),
-        seams,
-        centre_front=CF_BUSK,
-        centre_back=CB_LACED,
-    )
+    levels = frozenset(base.level_names)
+    seams = seams_in_a_row(panels, lambda i: levels)
+    return replace(base, name="Bench corset, twelve panels", panels=tuple(panels), seams=seams)
 
 
 def data_for(block: Block) -> DocumentData:
     values = {k: float(v) for k, v in demo.DEMO_CLIENTS[0]["sessions"][0]["values"].items()}
-    options = default_options(block, "cm")
-    result = allot(block, body_from_measurements(values), options)
-    return DocumentData(
-        atelier_name=demo.ATELIER_NAME,
+    return document(
+        values,
+        block,
+        default_options(block, "cm"),
         client_label="WF-0101",
         garment="Bench corset",
         fitting_date=date(2025, 1, 1),
         measured_by="Bench",
         revision_number=1,
-        revision_status="issued",
-        issued_at=None,
-        issued_by="",
         based_on=None,
         revision_url="https://atelier.example/plans/1/revisions/1/",
-        measurements=values,
-        block=block,
-        options=options,
-        result=result,
     )
 
 

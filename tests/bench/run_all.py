@@ -488,32 +488,32 @@ def table_rows(results):
         )
 
     cold = results.get("cold_start", {})
-    rc = results.get("recompute", {})
-    if rc:
-        empty, form = rc["floor_empty"], rc["floor_form"]
-        add("floor: empty view (server ms)", empty["server"], empty["cpu"])
-        add("floor: template with a 10-field form (server ms)", form["server"], form["cpu"])
-        for name, r in rc.items():
+
+    def recompute_runs(key, empty_label, form_label):
+        """The rows of a recompute measurement's two floors, then each recompute with those floors."""
+        block = results.get(key, {})
+        if not block:
+            return
+        empty, form = block["floor_empty"], block["floor_form"]
+        add(empty_label, empty["server"], empty["cpu"])
+        add(form_label, form["server"], form["cpu"])
+        for name, r in block.items():
             if name.startswith("recompute:"):
-                add(
-                    f"{name} (server ms)",
-                    r["server"],
-                    r["cpu"],
-                    form["server"]["median"],
-                    "form",
-                    "p95 <= 50 ms",
-                    limit=50,
-                )
-                add(f"{name} (round trip ms)", r["client"], None, empty["client"]["median"], "empty")
-    ip = results.get("recompute_in_process", {})
-    if ip:
-        empty, form = ip["floor_empty"], ip["floor_form"]
-        add("in-process floor: empty view, no middleware (ms)", empty["server"], empty["cpu"])
-        add("in-process floor: 10-field form fragment, no middleware (ms)", form["server"], form["cpu"])
-        for name, r in ip.items():
-            if name.startswith("recompute:"):
-                add(f"in-process {name}, no middleware (ms)", r["server"], r["cpu"], form["server"]["median"], "form")
-                add(f"in-process {name}, no middleware (ms)", r["server"], r["cpu"], empty["server"]["median"], "empty")
+                yield name, r, empty, form
+
+    for name, r, empty, form in recompute_runs(
+        "recompute", "floor: empty view (server ms)", "floor: template with a 10-field form (server ms)"
+    ):
+        add(f"{name} (server ms)", r["server"], r["cpu"], form["server"]["median"], "form", "p95 <= 50 ms", limit=50)
+        add(f"{name} (round trip ms)", r["client"], None, empty["client"]["median"], "empty")
+    for name, r, empty, form in recompute_runs(
+        "recompute_in_process",
+        "in-process floor: empty view, no middleware (ms)",
+        "in-process floor: 10-field form fragment, no middleware (ms)",
+    ):
+        label = f"in-process {name}, no middleware (ms)"
+        add(label, r["server"], r["cpu"], form["server"]["median"], "form")
+        add(label, r["server"], r["cpu"], empty["server"]["median"], "empty")
     pv = results.get("preview", {})
     if "miss" in pv:
         floor = pv["floor_same_artists"]["median"]
@@ -554,19 +554,22 @@ def table_rows(results):
                     "form",
                     *(("p95 <= 30 ms", 30) if name == "every search" else ()),
                 )
+
+    def wall_and_cpu_ms(r):
+        """A print benchmark row's figures (in seconds) as the wall and CPU statistics of a table row."""
+        return (
+            {"median": r["wall_median_s"] * 1000, "p95": r["wall_p95_s"] * 1000},
+            {"median": r["cpu_median_s"] * 1000},
+        )
+
     pdf = results.get("pdf", {})
     if "six_panel" in pdf:
         six, minimal = pdf["six_panel"], pdf["minimal_page"]
-        add(
-            "floor: minimal one-page PDF (ms)",
-            {"median": minimal["wall_median_s"] * 1000, "p95": minimal["wall_p95_s"] * 1000},
-            {"median": minimal["cpu_median_s"] * 1000},
-        )
+        add("floor: minimal one-page PDF (ms)", *wall_and_cpu_ms(minimal))
         add(
             f"work order + cutting sheet, 6 panels (ms; peak {six.get('peak_python_mib', 0):.0f} MiB Python, "
             f"{pdf.get('max_rss_mib', 0):.0f} MiB resident)",
-            {"median": six["wall_median_s"] * 1000, "p95": six["wall_p95_s"] * 1000},
-            {"median": six["cpu_median_s"] * 1000},
+            *wall_and_cpu_ms(six),
             minimal["wall_median_s"] * 1000,
             "minimal",
             "median <= 1500 ms, <= 3x",
@@ -575,15 +578,10 @@ def table_rows(results):
         rows[-1] = (*rows[-1][:7], "yes" if six["wall_median_s"] <= 1.5 and rows[-1][7] == "yes" else "NO")
         plain = pdf.get("minimal_page_default_call")
         if plain:
-            add(
-                "floor: minimal one-page PDF, WeasyPrint's plain call (ms)",
-                {"median": plain["wall_median_s"] * 1000, "p95": plain["wall_p95_s"] * 1000},
-                {"median": plain["cpu_median_s"] * 1000},
-            )
+            add("floor: minimal one-page PDF, WeasyPrint's plain call (ms)", *wall_and_cpu_ms(plain))
             add(
                 "work order + cutting sheet, 6 panels, against the plain call (ms)",
-                {"median": six["wall_median_s"] * 1000, "p95": six["wall_p95_s"] * 1000},
-                {"median": six["cpu_median_s"] * 1000},
+                *wall_and_cpu_ms(six),
                 plain["wall_median_s"] * 1000,
                 "plain call",
                 "<= 3x",
@@ -603,6 +601,7 @@ def table_rows(results):
         )
         if key == "load" and load["errors"]:
             rows[-1] = (*rows[-1][:7], "NO")
+    rc = results.get("recompute", {})
     warm = next((r["client"] for n, r in rc.items() if n.startswith("recompute:")), {})
     for name, c in cold.items():
         if "first_ms" in c:

@@ -10,6 +10,8 @@ from pathlib import Path
 
 import pytest
 
+from tests.conftest import DEMO_PASSWORD
+
 CHROMIUM = os.environ.get("ATELIER_CHROMIUM", "/usr/bin/chromium")
 ARTIFACTS = Path(__file__).resolve().parents[2] / "test-artifacts" / "browser"
 # A 10-inch tablet held upright (CSS pixels).
@@ -73,3 +75,18 @@ def tablet(browser, request):
     page.snap = snap
     yield page
     context.close()
+
+
+def sign_in(page, live_server, username="demo", password=DEMO_PASSWORD, lands_on="/"):
+    """Sign in on the login page, as a fitter would, and wait for the page it leads to."""
+    page.goto(f"{live_server.url}/login/")
+    page.fill("input[name=username]", username)
+    page.fill("input[name=password]", password)
+    page.tap("button[type=submit]")
+    page.wait_for_url(f"{live_server.url}{lands_on}")
+
+
+def fill_in(page, **fields):
+    """Type each value into the form field of that name (Django's ``#id_<name>``)."""
+    for name, text in fields.items():
+        page.fill(f"#id_{name}", text)

@@ -4,7 +4,7 @@ import pytest
 
 from patterns.demo import DRAWN_BLOCK_FILE
 from patterns.models import BasePattern
-from tests.browser.test_tablet_flow import sign_in
+from tests.browser.conftest import fill_in, sign_in
 
 pytestmark = [pytest.mark.browser, pytest.mark.django_db(transaction=True)]
 
@@ -15,10 +15,8 @@ def test_it_imports_a_drawn_block_from_the_client_list(tablet, live_server, demo
     page.tap("text=Import a block (DXF or SVG)")
     page.wait_for_selector("h1:has-text('Import a block from a drawing')")
     page.set_input_files("#id_file", str(DRAWN_BLOCK_FILE))
-    page.fill("#id_name", "Drawn on the tablet")
-    page.fill("#id_size_label", "10")
+    fill_in(page, name="Drawn on the tablet", size_label="10", front_panels="2")
     page.select_option("#id_garment", "underbust corset")
-    page.fill("#id_front_panels", "2")
     page.snap("import-form")
     page.tap("button:has-text('Import')")
     page.wait_for_selector("h1:has-text('Drawn on the tablet, size 10')")

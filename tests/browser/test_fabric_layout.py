@@ -4,7 +4,7 @@ import pytest
 from django.urls import reverse
 
 from fittings.models import FabricLayout, Plan
-from tests.browser.test_tablet_flow import sign_in
+from tests.browser.conftest import sign_in
 
 pytestmark = [pytest.mark.browser, pytest.mark.django_db(transaction=True)]
 

@@ -4,8 +4,7 @@ where she looks, every length in her unit, every step a tap.  A screenshot per s
 import pytest
 
 from fittings.models import Client
-from tests.browser.conftest import ARTIFACTS
-from tests.conftest import DEMO_PASSWORD
+from tests.browser.conftest import ARTIFACTS, sign_in
 
 pytestmark = [pytest.mark.browser, pytest.mark.django_db(transaction=True)]
 
@@ -28,14 +27,6 @@ def held(browser, request):
     page.held = request.param
     yield page
     context.close()
-
-
-def sign_in(page, live_server, username="demo", password=DEMO_PASSWORD):
-    page.goto(f"{live_server.url}/login/")
-    page.fill("input[name=username]", username)
-    page.fill("input[name=password]", password)
-    page.tap("button[type=submit]")
-    page.wait_for_url(f"{live_server.url}/")
 
 
 def in_view(page, selector):
@@ -181,11 +172,6 @@ def test_it_gives_the_owner_the_admin_and_the_workroom_its_queue(held, live_serv
     page.locator("form[action='/logout/'] button").tap()
     page.wait_for_load_state("networkidle")
     make_user("workroom", username="cutter")
-    sign_in_workroom = f"{live_server.url}/login/"
-    page.goto(sign_in_workroom)
-    page.fill("input[name=username]", "cutter")
-    page.fill("input[name=password]", "a-long-test-password")
-    page.tap("button[type=submit]")
-    page.wait_for_url(f"{live_server.url}/workroom/")
+    sign_in(page, live_server, "cutter", "a-long-test-password", lands_on="/workroom/")
     assert page.locator("table.queue").count() == 1 and "+44" not in page.content()
     page.snap("workroom-queue")

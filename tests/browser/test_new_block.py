@@ -8,7 +8,7 @@ import pytest
 from fittings.models import PlanRevision, PrintJob
 from patterns.models import BasePattern
 from patterns.selectors import block_for
-from tests.browser.test_tablet_flow import sign_in
+from tests.browser.conftest import sign_in
 
 pytestmark = [pytest.mark.browser, pytest.mark.django_db(transaction=True)]
 

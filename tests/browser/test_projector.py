@@ -12,7 +12,7 @@ from django.contrib.auth import get_user_model
 from fittings.models import Client
 from fittings.services import plans as plan_services
 from patterns.models import BasePattern
-from tests.browser.test_tablet_flow import sign_in
+from tests.browser.conftest import sign_in
 
 pytestmark = [pytest.mark.browser, pytest.mark.django_db(transaction=True)]
 

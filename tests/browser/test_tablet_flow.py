@@ -5,17 +5,9 @@ import re
 import pytest
 
 from fittings.models import Client, PlanRevision
-from tests.conftest import DEMO_PASSWORD
+from tests.browser.conftest import fill_in, sign_in
 
 pytestmark = [pytest.mark.browser, pytest.mark.django_db(transaction=True)]
-
-
-def sign_in(page, live_server):
-    page.goto(f"{live_server.url}/login/")
-    page.fill("input[name=username]", "demo")
-    page.fill("input[name=password]", DEMO_PASSWORD)
-    page.tap("button[type=submit]")
-    page.wait_for_url(f"{live_server.url}/")
 
 
 def test_it_takes_a_new_client_from_tape_to_an_issued_plan(tablet, live_server, demo_atelier):
@@ -24,8 +16,7 @@ def test_it_takes_a_new_client_from_tape_to_an_issued_plan(tablet, live_server, 
     page.snap("clients")
 
     page.goto(f"{live_server.url}/clients/new/")
-    page.fill("#id_reference", "WF-0300")
-    page.fill("#id_name", "Philippa Orme")
+    fill_in(page, reference="WF-0300", name="Philippa Orme")
     page.tap("text=Save client")
     page.wait_for_selector("h1:has-text('Philippa Orme')")
     page.snap("client")
@@ -43,8 +34,7 @@ def test_it_takes_a_new_client_from_tape_to_an_issued_plan(tablet, live_server, 
         "hip_girth": "39 3/4",
         "bust_span": "7 1/4",
     }
-    for code, text in readings.items():
-        page.fill(f"#id_{code}", text)
+    fill_in(page, **readings)
     page.fill("#id_underbust_girth", "39")  # a slip of the tape: more than the bust
     page.wait_for_selector("#session-notes >> text=Bust is smaller than underbust")
     page.snap("session-advice")
@@ -98,8 +88,7 @@ def test_it_takes_a_new_client_from_tape_to_an_issued_plan(tablet, live_server, 
     page.tap("nav.crumbs >> text=WF-0300")
     page.tap("text=Take measurements")
     page.check("input[name=unit][value=in]")
-    for code, text in {**readings, "waist_girth": "28 7/8"}.items():
-        page.fill(f"#id_{code}", text)
+    fill_in(page, **{**readings, "waist_girth": "28 7/8"})
     page.tap("button[name=done]")
     page.wait_for_selector("text=Compare the last two sessions")
     page.tap("text=Compare the last two sessions")

@@ -13,7 +13,7 @@ import math
 import os
 import re
 import signal
-from datetime import date, timedelta
+from datetime import timedelta
 from pathlib import Path
 
 import pdfplumber
@@ -39,19 +39,15 @@ from fittings.services import printing
 from fittings.services.printing import run_print_job
 from fittings.wording import in_unit
 from patterns.core import sheets
-from patterns.core.allot import allot
-from patterns.core.fitting import body_from_measurements, load_fitting_text
 from patterns.core.measures import LEVEL_LABELS
 from patterns.core.sheets import PANEL_GAP_MM, SHEET_MARGIN_MM
 from patterns.core.tiling import OVERLAP_MM, PAGE_MARGIN_MM
 from patterns.core.units import format_length
+from tests.fittings.print_data import BASE_URL, MM_PER_PT, example_data
 
-MM_PER_PT = 25.4 / 72  # ISO 32000-1 8.3.2.3 and the 1959 agreement
-EXAMPLES = Path(__file__).resolve().parents[2] / "patterns" / "examples"
 A4_MM = (210.0, 297.0)  # ISO 216
 LETTER_MM = (8.5 * 25.4, 11 * 25.4)  # ANSI/ASME Y14.1
 PAPER_MM = {"a4": A4_MM, "letter": LETTER_MM}
-BASE_URL = "https://atelier.example"
 
 # The print views, wherever the lead includes them: this module is also the URL conf of its view tests.
 urlpatterns = [p for p in atelier.urls.urlpatterns if getattr(p, "app_name", None) != "fittings"] + [
@@ -60,44 +56,6 @@ urlpatterns = [p for p in atelier.urls.urlpatterns if getattr(p, "app_name", Non
 
 
 # --- plain data, no database ------------------------------------------------------------------
-
-
-def example_data(name: str, status: str = "issued") -> DocumentData:
-    """One of the project's invented example fittings, worked out by the engine."""
-    measurements, block, options = load_fitting_text((EXAMPLES / f"{name}.json").read_text())
-    result = allot(block, body_from_measurements(measurements), options)
-    return DocumentData(
-        atelier_name="Wrenfield Stays & Bodices",
-        client_label="WF-0102",
-        garment="Daily corset",
-        fitting_date=date(2025, 3, 4),
-        measured_by="Demo Fitter",
-        revision_number=3,
-        revision_status=status,
-        issued_at=None,
-        issued_by="",
-        based_on=2,
-        revision_url=f"{BASE_URL}/plans/7/revisions/3/",
-        measurements=measurements,
-        block=block,
-        options=options,
-        result=result,
-    )
-
-
-@pytest.fixture(scope="module")
-def strong():
-    return example_data("odalys-brenneman-strong-reduction")  # inches, 15 cm reduction, one toile pin
-
-
-@pytest.fixture(scope="module")
-def gentle():
-    return example_data("hester-quayle-first-corset")  # centimetres, 6 cm reduction
-
-
-@pytest.fixture(scope="module")
-def bodice():
-    return example_data("marguerite-ashdown-vale-bodice")  # centimetres, no reduction, cut on the fold
 
 
 @pytest.fixture(scope="module")

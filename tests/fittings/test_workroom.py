@@ -11,8 +11,6 @@ Outside references used here:
 import io
 import re
 from dataclasses import replace
-from datetime import date
-from pathlib import Path
 
 import pdfplumber
 import pypdf
@@ -23,57 +21,17 @@ from django.urls import reverse
 from atelier.models import AtelierSettings, parse_stock
 from fittings import workroom
 from fittings.models import PrintJob
-from fittings.printing.data import DocumentData, altered_pattern, document_data
+from fittings.printing.data import altered_pattern, document_data
 from fittings.printing.work_order import render_work_order
 from fittings.services import plans as plan_services
 from fittings.tasks import run_print_job
-from patterns.core.allot import allot
 from patterns.core.boning import BoningRules, boning_list
-from patterns.core.fitting import body_from_measurements, load_fitting_text
 from patterns.core.lacing import LacingRules
 from patterns.core.tiling import LARGE_FORMATS, TilingError, large_sheet, shelf_rows
 from patterns.core.units import format_with_unit
+from tests.fittings.print_data import MM_PER_PT
 
-MM_PER_PT = 25.4 / 72  # ISO 32000-1 8.3.2.3 and the 1959 agreement
-EXAMPLES = Path(__file__).resolve().parents[2] / "patterns" / "examples"
 A0_MM = (841.0, 1189.0)  # ISO 216
-
-
-def example_data(name: str) -> DocumentData:
-    measurements, block, options = load_fitting_text((EXAMPLES / f"{name}.json").read_text())
-    result = allot(block, body_from_measurements(measurements), options)
-    return DocumentData(
-        atelier_name="Wrenfield Stays & Bodices",
-        client_label="WF-0102",
-        garment="Daily corset",
-        fitting_date=date(2025, 3, 4),
-        measured_by="Demo Fitter",
-        revision_number=3,
-        revision_status="issued",
-        issued_at=None,
-        issued_by="",
-        based_on=2,
-        revision_url="https://atelier.example/plans/7/revisions/3/",
-        measurements=measurements,
-        block=block,
-        options=options,
-        result=result,
-    )
-
-
-@pytest.fixture(scope="module")
-def strong():
-    return example_data("odalys-brenneman-strong-reduction")  # a plan kept in inches
-
-
-@pytest.fixture(scope="module")
-def gentle():
-    return example_data("hester-quayle-first-corset")  # centimetres
-
-
-@pytest.fixture(scope="module")
-def bodice():
-    return example_data("marguerite-ashdown-vale-bodice")  # fold at the front, seamed back
 
 
 @pytest.fixture(scope="module")

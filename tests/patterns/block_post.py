@@ -26,3 +26,25 @@ def block_post(block, unit="cm", by_widths=False, **changes):
         else:
             data[key] = value
     return data
+
+
+def tape_post(**changes):
+    """The tape form's fields at its first step, for a two-panel card block read in cm.
+
+    A change of None leaves that field out, as for ``block_post``.
+    """
+    data = {
+        "unit": "cm",
+        "name": "Card block",
+        "size_label": "12",
+        "garment": "underbust corset",
+        "centre_front": "busk",
+        "centre_back": "laced",
+        "levels": ["waist", "hip"],
+        "panel_names": "Front\nBack (back)",
+        "bound": "on",
+        "seam_allowance": "1.5",
+        "step": "0",
+    }
+    data.update(changes)
+    return {key: value for key, value in data.items() if value is not None}

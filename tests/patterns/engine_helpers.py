@@ -1,6 +1,7 @@
 """A small block whose arithmetic can be done by hand, for the engine's worked examples."""
 
 from patterns.core.block import BACK, FRONT, Block, Level, Panel, Point, Seam
+from tests.patterns.block_parts import small_block
 
 LEVELS = (Level("bust", 0.0), Level("waist", 200.0), Level("hip", 400.0))
 
@@ -29,12 +30,4 @@ def three_panel_block(side_cap=15.0, princess_cap=15.0, side_at=("bust", "waist"
         Seam("Princess seam", "princess", "Front", "Side", frozenset({"waist", "hip"}), princess_cap),
         Seam("Side seam", "side", "Side", "Back", frozenset(side_at), side_cap),
     )
-    return Block(
-        name="Test block",
-        size="T",
-        garment="test",
-        levels=LEVELS,
-        panels=panels,
-        seams=seams,
-        centre_back="laced" if laced else "seamed",
-    )
+    return small_block("Test block", LEVELS, panels, seams, centre_back="laced" if laced else "seamed")

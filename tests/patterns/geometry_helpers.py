@@ -5,6 +5,7 @@ from shapely.geometry import LineString, Polygon
 from shapely.geometry import Point as ShapelyPoint
 
 from patterns.core.block import BACK, FRONT, Alteration, Block, Level, Panel, PanelShift, Point, Seam
+from tests.patterns.block_parts import level_panel, small_block
 
 ALL_LEVELS = ("bust", "underbust", "waist", "abdomen", "hip")
 
@@ -47,20 +48,6 @@ def uniform_alteration(block: Block, left: float, right: float) -> Alteration:
     return Alteration(shifts={p.name: {lv: PanelShift(left, right) for lv in block.level_names} for p in block.panels})
 
 
-def _panel(name, side, left, right, top, bottom, levels):
-    first, last = levels[0].name, levels[-1].name
-    return Panel(
-        name=name,
-        side=side,
-        left=left,
-        right=right,
-        top_left=Point(left[first], top),
-        top_right=Point(right[first], top),
-        bottom_left=Point(left[last], bottom),
-        bottom_right=Point(right[last], bottom),
-    )
-
-
 def mirrored_pair_block(offsets: dict[str, float]) -> Block:
     """Two panels whose shared seam lines mirror each other about x = 200.
 
@@ -69,7 +56,7 @@ def mirrored_pair_block(offsets: dict[str, float]) -> Block:
     """
     ys = {"bust": 60.0, "underbust": 150.0, "waist": 250.0, "abdomen": 340.0, "hip": 440.0}
     levels = tuple(Level(lv, ys[lv]) for lv in ALL_LEVELS)
-    front = _panel(
+    front = level_panel(
         "Front",
         FRONT,
         {lv: 80.0 for lv in ALL_LEVELS},
@@ -78,7 +65,7 @@ def mirrored_pair_block(offsets: dict[str, float]) -> Block:
         470.0,
         levels,
     )
-    back = _panel(
+    back = level_panel(
         "Back",
         BACK,
         {lv: 250.0 - offsets[lv] for lv in ALL_LEVELS},
@@ -88,7 +75,7 @@ def mirrored_pair_block(offsets: dict[str, float]) -> Block:
         levels,
     )
     seam = Seam("Side seam", "side", "Front", "Back", frozenset(ALL_LEVELS))
-    return Block(name="Mirrored pair", size="T", garment="test", levels=levels, panels=(front, back), seams=(seam,))
+    return small_block("Mirrored pair", levels, (front, back), (seam,))
 
 
 def s_bend_block() -> Block:
@@ -113,4 +100,4 @@ def s_bend_block() -> Block:
         bottom_left=Point(40.0, 370.0),
         bottom_right=Point(110.0, 370.0),
     )
-    return Block(name="S bend", size="T", garment="test", levels=levels, panels=(panel,), seams=())
+    return small_block("S bend", levels, (panel,), ())

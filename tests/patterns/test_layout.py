@@ -7,7 +7,7 @@ at least the gap apart, every piece keeps its grainline along the fabric
 grainline parallel to the selvedge is common practice.
 """
 
-from dataclasses import dataclass
+from collections import namedtuple
 
 import pytest
 from hypothesis import HealthCheck, given, settings
@@ -43,14 +43,8 @@ GAP = 5.0
 TOL = 0.01
 
 
-@dataclass(frozen=True)
-class Outline:
-    """What cut_pieces reads from an altered panel outline."""
-
-    name: str
-    cutting: tuple
-    cut_count: int = 2
-    on_fold: bool = False
+# What cut_pieces reads from an altered panel outline.
+Outline = namedtuple("Outline", "name cutting cut_count on_fold", defaults=(2, False))
 
 
 def rect(w, h, x=0.0, y=0.0):

@@ -11,7 +11,7 @@ from patterns.core.block import FRONT, Level
 from patterns.models import BasePattern, SizeRun
 from patterns.selectors import block_for
 from patterns.services import save_block
-from tests.patterns.block_post import block_post
+from tests.patterns.block_post import block_post, tape_post
 
 pytestmark = pytest.mark.django_db
 
@@ -304,34 +304,13 @@ def _card_block():
     """A three-panel card block, tops and bottoms shared at each seam as on a card pattern."""
     from patterns.core.drafting import BlockDraft, PanelDraft, SeamDraft, build_block
 
-    panels = (
-        PanelDraft(
-            "Front",
-            FRONT,
-            {"waist": 120.0, "hip": 150.0},
-            top=(0.0, 10.0),
-            bottom=(260.0, 255.0),
-            top_bound=True,
-            bottom_bound=True,
-        ),
-        PanelDraft(
-            "Side",
-            FRONT,
-            {"waist": 100.0, "hip": 130.0},
-            top=(10.0, 25.0),
-            bottom=(255.0, 255.0),
-            top_bound=True,
-            bottom_bound=True,
-        ),
-        PanelDraft(
-            "Back",
-            "back",
-            {"waist": 110.0, "hip": 135.0},
-            top=(25.0, 15.0),
-            bottom=(255.0, 265.0),
-            top_bound=True,
-            bottom_bound=True,
-        ),
+    panels = tuple(
+        PanelDraft(name, side, {"waist": waist, "hip": hip}, top=top, bottom=bottom, top_bound=True, bottom_bound=True)
+        for name, side, waist, hip, top, bottom in (
+            ("Front", FRONT, 120.0, 150.0, (0.0, 10.0), (260.0, 255.0)),
+            ("Side", FRONT, 100.0, 130.0, (10.0, 25.0), (255.0, 255.0)),
+            ("Back", "back", 110.0, 135.0, (25.0, 15.0), (255.0, 265.0)),
+        )
     )
     seams = (
         SeamDraft("Front seam", "princess", frozenset({"waist", "hip"})),
@@ -352,20 +331,10 @@ def test_it_reads_a_card_pattern_step_by_step_into_the_same_block_as_the_form(fi
     block = _card_block()
     url = reverse("patterns:block_measure")
     assert "Levels marked on the card" in fitter_client.get(url).content.decode()
-    setup = {
-        "unit": "cm",
-        "name": block.name,
-        "size_label": block.size,
-        "garment": block.garment,
-        "centre_front": "busk",
-        "centre_back": "laced",
-        "levels": ["waist", "hip"],
-        "panel_names": "Front\nSide\nBack (back)",
-        "bound": "on",
-        "seam_allowance": "1.5",
-    }
     answers = _tape_answers(block)
-    data = {**setup, "step": "0"}
+    data = tape_post(
+        name=block.name, size_label=block.size, garment=block.garment, panel_names="Front\nSide\nBack (back)"
+    )
     titles = []
     for _ in range(6):
         page = fitter_client.post(url, data)
@@ -398,21 +367,7 @@ def test_it_reads_a_card_pattern_step_by_step_into_the_same_block_as_the_form(fi
 
 def test_it_asks_a_tape_step_again_when_a_reading_is_wrong(fitter_client, db):
     url = reverse("patterns:block_measure")
-    data = {
-        "unit": "cm",
-        "name": "Card",
-        "size_label": "12",
-        "garment": "underbust corset",
-        "centre_front": "busk",
-        "centre_back": "laced",
-        "levels": ["waist", "hip"],
-        "panel_names": "Front\nBack (back)",
-        "seam_allowance": "1.5",
-        "step": "1",
-        "down0_0": "2",
-        "down1_0": "lots",
-        "down2_0": "3",
-    }
+    data = tape_post(name="Card", bound=None, step="1", down0_0="2", down1_0="lots", down2_0="3")
     page = fitter_client.post(url, data)
     text = page.content.decode()
     assert page.status_code == 400 and "<strong>The top edge</strong>" in text and "not a length" in text
