@@ -21,10 +21,12 @@ from patterns.core.layout import (
     CORSET_LAYERS,
     SHELF,
     SOLVER,
+    SURROGATE_MARGIN_MM,
     LayerRequest,
     LayoutError,
     Placement,
     Progress,
+    _surrogate,
     best_of,
     check_layers,
     cut_pieces,
@@ -333,3 +335,14 @@ def test_it_solves_in_a_process_of_its_own_leaving_no_threads_behind():
     assert_valid(result.solver, pieces)
     assert result.best.length_mm == pytest.approx(210.0, abs=1.0)
     assert seen and seen[-1].fraction == 1.0
+
+
+@pytest.mark.parametrize("block", [corset_block("10"), bodice_block()], ids=["corset-10", "bodice"])
+def test_it_nests_stand_ins_holding_every_point_within_half_the_gap_of_their_piece(block):
+    # Stand-ins that do not overlap then keep the pieces themselves at least the gap apart.
+    for piece in demo_pieces(block):
+        stand_in = Polygon([(x, y) for y, x in _surrogate(piece, GAP / 2 + SURROGATE_MARGIN_MM)])
+        assert stand_in.is_valid
+        assert stand_in.contains(Polygon(piece.outline).buffer(GAP / 2, quad_segs=64))
+        # Not a needlessly loose fit either: no wider than the piece by more than the gap and a millimetre.
+        assert stand_in.bounds[2] - stand_in.bounds[0] <= piece.width_mm + GAP + 1.0
