@@ -21,15 +21,18 @@ from patterns.core.layout import (
     CORSET_LAYERS,
     SHELF,
     SOLVER,
+    SURROGATE_MARGIN_MM,
     LayerRequest,
     LayoutError,
     Placement,
     Progress,
+    _surrogate,
     best_of,
     check_layers,
     cut_pieces,
     default_layers,
     layout_problems,
+    length_lower_bound,
     placed_outline,
     shelf_layout,
     solve_layers,
@@ -198,6 +201,57 @@ def test_it_never_overlaps_in_rows_whatever_the_pieces(shapes, gap, width):
     assert_valid(layout, pieces)
 
 
+# --- how short any layout can be ----------------------------------------------------------
+
+
+def test_it_bounds_three_boxes_on_a_width_for_two_by_the_two_rows_they_need():
+    # By hand: 400 + 400 + 400 mm across cannot fit 1000 mm, so two boxes stand one above the other
+    # somewhere: 300 + 5 + 300 = 605 mm, which the rows layout reaches.
+    pieces = cut_pieces([Outline("A", rect(400, 300), cut_count=3)])
+    assert shelf_layout(pieces, 1000.0, GAP).length_mm == pytest.approx(605.0)
+    assert length_lower_bound(pieces, 1000.0, GAP) == pytest.approx(605.0, abs=0.1)
+    assert length_lower_bound(pieces, 1000.0, GAP) <= 605.0
+
+
+def test_it_bounds_by_the_tallest_piece_where_no_stacking_is_forced():
+    pieces = cut_pieces([Outline("A", rect(100, 300), cut_count=2)])
+    assert length_lower_bound(pieces, 1000.0, GAP) == pytest.approx(300.0)
+
+
+def test_it_counts_how_many_boxes_must_stand_one_above_another():
+    # By hand: 8 boxes 200 mm wide take 1600 mm across, more than 6 widths of 250 mm, so some line
+    # along the fabric crosses 7 of them: 7 x 100 + 6 x 5 = 730 mm (the area alone says 640).
+    pieces = cut_pieces([Outline("B", rect(200, 100), cut_count=8)])
+    assert length_lower_bound(pieces, 250.0, GAP) == pytest.approx(730.0, abs=0.3)
+    assert length_lower_bound(pieces, 250.0, GAP) <= 730.0
+
+
+def test_it_bounds_tapered_pieces_by_the_boxes_inside_them():
+    # A trapezoid 100 mm at the top, 300 at the bottom, 400 tall, cut twice: the widest box t tall
+    # inside it is 300 - t/2 wide, and two of them exceed 350 mm while t < 250: 2 x 250 + 5 = 505 mm,
+    # less the 2 mm steps of t and the hundredths allowed.
+    pieces = cut_pieces([Outline("T", trapezoid(100, 300, 400))])
+    bound = length_lower_bound(pieces, 350.0, GAP)
+    assert 500.5 <= bound <= 505.0
+    assert bound <= shelf_layout(pieces, 350.0, GAP).length_mm
+    # On 500 mm they exceed it only below t = 100 mm (205 mm): the tallest piece, 400, is the bound.
+    assert length_lower_bound(pieces, 500.0, GAP) == pytest.approx(400.0)
+
+
+@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(
+    st.lists(
+        st.tuples(st.floats(20, 150), st.floats(20, 150), st.floats(30, 400), st.integers(1, 4)), min_size=1, max_size=6
+    ),
+    st.floats(0, 20),
+    st.floats(160, 1500),
+)
+def test_it_never_bounds_above_a_layout_that_exists(shapes, gap, width):
+    outlines = [Outline(f"P{i}", trapezoid(top, bottom, h), count) for i, (top, bottom, h, count) in enumerate(shapes)]
+    pieces = cut_pieces(outlines)
+    assert length_lower_bound(pieces, width, gap) <= shelf_layout(pieces, width, gap).length_mm + 1e-6
+
+
 # --- bad requests ------------------------------------------------------------------------
 
 
@@ -327,3 +381,14 @@ def test_it_solves_in_a_process_of_its_own_leaving_no_threads_behind():
     assert_valid(result.solver, pieces)
     assert result.best.length_mm == pytest.approx(210.0, abs=1.0)
     assert seen and seen[-1].fraction == 1.0
+
+
+@pytest.mark.parametrize("block", [corset_block("10"), bodice_block()], ids=["corset-10", "bodice"])
+def test_it_nests_stand_ins_holding_every_point_within_half_the_gap_of_their_piece(block):
+    # Stand-ins that do not overlap then keep the pieces themselves at least the gap apart.
+    for piece in demo_pieces(block):
+        stand_in = Polygon([(x, y) for y, x in _surrogate(piece, GAP / 2 + SURROGATE_MARGIN_MM)])
+        assert stand_in.is_valid
+        assert stand_in.contains(Polygon(piece.outline).buffer(GAP / 2, quad_segs=64))
+        # Not a needlessly loose fit either: no wider than the piece by more than the gap and a millimetre.
+        assert stand_in.bounds[2] - stand_in.bounds[0] <= piece.width_mm + GAP + 1.0
