@@ -32,7 +32,7 @@ import math
 import threading
 import time
 from dataclasses import dataclass
-from typing import Callable, Sequence
+from typing import Callable, Sequence, TypedDict, Unpack
 
 import numpy as np
 from shapely import affinity
@@ -655,18 +655,18 @@ def solve_layers(
     return results
 
 
-def _child_main(conn, pieces, layers, gap_mm, budget_s, seed, workers) -> None:
+class SolverOptions(TypedDict, total=False):
+    """What :func:`solve_layers` takes beside the pieces, passed on unchanged by :func:`solve_layers_apart`."""
+
+    budget_s: int
+    seed: int
+    workers: int | None
+
+
+def _child_main(conn, pieces, layers, gap_mm, options: SolverOptions) -> None:
     """In a process of its own: solve, sending progress and then the results (or the reason) up the pipe."""
     try:
-        results = solve_layers(
-            pieces,
-            layers,
-            gap_mm,
-            budget_s=budget_s,
-            seed=seed,
-            workers=workers,
-            progress=lambda p: conn.send(("progress", p)),
-        )
+        results = solve_layers(pieces, layers, gap_mm, progress=lambda p: conn.send(("progress", p)), **options)
         conn.send(("done", results))
     except BaseException as exc:  # noqa: BLE001  (reported to the parent in words)
         conn.send(("error", f"{type(exc).__name__}: {exc}"))
@@ -679,11 +679,9 @@ def solve_layers_apart(
     layers: Sequence[LayerRequest],
     gap_mm: float,
     *,
-    budget_s: int = DEFAULT_BUDGET_S,
     progress: ProgressCallback | None = None,
-    seed: int = 0,
-    workers: int | None = None,
     grace_s: float = 60.0,
+    **options: Unpack[SolverOptions],
 ) -> list[LayerResult]:
     """:func:`solve_layers` in a fresh process (spawned, not forked), progress relayed to ``progress`` here.
 
@@ -701,11 +699,11 @@ def solve_layers_apart(
         target=_child_main,
         name="fabric-layout",
         daemon=True,
-        args=(send, tuple(pieces), tuple(layers), float(gap_mm), int(budget_s), seed, workers),
+        args=(send, tuple(pieces), tuple(layers), float(gap_mm), options),
     )
     child.start()
     send.close()
-    deadline = time.monotonic() + budget_s + grace_s
+    deadline = time.monotonic() + options.get("budget_s", DEFAULT_BUDGET_S) + grace_s
     try:
         while True:
             if receive.poll(0.25):

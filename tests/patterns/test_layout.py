@@ -186,17 +186,22 @@ def test_it_lays_the_demo_pieces_in_rows_keeping_every_rule(block, width):
     assert layout.length_mm >= max(p.height_mm for p in pieces) - TOL
 
 
+def trapezoid_pieces(most: int):
+    """Up to ``most`` trapezoids of any taper, cut 1 to 4 times, as pieces."""
+    shape = st.tuples(st.floats(20, 150), st.floats(20, 150), st.floats(30, 400), st.integers(1, 4))
+    return st.lists(shape, min_size=1, max_size=most).map(
+        lambda shapes: cut_pieces(
+            [Outline(f"P{i}", trapezoid(top, bottom, h), count) for i, (top, bottom, h, count) in enumerate(shapes)]
+        )
+    )
+
+
+ANY_GAP, ANY_WIDTH = st.floats(0, 20), st.floats(160, 1500)
+
+
 @settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(
-    st.lists(
-        st.tuples(st.floats(20, 150), st.floats(20, 150), st.floats(30, 400), st.integers(1, 4)), min_size=1, max_size=8
-    ),
-    st.floats(0, 20),
-    st.floats(160, 1500),
-)
-def test_it_never_overlaps_in_rows_whatever_the_pieces(shapes, gap, width):
-    outlines = [Outline(f"P{i}", trapezoid(top, bottom, h), count) for i, (top, bottom, h, count) in enumerate(shapes)]
-    pieces = cut_pieces(outlines)
+@given(trapezoid_pieces(8), ANY_GAP, ANY_WIDTH)
+def test_it_never_overlaps_in_rows_whatever_the_pieces(pieces, gap, width):
     layout = shelf_layout(pieces, width, gap)
     assert_valid(layout, pieces)
 
@@ -239,16 +244,8 @@ def test_it_bounds_tapered_pieces_by_the_boxes_inside_them():
 
 
 @settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
-@given(
-    st.lists(
-        st.tuples(st.floats(20, 150), st.floats(20, 150), st.floats(30, 400), st.integers(1, 4)), min_size=1, max_size=6
-    ),
-    st.floats(0, 20),
-    st.floats(160, 1500),
-)
-def test_it_never_bounds_above_a_layout_that_exists(shapes, gap, width):
-    outlines = [Outline(f"P{i}", trapezoid(top, bottom, h), count) for i, (top, bottom, h, count) in enumerate(shapes)]
-    pieces = cut_pieces(outlines)
+@given(trapezoid_pieces(6), ANY_GAP, ANY_WIDTH)
+def test_it_never_bounds_above_a_layout_that_exists(pieces, gap, width):
     assert length_lower_bound(pieces, width, gap) <= shelf_layout(pieces, width, gap).length_mm + 1e-6
 
 
