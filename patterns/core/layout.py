@@ -36,7 +36,7 @@ from typing import Callable, Sequence, TypedDict, Unpack
 
 import numpy as np
 from shapely import affinity
-from shapely.geometry import LineString, Polygon, box
+from shapely.geometry import LineString, Polygon
 from shapely.ops import unary_union
 
 from patterns.core.defaults import is_corset
@@ -375,73 +375,58 @@ def layout_problems(layout: Layout) -> list[str]:
 
 # --- how short any layout can be ------------------------------------------------------------
 
-_SLICE_STEP_MM = 0.5
-_HEIGHT_STEPS = 4  # the heights tried: every 2 mm
-_INSET_MM = 0.01
+_HEIGHT_STEP_MM = 0.5
+_EDGE_MM = 1e-6
 
 
-def _slices(poly: Polygon) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """The piece's widest horizontal stretch at every half millimetre up its height: y, left, right."""
-    x0, y0, x1, y1 = poly.bounds
-    ys = np.minimum(y0 + _SLICE_STEP_MM * np.arange(int((y1 - y0) / _SLICE_STEP_MM) + 1), y1)
-    lefts, rights = np.zeros_like(ys), np.zeros_like(ys)
-    for i, y in enumerate(ys):
-        cut = poly.intersection(LineString([(x0 - 1, y), (x1 + 1, y)]))
-        parts = [g for g in getattr(cut, "geoms", [cut]) if g.geom_type == "LineString" and not g.is_empty]
-        if parts:
-            widest = max(parts, key=lambda g: g.length)
-            lefts[i], rights[i] = widest.bounds[0], widest.bounds[2]
-    return ys, lefts, rights
+def _chords(poly: Polygon) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """How much of the piece a line along the fabric crosses, across its width.
+
+    Between two neighbouring corners' x the crossed length changes linearly, so the stretch
+    from ``x[i]`` to ``x[i + 1]`` is given by its two ends, taken just inside it.
+    """
+    _, y0, _, y1 = poly.bounds
+    xs = np.unique(np.array([x for x, _ in poly.exterior.coords]))
+
+    def crossed(x: float) -> float:
+        return poly.intersection(LineString([(x, y0 - 1), (x, y1 + 1)])).length
+
+    starts = np.array([crossed(a + _EDGE_MM) for a in xs[:-1]])
+    ends = np.array([crossed(b - _EDGE_MM) for b in xs[1:]])
+    return np.diff(xs), starts, ends
 
 
-def _widest_rectangles(poly: Polygon) -> dict[int, float]:
-    """For every ``k`` (a height of ``k`` half millimetres, every 2 mm), the width of the widest
-    upright rectangle that tall inside the piece. Each is checked with shapely, so a rectangle the
-    slices misjudge counts as none."""
-    ys, lefts, rights = _slices(poly)
-    widths: dict[int, float] = {}
-    most_left, least_right = lefts.copy(), rights.copy()
-    for k in range(1, len(ys)):
-        # Windows of k + 1 slices, starting at each slice: grown by one slice from the last round.
-        most_left = np.maximum(most_left[:-1], lefts[k:])
-        least_right = np.minimum(least_right[:-1], rights[k:])
-        if k % _HEIGHT_STEPS:
-            continue
-        width = least_right - most_left
-        height = k * _SLICE_STEP_MM
-        widths[k] = 0.0
-        for i in np.argsort(-width)[:5]:
-            if width[i] <= 2 * _INSET_MM:
-                break
-            rect = box(
-                most_left[i] + _INSET_MM, ys[i] + _INSET_MM, least_right[i] - _INSET_MM, ys[i] + height - _INSET_MM
-            )
-            if poly.contains(rect):
-                widths[k] = float(width[i]) - 2 * _INSET_MM
-                break
-    return widths
+def _width_crossed_at_least(chords: tuple[np.ndarray, np.ndarray, np.ndarray], height: float) -> float:
+    """The width of the piece over which a line along the fabric crosses at least ``height`` of it."""
+    spans, starts, ends = chords
+    low, high = np.minimum(starts, ends), np.maximum(starts, ends)
+    sloped = np.where(high > low, (high - height) / np.where(high > low, high - low, 1.0), 0.0)
+    share = np.where(low >= height, 1.0, np.where(high < height, 0.0, np.clip(sloped, 0.0, 1.0)))
+    return float(np.sum(spans * share))
 
 
 def length_lower_bound(pieces: Sequence[Piece], width_mm: float, gap_mm: float) -> float:
     """No layout of these pieces on this width, with this gap and 0/180 degree turns only, is shorter.
 
     The largest of three bounds: the tallest piece; the pieces' area over the width; and stacking.
-    For stacking, each piece is replaced by an upright rectangle ``t`` tall that fits inside it
-    (turning a rectangle by 180 degrees leaves it as it was, and rectangles inside pieces a gap apart
-    are a gap apart). If their widths add up to more than ``m`` fabric widths, some line along the
-    fabric crosses ``m + 1`` of them, one above another, so the fabric is at least
-    ``(m + 1) t + m gap`` long. Every ``t`` up the pieces' heights is tried, 2 mm apart.
+    A line along the fabric crosses the pieces it meets one after another, a gap apart. Take a
+    height ``h`` and, in each piece, the part of its width where such a line crosses at least ``h``
+    of it (a turn by 180 degrees or a mirror image moves that part but keeps its width). If those
+    widths add up to more than ``m`` fabric widths, some line crosses ``m + 1`` pieces at ``h`` or
+    more each, so the fabric is at least ``(m + 1) h + m gap`` long. Every ``h`` is tried, 0.5 mm apart,
+    and the tallest piece's height.
     """
     # As loose as the check of a layout (``layout_problems``) is: a hundredth of a millimetre.
     width_mm, gap_mm = width_mm + TOLERANCE_MM, gap_mm - TOLERANCE_MM
     copies = _copies(pieces)
-    best = max(max(p.height_mm for p in copies), sum(p.area_mm2 for p in copies) / width_mm)
-    widest = [(p.copies, _widest_rectangles(Polygon(p.outline))) for p in pieces]
-    for k in sorted({k for _, widths in widest for k in widths}):
-        total = sum(n * widths.get(k, 0.0) for n, widths in widest)
+    tallest = max(p.height_mm for p in copies)
+    best = max(tallest, sum(p.area_mm2 for p in copies) / width_mm)
+    chords = [(p.copies, _chords(Polygon(p.outline))) for p in pieces]
+    for height in np.append(np.arange(_HEIGHT_STEP_MM, tallest, _HEIGHT_STEP_MM), tallest):
+        total = sum(n * _width_crossed_at_least(c, float(height)) for n, c in chords)
         layers = math.ceil(total / width_mm) - 1 if total > 0 else 0
         if layers >= 1:
-            best = max(best, (layers + 1) * (k * _SLICE_STEP_MM - 2 * _INSET_MM) + layers * gap_mm)
+            best = max(best, (layers + 1) * float(height) + layers * gap_mm)
     return best
 
 

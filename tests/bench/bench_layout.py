@@ -17,8 +17,8 @@ Where the rows layout already fits every piece in one row, no layout can be
 shorter than the tallest piece (the grain forbids turning pieces across),
 so both are equal; such rows are marked "one row" and left out of the
 target.  Beside each row stands a lower bound on the length of any layout
-(``length_lower_bound``: the tallest piece, the area, and boxes inside the
-pieces that must stand one above another); where the rows layout is less than
+(``length_lower_bound``: the tallest piece, the area, and pieces that must
+stand one above another); where the rows layout is less than
 10 % longer than it, no layout can meet the target, and the row says so.
 """
 
@@ -117,7 +117,7 @@ def verdict(r: dict) -> str:
     if r["met"]:
         return "met"
     if r["most_possible"] < TARGET:
-        return f"not met; no layout can (at most {100 * r['most_possible']:+.1f} %)"
+        return f"not met; no layout can (at most {100 * r['most_possible']:+.2f} %)"
     return "not met"
 
 

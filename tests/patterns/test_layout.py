@@ -223,7 +223,7 @@ def test_it_bounds_by_the_tallest_piece_where_no_stacking_is_forced():
     assert length_lower_bound(pieces, 1000.0, GAP) == pytest.approx(300.0)
 
 
-def test_it_counts_how_many_boxes_must_stand_one_above_another():
+def test_it_counts_how_many_pieces_must_stand_one_above_another():
     # By hand: 8 boxes 200 mm wide take 1600 mm across, more than 6 widths of 250 mm, so some line
     # along the fabric crosses 7 of them: 7 x 100 + 6 x 5 = 730 mm (the area alone says 640).
     pieces = cut_pieces([Outline("B", rect(200, 100), cut_count=8)])
@@ -231,16 +231,26 @@ def test_it_counts_how_many_boxes_must_stand_one_above_another():
     assert length_lower_bound(pieces, 250.0, GAP) <= 730.0
 
 
-def test_it_bounds_tapered_pieces_by_the_boxes_inside_them():
-    # A trapezoid 100 mm at the top, 300 at the bottom, 400 tall, cut twice: the widest box t tall
-    # inside it is 300 - t/2 wide, and two of them exceed 350 mm while t < 250: 2 x 250 + 5 = 505 mm,
-    # less the 2 mm steps of t and the hundredths allowed.
+def test_it_bounds_tapered_pieces_by_how_much_of_them_a_line_along_the_fabric_crosses():
+    # A trapezoid 100 mm at the top, 300 at the bottom, 400 tall, cut twice: a line along the fabric
+    # crosses at least h of it over 300 - h/2 of its width, and two of those exceed 350 mm while
+    # h < 250: 2 x 250 + 5 = 505 mm, less the 0.5 mm steps of h and the hundredths allowed.
     pieces = cut_pieces([Outline("T", trapezoid(100, 300, 400))])
     bound = length_lower_bound(pieces, 350.0, GAP)
-    assert 500.5 <= bound <= 505.0
+    assert 503.5 <= bound <= 505.0
     assert bound <= shelf_layout(pieces, 350.0, GAP).length_mm
-    # On 500 mm they exceed it only below t = 100 mm (205 mm): the tallest piece, 400, is the bound.
+    # On 500 mm they exceed it only below h = 100 mm (205 mm): the tallest piece, 400, is the bound.
     assert length_lower_bound(pieces, 500.0, GAP) == pytest.approx(400.0)
+
+
+def test_it_bounds_slanted_pieces_where_no_upright_box_inside_them_would():
+    # A parallelogram 100 mm across, slanting 100 mm over its 400 mm height, cut three times on
+    # 300 mm: a line along the fabric crosses at least h of it over 200 - h/2 of its width; three of
+    # those exceed 300 mm while h < 200, so two stand one above another: 2 x 200 + 5 = 405 mm. An
+    # upright box h tall fits only 100 - h/4 wide, and three never exceed 300: boxes would say 400.
+    slanted = ((0.0, 0.0), (100.0, 0.0), (200.0, 400.0), (100.0, 400.0))
+    pieces = cut_pieces([Outline("S", slanted, cut_count=3)])
+    assert 403.5 <= length_lower_bound(pieces, 300.0, GAP) <= 405.0
 
 
 @settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
