@@ -15,6 +15,15 @@ from patterns.models import BasePattern
 DEMO_PASSWORD = "tape-and-pins-42"
 
 
+@pytest.fixture(scope="session", autouse=True)
+def _static_root_for_the_live_server(tmp_path_factory):
+    """The browser tests' live server loads the static-file middleware once, before any test's own
+    settings; on a fresh checkout it would find no collected static folder and warn."""
+    from django.conf import settings
+
+    settings.STATIC_ROOT = tmp_path_factory.mktemp("static")
+
+
 @pytest.fixture(autouse=True)
 def _test_files(settings, tmp_path):
     """Plain static storage (no collectstatic needed), throwaway folders, quick password hashing."""
