@@ -400,8 +400,9 @@ def _width_crossed_at_least(chords: tuple[np.ndarray, np.ndarray, np.ndarray], h
     """The width of the piece over which a line along the fabric crosses at least ``height`` of it."""
     spans, starts, ends = chords
     low, high = np.minimum(starts, ends), np.maximum(starts, ends)
-    sloped = np.where(high > low, (high - height) / np.where(high > low, high - low, 1.0), 0.0)
-    share = np.where(low >= height, 1.0, np.where(high < height, 0.0, np.clip(sloped, 0.0, 1.0)))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        sloped = np.clip((high - height) / (high - low), 0.0, 1.0)
+    share = np.where(high > low, sloped, low >= height)
     return float(np.sum(spans * share))
 
 
